@@ -1,0 +1,97 @@
+"""Command line: ``boresmith check|resolve|build|diff|new``.
+
+All file access, terminal output and exit codes live here; the stages are pure.
+Exit codes: 0 success, 1 the spec is wrong (or, for ``diff``, something changed),
+2 usage error. Heavy modules (numpy, ezdxf, reportlab) are imported only by the
+commands that need them, so ``check`` starts fast.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+
+from compiler import __version__
+from compiler.errors import Problem, SpecError
+
+EXIT_OK, EXIT_SPEC, EXIT_USAGE = 0, 1, 2
+
+
+class UsageError(Exception):
+    """Bad command-line use: a missing file, an unknown option."""
+
+
+def _read(path: str) -> bytes:
+    try:
+        return Path(path).read_bytes()
+    except FileNotFoundError:
+        raise UsageError(f"{path}: no such file") from None
+    except IsADirectoryError:
+        raise UsageError(f"{path}: is a folder, not a spec file") from None
+    except OSError as exc:
+        raise UsageError(f"{path}: cannot read ({exc.strerror})") from None
+
+
+def _report(problems: Sequence[Problem]) -> None:
+    for problem in problems:
+        print(problem.format(), file=sys.stderr)
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    from compiler.spec import load_spec
+
+    everything: list[Problem] = []
+    for path in args.specs:
+        try:
+            load_spec(_read(path), path)
+        except SpecError as exc:
+            everything.extend(exc.problems)
+    if args.json:
+        print(json.dumps([p.as_dict() for p in everything], indent=2, sort_keys=True))
+    else:
+        _report(everything)
+        if not everything:
+            names = ", ".join(args.specs)
+            print(f"{names}: ok", file=sys.stderr)
+    return EXIT_SPEC if everything else EXIT_OK
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="boresmith",
+        description="Compile a wind-pipe spec (YAML) into cut lengths, hole layouts, "
+        "DXF cut profiles and PDF build sheets.")
+    parser.add_argument("--version", action="version", version=f"boresmith {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+
+    check = sub.add_parser("check", help="check specs against the language; report every "
+                           "problem at its line and column")
+    check.add_argument("specs", nargs="+", metavar="SPEC")
+    check.add_argument("--json", action="store_true", help="print the problems as JSON")
+    check.set_defaults(run=cmd_check)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse exits 2 on usage errors, 0 on --help
+        return int(exc.code or 0)
+    if not getattr(args, "run", None):
+        parser.print_help(sys.stderr)
+        return EXIT_USAGE
+    try:
+        return int(args.run(args))
+    except UsageError as exc:
+        print(f"boresmith: error: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    except SpecError as exc:
+        _report(exc.problems)
+        return EXIT_SPEC
+    except KeyboardInterrupt:
+        print("boresmith: interrupted", file=sys.stderr)
+        return 130

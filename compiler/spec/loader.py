@@ -1,0 +1,168 @@
+"""Safe YAML loading that remembers where every key and value came from.
+
+pyyaml's safe loader keeps no positions and silently keeps the last of two equal keys,
+so we compose the node graph ourselves and build plain Python data from it, with an
+index from each value's path (a tuple of keys and list indices) to its position.
+Aliases are allowed, but the expansion is counted so an alias bomb stops at once.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from dataclasses import dataclass, field
+from typing import Any
+
+import yaml
+
+from compiler.errors import Position, Problem, YamlError
+
+MAX_BYTES = 2 * 1024 * 1024
+"""Largest spec file accepted (a 610-pipe organ spec is a few kilobytes)."""
+MAX_DEPTH = 40
+"""Deepest nesting accepted (the spec language needs about 7 levels)."""
+MAX_NODES = 200_000
+"""Most values built from one file."""
+MAX_ALIAS_EXPANSIONS = 5_000
+"""Most values built again through aliases; stops alias bombs early."""
+
+Path = tuple[str | int, ...]
+
+
+@dataclass(frozen=True)
+class Document:
+    """Plain data (dicts, lists, scalars) from one YAML file, with positions."""
+
+    data: Any
+    file: str
+    sha256: str = ""
+    values: dict[Path, Position] = field(default_factory=dict)
+    keys: dict[Path, Position] = field(default_factory=dict)
+
+    def at(self, path: Path) -> Position:
+        """Position of the value at ``path``, or of its nearest enclosing value."""
+        path = tuple(path)
+        while path and path not in self.values:
+            path = path[:-1]
+        return self.values.get(path, Position(self.file, 1, 1))
+
+    def key_at(self, path: Path) -> Position:
+        """Position of the key naming ``path`` (falls back to the value's position)."""
+        return self.keys.get(tuple(path)) or self.at(path)
+
+
+def _position(file: str, node: yaml.Node) -> Position:
+    mark = node.start_mark
+    return Position(file, mark.line + 1, mark.column + 1)
+
+
+def _error(file: str, mark: Any, message: str, hint: str = "") -> YamlError:
+    if mark is None:
+        return YamlError([Problem(Position(file, 1, 1), message, hint, "yaml")])
+    position = Position(file, mark.line + 1, mark.column + 1)
+    return YamlError([Problem(position, message, hint, "yaml")])
+
+
+class _Builder:
+    """Turns a composed node graph into plain data, recording positions."""
+
+    def __init__(self, file: str) -> None:
+        self.file = file
+        self.values: dict[Path, Position] = {}
+        self.keys: dict[Path, Position] = {}
+        self.count = 0
+        self.seen: set[int] = set()
+        self.expanded = 0
+        self.constructor = yaml.SafeLoader("")
+
+    def build(self, node: yaml.Node, path: Path, depth: int) -> Any:
+        self.count += 1
+        if id(node) in self.seen:
+            self.expanded += 1
+        self.seen.add(id(node))
+        if self.count > MAX_NODES or self.expanded > MAX_ALIAS_EXPANSIONS:
+            raise _error(self.file, node.start_mark,
+                         "the file expands to too many values "
+                         f"(over {MAX_ALIAS_EXPANSIONS} through aliases, or {MAX_NODES} in all)",
+                         "write the values out instead of nesting aliases")
+        if depth > MAX_DEPTH:
+            raise _error(self.file, node.start_mark,
+                         f"values are nested more than {MAX_DEPTH} levels deep",
+                         "the spec language needs only a few levels; check the indentation")
+        self.values.setdefault(path, _position(self.file, node))
+        if isinstance(node, yaml.MappingNode):
+            return self._mapping(node, path, depth)
+        if isinstance(node, yaml.SequenceNode):
+            return [self.build(item, (*path, i), depth + 1) for i, item in enumerate(node.value)]
+        return self._scalar(node)
+
+    def _mapping(self, node: yaml.MappingNode, path: Path, depth: int) -> dict[str, Any]:
+        result: dict[str, Any] = {}
+        for key_node, value_node in node.value:
+            if key_node.tag == "tag:yaml.org,2002:merge":
+                raise _error(self.file, key_node.start_mark,
+                             "merge keys (`<<`) are not supported",
+                             "write the keys out, or use an alias for a whole value")
+            if not isinstance(key_node, yaml.ScalarNode):
+                raise _error(self.file, key_node.start_mark,
+                             "a key must be a plain word, not a list or mapping",
+                             "write `name: value`")
+            key = str(key_node.value)
+            if key in result:
+                first = self.keys[(*path, key)]
+                raise _error(self.file, key_node.start_mark,
+                             f"duplicate key `{key}` (first given at line {first.line})",
+                             "keep one of them: YAML would silently drop the first")
+            self.keys[(*path, key)] = _position(self.file, key_node)
+            result[key] = self.build(value_node, (*path, key), depth + 1)
+        return result
+
+    def _scalar(self, node: yaml.Node) -> Any:
+        value = self.constructor.construct_object(node, deep=True)
+        # Dates and binary are no quantities of ours; keep the text so errors quote it.
+        if not isinstance(value, str | int | float | bool | type(None)):
+            return str(node.value)
+        return value
+
+
+def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
+    """Parse YAML text into a ``Document``; raise ``YamlError`` at the problem's position."""
+    if isinstance(text, bytes):
+        if len(text) > MAX_BYTES:
+            raise _error(filename, None, f"the file is {len(text)} bytes; the limit is {MAX_BYTES}",
+                         "split the instrument into several specs")
+        try:
+            text = text.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            raise _error(filename, None, f"the file is not UTF-8 text (byte {exc.start})",
+                         "save the spec as UTF-8") from None
+    digest = hashlib.sha256(text.encode("utf-8")).hexdigest()
+    if len(text.encode("utf-8")) > MAX_BYTES:
+        raise _error(filename, None, f"the file is larger than {MAX_BYTES} bytes",
+                     "split the instrument into several specs")
+    try:
+        nodes = list(yaml.compose_all(text, Loader=yaml.SafeLoader))
+    except yaml.MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        what = exc.problem or "not valid YAML"
+        if exc.context:
+            what = f"{exc.context}: {what}"
+        raise _error(filename, mark, f"YAML syntax: {what}",
+                     "check the indentation, colons and quotes on this line") from None
+    except yaml.YAMLError as exc:
+        raise _error(filename, None, f"YAML syntax: {exc}", "check the file is YAML") from None
+    except RecursionError:
+        raise _error(filename, None, "values are nested too deeply",
+                     "the spec language needs only a few levels") from None
+    if not nodes or nodes[0] is None:
+        raise _error(filename, None, "the file is empty",
+                     "start from `boresmith new open-flue` for a commented example")
+    if len(nodes) > 1:
+        raise _error(filename, nodes[1].start_mark, "the file holds more than one YAML document",
+                     "keep one instrument per file (remove the `---` line)")
+    builder = _Builder(filename)
+    try:
+        data = builder.build(nodes[0], (), 0)
+    except yaml.constructor.ConstructorError as exc:
+        raise _error(filename, exc.problem_mark, f"YAML value: {exc.problem}",
+                     "quote the value if it is meant as text") from None
+    return Document(data, filename, digest, builder.values, builder.keys)

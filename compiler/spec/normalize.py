@@ -1,0 +1,531 @@
+"""Turn validated spec data into the typed ``Spec``: units to SI, notes to numbers.
+
+Every problem (a missing unit, an unknown note, a stock name that does not exist) is
+collected with its position, and all are raised together as one ``UnitError``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any, TypeVar
+
+from compiler.acoustics import tuning
+from compiler.errors import Position, Problem, UnitError
+from compiler.spec import model, units
+from compiler.spec.loader import Document, Path
+
+T = TypeVar("T")
+
+PITCH_CLASS_KEYS = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "G#", "A", "Bb", "B")
+
+
+class _Reader:
+    """Reads values at paths, converting units and collecting problems."""
+
+    def __init__(self, document: Document) -> None:
+        self.doc = document
+        self.problems: list[Problem] = []
+        self.units = str(document.data.get("units", "mm"))
+
+    def get(self, path: Path) -> Any:
+        node: Any = self.doc.data
+        for part in path:
+            if isinstance(node, dict) and isinstance(part, str):
+                node = node.get(part)
+            elif isinstance(node, list) and isinstance(part, int) and part < len(node):
+                node = node[part]
+            else:
+                return None
+        return node
+
+    def fail(self, path: Path, message: str, hint: str = "") -> None:
+        self.problems.append(Problem(self.doc.at(path), message, hint, "units"))
+
+    def convert(self, path: Path, parse: Callable[[Any], T], default: T) -> T:
+        value = self.get(path)
+        if value is None:
+            return default
+        try:
+            return parse(value)
+        except (units.UnitParseError, tuning.NoteError) as exc:
+            self.fail(path, f"{_name(path)}: {exc.message}", exc.hint)
+            return default
+
+    def length(self, path: Path, *, positive: bool = True) -> float | None:
+        parse = units.parse_positive_length if positive else units.parse_nonnegative_length
+        return self.convert(path, lambda v: parse(v, self.units), None)
+
+    def ratio(self, path: Path) -> float | None:
+        return self.convert(path, units.parse_ratio, None)
+
+    def frequency(self, path: Path) -> float | None:
+        return self.convert(path, units.parse_frequency, None)
+
+    def temperature(self, path: Path) -> float | None:
+        return self.convert(path, units.parse_temperature, None)
+
+    def note(self, path: Path) -> int | None:
+        return self.convert(path, tuning.parse_note, None)
+
+    def at(self, path: Path) -> Position:
+        return self.doc.at(path)
+
+    def where(self, base: Path, *names: str) -> dict[str, Position]:
+        found = {}
+        for name in names:
+            path = (*base, *name.split("."))
+            if self.get(path) is not None:
+                found[name] = self.doc.at(path)
+        return found
+
+
+def _name(path: Path) -> str:
+    from compiler.spec.validate import dotted
+
+    return dotted(path)
+
+
+def normalize(document: Document) -> model.Spec:
+    """Build the typed ``Spec``; raise ``UnitError`` listing every problem."""
+    r = _Reader(document)
+    data = document.data
+    stock = _stock(r)
+    spec = model.Spec(
+        file=document.file,
+        sha256=document.sha256,
+        format_version=int(data["boresmith"]),
+        instrument=str(data["instrument"]),
+        units=r.units,
+        environment=_environment(r, ("environment",)),
+        tuning=_tuning(r),
+        stock=stock,
+        fabrication=_fabrication(r),
+        ranks=tuple(_rank(r, i) for i in range(len(data.get("ranks", [])))),
+        tube_sets=tuple(_tube_set(r, i) for i in range(len(data.get("tube_sets", [])))),
+        flutes=tuple(_flute(r, i) for i in range(len(data.get("flutes", [])))),
+    )
+    _check_references(r, spec)
+    if r.problems:
+        raise UnitError(r.problems)
+    return spec
+
+
+def _environment(r: _Reader, base: Path) -> model.Environment:
+    return model.Environment(
+        temperature_k=r.temperature((*base, "temperature")),
+        humidity=r.convert((*base, "humidity"), units.parse_humidity, None),
+        pressure_pa=r.convert((*base, "pressure"), units.parse_pressure, None),
+        co2=r.convert((*base, "co2"), units.parse_co2, None),
+        sound_speed=r.get((*base, "sound_speed")),
+        where=model._frozen(r.where(base, "temperature", "humidity", "pressure", "co2",
+                                    "sound_speed")),
+    )
+
+
+def _tuning(r: _Reader) -> model.Tuning:
+    base: Path = ("tuning",)
+    tonic_pc = r.convert((*base, "tonic"), lambda t: tuning.parse_note(f"{t}4") % 12, 0)
+    custom = None
+    cents = r.get((*base, "cents"))
+    if isinstance(cents, dict):
+        custom = tuple(float(cents[k]) for k in PITCH_CLASS_KEYS if k in cents)
+        if len(custom) != 12:
+            custom = None
+    offsets: list[tuple[int, float]] = []
+    for key in sorted(r.get((*base, "offsets")) or {}):
+        path = (*base, "offsets", key)
+        try:
+            note = tuning.parse_note(key)
+        except tuning.NoteError as exc:
+            r.problems.append(Problem(r.doc.key_at(path), f"tuning.offsets: {exc.message}",
+                                      exc.hint, "units"))
+            continue
+        offsets.append((note, r.convert(path, units.parse_cents, 0.0)))
+    return model.Tuning(
+        a4_hz=r.frequency((*base, "a4")) or 440.0,
+        temperament=r.get((*base, "temperament")) or "equal",
+        tonic_pc=tonic_pc,
+        custom_cents=custom,
+        offsets=tuple(sorted(offsets)),
+    )
+
+
+def _stock(r: _Reader) -> tuple[model.Stock, ...]:
+    items = []
+    for name in sorted(r.get(("stock",)) or {}):
+        base: Path = ("stock", name)
+        entry = r.get(base) or {}
+        material = str(entry.get("material", ""))
+        if "tube" in entry:
+            t = (*base, "tube")
+            od = r.length((*t, "outside_diameter"))
+            inner = r.length((*t, "inside_diameter"))
+            wall = r.length((*t, "wall"))
+            given = sum(v is not None for v in (od, inner, wall))
+            if given != 2:
+                r.fail(t, f"stock `{name}`: give two of `outside_diameter`, `inside_diameter` and "
+                       "`wall`", "for example `{outside_diameter: 22 mm, wall: 1 mm}`")
+                continue
+            if wall is None and od is not None and inner is not None:
+                wall = (od - inner) / 2
+            if od is None and inner is not None and wall is not None:
+                od = inner + 2 * wall
+            if inner is None and od is not None and wall is not None:
+                inner = od - 2 * wall
+            assert od is not None and inner is not None and wall is not None
+            if inner <= 0 or wall <= 0:
+                r.fail(t, f"stock `{name}`: the wall leaves no bore "
+                       f"(outside {od * 1000:g} mm, wall {wall * 1000:g} mm)",
+                       "check the outside diameter and the wall thickness")
+                continue
+            items.append(model.Stock(name, "tube", material, wall, od, inner,
+                                     r.length((*t, "length")), None, r.at(base)))
+            continue
+        kind = "sheet" if "sheet" in entry else "board"
+        k = (*base, kind)
+        size = r.convert((*k, "size"), lambda v: units.parse_size2(v, r.units), None)
+        thickness = r.length((*k, "thickness")) or 0.001
+        items.append(model.Stock(name, kind, material, thickness, None, None,
+                                 size[0] if size else None, size[1] if size else None,
+                                 r.at(base)))
+    return tuple(items)
+
+
+def _fabrication(r: _Reader) -> model.Fabrication:
+    base: Path = ("fabrication",)
+    default = model.Fabrication()
+    size = r.convert((*base, "sheet"), lambda v: units.parse_size2(v, r.units), None)
+    allowance_fraction, allowance_m = 0.0, 0.0
+    raw = r.get((*base, "tuning_allowance"))
+    if raw is not None:
+        if isinstance(raw, str) and raw.strip().endswith("%"):
+            allowance_fraction = r.ratio((*base, "tuning_allowance")) or 0.0
+        else:
+            allowance_m = r.length((*base, "tuning_allowance"), positive=False) or 0.0
+    kerf = r.length((*base, "kerf"), positive=False)
+    spacing = r.length((*base, "spacing"), positive=False)
+    precision = r.length((*base, "precision"))
+    seam = r.length((*base, "seam_allowance"), positive=False)
+    return model.Fabrication(
+        sheet_length_m=max(size) if size else default.sheet_length_m,
+        sheet_width_m=min(size) if size else default.sheet_width_m,
+        kerf_m=default.kerf_m if kerf is None else kerf,
+        spacing_m=default.spacing_m if spacing is None else spacing,
+        allowance_fraction=allowance_fraction,
+        allowance_m=allowance_m,
+        precision_m=precision or default.precision_m,
+        seam_allowance_m=default.seam_allowance_m if seam is None else seam,
+        drills_m=_drills(r, (*base, "drills")),
+        paper=r.get((*base, "paper")) or "a4",
+        dxf_version=r.get((*base, "dxf_version")) or "r2010",
+        part_files=bool(r.get((*base, "part_files"))),
+        where=model._frozen(r.where(base, "sheet", "kerf", "spacing", "drills",
+                                    "tuning_allowance")),
+    )
+
+
+def _drills(r: _Reader, path: Path) -> tuple[float, ...]:
+    raw = r.get(path)
+    if raw is None:
+        # Common practice: a metric jobber set, 1 mm to 13 mm in 0.5 mm steps.
+        return tuple(round(0.001 + 0.0005 * i, 7) for i in range(25))
+    if isinstance(raw, list):
+        sizes = [r.length((*path, i)) for i in range(len(raw))]
+        return tuple(sorted({round(s, 9) for s in sizes if s}))
+    start, stop, step = r.length((*path, "from")), r.length((*path, "to")), r.length(
+        (*path, "step"))
+    if not (start and stop and step):
+        return ()
+    if stop < start:
+        r.fail(path, "drills: `to` is smaller than `from`", "swap the two sizes")
+        return ()
+    count = int((stop - start) / step + 1e-6) + 1
+    if count > 2000:
+        r.fail((*path, "step"), f"drills: the step gives {count} sizes", "use a coarser step")
+        return ()
+    return tuple(round(start + i * step, 9) for i in range(count))
+
+
+def _notes(r: _Reader, path: Path) -> tuple[int, ...]:
+    raw = r.get(path)
+    try:
+        if isinstance(raw, str):
+            if ".." in raw:
+                return tuple(tuning.parse_note_range(raw))
+            return (tuning.parse_note(raw),)
+        if isinstance(raw, list):
+            notes = []
+            for i, _ in enumerate(raw):
+                note = r.note((*path, i))
+                if note is not None:
+                    notes.append(note)
+            return tuple(notes)
+        if isinstance(raw, dict):
+            tonic = r.note((*path, "tonic"))
+            if tonic is None:
+                return ()
+            notes = tuning.scale_notes(tonic, raw["scale"], int(raw["count"]))
+            if notes and notes[-1] > 127:
+                r.fail(path, f"{_name(path)}: the scale runs past G9", "use fewer notes")
+                return ()
+            return tuple(notes)
+    except tuning.NoteError as exc:
+        r.fail(path, f"{_name(path)}: {exc.message}", exc.hint)
+    return ()
+
+
+def _check_duplicates(r: _Reader, path: Path, notes: tuple[int, ...]) -> None:
+    seen = set()
+    for note in notes:
+        if note in seen:
+            r.fail(path, f"{_name(path)}: the note {tuning.note_name(note)} is listed twice",
+                   "each note makes one pipe; remove the repeat")
+            return
+        seen.add(note)
+
+
+def _end_correction(r: _Reader, base: Path) -> model.EndCorrection:
+    path = (*base, "end_correction")
+    return model.EndCorrection(
+        model=r.get((*path, "model")) or "unflanged",
+        k=r.ratio((*path, "k")) or 0.3,
+    )
+
+
+def _measured(r: _Reader, base: Path) -> tuple[model.Measurement, ...]:
+    items = []
+    for i, _ in enumerate(r.get((*base, "measured")) or []):
+        m = (*base, "measured", i)
+        note, freq, temp = r.note((*m, "note")), r.frequency((*m, "frequency")), r.temperature(
+            (*m, "temperature"))
+        if note is None or freq is None or temp is None:
+            continue
+        items.append(model.Measurement(note, freq, temp, r.length((*m, "length")), r.at(m)))
+    return tuple(items)
+
+
+def _overrides(r: _Reader, base: Path) -> tuple[model.Override, ...]:
+    items = []
+    for i, _ in enumerate(r.get((*base, "overrides")) or []):
+        o = (*base, "overrides", i)
+        note = r.note((*o, "note"))
+        if note is None:
+            continue
+        items.append(model.Override(
+            note=note, diameter_m=r.length((*o, "diameter")), width_m=r.length((*o, "width")),
+            depth_m=r.length((*o, "depth")), mouth_width=r.ratio((*o, "mouth_width")),
+            cutup=r.ratio((*o, "cutup")), stock=r.get((*o, "stock")),
+            frequency_hz=r.frequency((*o, "frequency")), position=r.at(o)))
+    return tuple(items)
+
+
+def _scale(r: _Reader, base: Path) -> model.Scale:
+    s = (*base, "scale")
+    ref = (*s, "reference")
+    table = []
+    for key in sorted(r.get((*s, "table")) or {}):
+        path = (*s, "table", key)
+        try:
+            note = tuning.parse_note(key)
+        except tuning.NoteError as exc:
+            r.problems.append(Problem(r.doc.key_at(path), f"{_name(s)}.table: {exc.message}",
+                                      exc.hint, "units"))
+            continue
+        value = r.get(path)
+        if isinstance(value, str) and "x" in value.lower():
+            size = r.convert(path, lambda v: units.parse_size2(v, r.units), None)
+            if size:
+                table.append((note, size[0], size[1]))
+        else:
+            d = r.length(path)
+            if d:
+                table.append((note, d, None))
+    return model.Scale(
+        reference_note=r.note((*ref, "note")),
+        diameter_m=r.length((*ref, "diameter")),
+        width_m=r.length((*ref, "width")),
+        depth_m=r.length((*ref, "depth")),
+        halving_interval=float(r.get((*s, "halving_interval")) or 16.0),
+        table=tuple(sorted(table)),
+    )
+
+
+def _rank(r: _Reader, i: int) -> model.Rank:
+    base: Path = ("ranks", i)
+    notes = _notes(r, (*base, "notes"))
+    _check_duplicates(r, (*base, "notes"), notes)
+    return model.Rank(
+        id=str(r.get((*base, "id"))),
+        family=str(r.get((*base, "family"))),
+        construction=str(r.get((*base, "construction"))),
+        stock=str(r.get((*base, "stock"))),
+        notes=notes,
+        harmonic=int(r.get((*base, "harmonic")) or 1),
+        scale=_scale(r, base),
+        mouth=model.Mouth(r.ratio((*base, "mouth", "width")), r.ratio((*base, "mouth", "cutup")),
+                          r.length((*base, "mouth", "lip_thickness"))),
+        foot=model.Foot(r.length((*base, "foot", "length")), r.ratio((*base, "foot", "toe"))),
+        stopper=model.Stopper(r.length((*base, "stopper", "length")),
+                              r.length((*base, "stopper", "travel"))),
+        end_correction=_end_correction(r, base),
+        overrides=_overrides(r, base),
+        measured=_measured(r, base),
+        position=r.at(base),
+        where=model._frozen(r.where(base, "id", "family", "construction", "stock", "notes",
+                                    "harmonic", "scale", "scale.reference", "mouth",
+                                    "mouth.width", "mouth.cutup", "foot", "stopper",
+                                    "end_correction", "measured")),
+    )
+
+
+def _tube_set(r: _Reader, i: int) -> model.TubeSet:
+    base: Path = ("tube_sets", i)
+    notes = _notes(r, (*base, "notes"))
+    _check_duplicates(r, (*base, "notes"), notes)
+    raw_stock = r.get((*base, "stock"))
+    stock = tuple(raw_stock) if isinstance(raw_stock, list) else (str(raw_stock),)
+    holder = None
+    h = (*base, "holder")
+    if r.get(h) is not None:
+        default = model.Holder(stock="")
+        spacing = r.length((*h, "spacing"), positive=False)
+        margin = r.length((*h, "margin"), positive=False)
+        clearance = r.length((*h, "clearance"), positive=False)
+        holder = model.Holder(
+            stock=str(r.get((*h, "stock"))),
+            spacing_m=default.spacing_m if spacing is None else spacing,
+            margin_m=default.margin_m if margin is None else margin,
+            clearance_m=default.clearance_m if clearance is None else clearance,
+        )
+    return model.TubeSet(
+        id=str(r.get((*base, "id"))),
+        family=str(r.get((*base, "family"))),
+        stock=stock,
+        notes=notes,
+        harmonic=int(r.get((*base, "harmonic")) or 1),
+        end_correction=_end_correction(r, base),
+        plug_length_m=r.length((*base, "plug", "length")),
+        holder=holder,
+        overrides=_overrides(r, base),
+        measured=_measured(r, base),
+        position=r.at(base),
+        where=model._frozen(r.where(base, "id", "family", "stock", "notes", "harmonic",
+                                    "holder", "holder.stock", "plug", "end_correction",
+                                    "measured")),
+    )
+
+
+def _flute(r: _Reader, i: int) -> model.Flute:
+    base: Path = ("flutes", i)
+    h = (*base, "head")
+    head = model.Head(
+        window_length_m=r.length((*h, "window", "length")),
+        window_width_m=r.length((*h, "window", "width")),
+        window_from_top_m=r.length((*h, "window", "from_top")),
+        duct_height_m=r.length((*h, "duct", "height")),
+        duct_width_m=r.length((*h, "duct", "width")),
+        embouchure_diameter_m=r.length((*h, "embouchure", "diameter")),
+        embouchure_from_top_m=r.length((*h, "embouchure", "from_top")),
+        lip_cover=r.ratio((*h, "embouchure", "lip_cover")),
+        cork_m=r.length((*h, "cork")),
+    )
+    raw_holes = r.get((*base, "holes"))
+    holes = []
+    if isinstance(raw_holes, int):
+        for _ in range(raw_holes):
+            holes.append(model.HoleSpec(None, None, None, 0.0, 0.0, r.at((*base, "holes"))))
+    else:
+        for j, _ in enumerate(raw_holes or []):
+            p = (*base, "holes", j)
+            label = r.get((*p, "label"))
+            holes.append(model.HoleSpec(
+                label=str(label) if label is not None else None,
+                position_m=r.length((*p, "position")),
+                diameter_m=r.length((*p, "diameter")),
+                angle_deg=r.convert((*p, "angle"), units.parse_angle, 0.0),
+                undercut_m=r.length((*p, "undercut"), positive=False) or 0.0,
+                position=r.at(p)))
+    fingerings = []
+    for j, _ in enumerate(r.get((*base, "fingerings")) or []):
+        p = (*base, "fingerings", j)
+        pattern = "".join(ch for ch in str(r.get((*p, "closed"))) if ch in "xXoO")
+        if len(pattern) != len(holes):
+            r.fail((*p, "closed"), f"{_name((*p, 'closed'))}: `{r.get((*p, 'closed'))}` gives "
+                   f"{len(pattern)} holes, but the flute has {len(holes)}",
+                   "write one `x` (closed) or `o` (open) per hole, from the head down")
+        note = r.note((*p, "note"))
+        if note is None:
+            continue
+        fingerings.append(model.FingeringSpec(
+            note=note, closed=tuple(ch in "xX" for ch in pattern),
+            frequency_hz=r.frequency((*p, "frequency")),
+            second_register=r.note((*p, "second_register")), position=r.at(p)))
+    c = (*base, "constraints")
+    return model.Flute(
+        id=str(r.get((*base, "id"))),
+        family=str(r.get((*base, "family"))),
+        stock=str(r.get((*base, "stock"))),
+        head=head,
+        holes=tuple(holes),
+        fingerings=tuple(fingerings),
+        constraints=model.Constraints(
+            min_diameter_m=r.length((*c, "min_diameter")),
+            max_diameter_m=r.length((*c, "max_diameter")),
+            max_ratio=r.ratio((*c, "max_ratio")),
+            min_web_m=r.length((*c, "min_web"), positive=False),
+            max_span_m=r.length((*c, "max_span"))),
+        length_m=r.length((*base, "length")),
+        losses=r.get((*base, "losses")) or "keefe",
+        radiation=r.get((*base, "radiation")) or "frequency-dependent",
+        environment=_environment(r, (*base, "environment")),
+        measured=_measured(r, base),
+        position=r.at(base),
+        where=model._frozen(r.where(base, "id", "family", "stock", "head", "holes",
+                                    "fingerings", "constraints", "length", "measured")),
+    )
+
+
+def _check_references(r: _Reader, spec: model.Spec) -> None:
+    """Stock names must exist and be of the right kind; group ids must be unique."""
+    by_name = {s.name: s for s in spec.stock}
+
+    def need(name: str, kinds: tuple[str, ...], path: Path, what: str) -> None:
+        item = by_name.get(name)
+        if item is None:
+            known = ", ".join(f"`{n}`" for n in sorted(by_name)) or "none yet"
+            r.fail(path, f"{what}: no stock named `{name}`",
+                   f"add it under `stock:` or use one of: {known}")
+        elif item.kind not in kinds:
+            r.fail(path, f"{what}: stock `{name}` is a {item.kind}, but this needs "
+                   + " or ".join(f"a {k}" for k in kinds),
+                   "pick stock of the right kind")
+
+    for i, rank in enumerate(spec.ranks):
+        kinds = ("sheet",) if rank.construction == "rolled-sheet" else ("board", "sheet")
+        need(rank.stock, kinds, ("ranks", i, "stock"), f"rank `{rank.id}`")
+    for i, tubes in enumerate(spec.tube_sets):
+        for j, name in enumerate(tubes.stock):
+            path: Path = ("tube_sets", i, "stock") + ((j,) if len(tubes.stock) > 1 else ())
+            need(name, ("tube",), path, f"tube set `{tubes.id}`")
+        if tubes.holder is not None:
+            need(tubes.holder.stock, ("sheet", "board"), ("tube_sets", i, "holder", "stock"),
+                 f"holder of `{tubes.id}`")
+        for j, o in enumerate(tubes.overrides):
+            if o.stock is not None:
+                need(o.stock, ("tube",), ("tube_sets", i, "overrides", j, "stock"),
+                     f"tube set `{tubes.id}`")
+    for i, flute in enumerate(spec.flutes):
+        need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
+    seen: dict[str, Path] = {}
+    groups: list[tuple[str, Path]] = (
+        [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]
+        + [(g.id, ("tube_sets", i, "id")) for i, g in enumerate(spec.tube_sets)]
+        + [(g.id, ("flutes", i, "id")) for i, g in enumerate(spec.flutes)])
+    for ident, path in groups:
+        if ident in seen:
+            r.fail(path, f"the id `{ident}` is used twice", "give each rank, set or flute its "
+                   "own id: it names the output files")
+        seen[ident] = path
+    if not groups:
+        r.problems.append(Problem(r.at(()), "the spec has no pipes",
+                                  "add `ranks:`, `tube_sets:` or `flutes:`", "units"))
