@@ -9,9 +9,8 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any, TypeVar
 
-from compiler.acoustics import tuning
 from compiler.errors import Position, Problem, UnitError
-from compiler.spec import model, units
+from compiler.spec import model, notes, units
 from compiler.spec.loader import Document, Path
 
 T = TypeVar("T")
@@ -47,7 +46,7 @@ class _Reader:
             return default
         try:
             return parse(value)
-        except (units.UnitParseError, tuning.NoteError) as exc:
+        except (units.UnitParseError, notes.NoteError) as exc:
             self.fail(path, f"{_name(path)}: {exc.message}", exc.hint)
             return default
 
@@ -65,7 +64,7 @@ class _Reader:
         return self.convert(path, units.parse_temperature, None)
 
     def note(self, path: Path) -> int | None:
-        return self.convert(path, tuning.parse_note, None)
+        return self.convert(path, notes.parse_note, None)
 
     def at(self, path: Path) -> Position:
         return self.doc.at(path)
@@ -124,7 +123,7 @@ def _environment(r: _Reader, base: Path) -> model.Environment:
 
 def _tuning(r: _Reader) -> model.Tuning:
     base: Path = ("tuning",)
-    tonic_pc = r.convert((*base, "tonic"), lambda t: tuning.parse_note(f"{t}4") % 12, 0)
+    tonic_pc = r.convert((*base, "tonic"), lambda t: notes.parse_note(f"{t}4") % 12, 0)
     custom = None
     cents = r.get((*base, "cents"))
     if isinstance(cents, dict):
@@ -135,9 +134,9 @@ def _tuning(r: _Reader) -> model.Tuning:
     for key in sorted(r.get((*base, "offsets")) or {}):
         path = (*base, "offsets", key)
         try:
-            note = tuning.parse_note(key)
-        except tuning.NoteError as exc:
-            r.problems.append(Problem(r.doc.key_at(path), f"tuning.offsets: {exc.message}",
+            note = notes.parse_note(key)
+        except notes.NoteError as exc:
+            r.problems.append(Problem(r.doc.key_at(path), f"notes.offsets: {exc.message}",
                                       exc.hint, "units"))
             continue
         offsets.append((note, r.convert(path, units.parse_cents, 0.0)))
@@ -251,34 +250,30 @@ def _notes(r: _Reader, path: Path) -> tuple[int, ...]:
     try:
         if isinstance(raw, str):
             if ".." in raw:
-                return tuple(tuning.parse_note_range(raw))
-            return (tuning.parse_note(raw),)
+                return tuple(notes.parse_note_range(raw))
+            return (notes.parse_note(raw),)
         if isinstance(raw, list):
-            notes = []
+            found = []
             for i, _ in enumerate(raw):
                 note = r.note((*path, i))
                 if note is not None:
-                    notes.append(note)
-            return tuple(notes)
+                    found.append(note)
+            return tuple(found)
         if isinstance(raw, dict):
             tonic = r.note((*path, "tonic"))
             if tonic is None:
                 return ()
-            notes = tuning.scale_notes(tonic, raw["scale"], int(raw["count"]))
-            if notes and notes[-1] > 127:
-                r.fail(path, f"{_name(path)}: the scale runs past G9", "use fewer notes")
-                return ()
-            return tuple(notes)
-    except tuning.NoteError as exc:
+            return tuple(notes.scale_notes(tonic, raw["scale"], int(raw["count"])))
+    except notes.NoteError as exc:
         r.fail(path, f"{_name(path)}: {exc.message}", exc.hint)
     return ()
 
 
-def _check_duplicates(r: _Reader, path: Path, notes: tuple[int, ...]) -> None:
+def _check_duplicates(r: _Reader, path: Path, midis: tuple[int, ...]) -> None:
     seen = set()
-    for note in notes:
+    for note in midis:
         if note in seen:
-            r.fail(path, f"{_name(path)}: the note {tuning.note_name(note)} is listed twice",
+            r.fail(path, f"{_name(path)}: the note {notes.note_name(note)} is listed twice",
                    "each note makes one pipe; remove the repeat")
             return
         seen.add(note)
@@ -326,8 +321,8 @@ def _scale(r: _Reader, base: Path) -> model.Scale:
     for key in sorted(r.get((*s, "table")) or {}):
         path = (*s, "table", key)
         try:
-            note = tuning.parse_note(key)
-        except tuning.NoteError as exc:
+            note = notes.parse_note(key)
+        except notes.NoteError as exc:
             r.problems.append(Problem(r.doc.key_at(path), f"{_name(s)}.table: {exc.message}",
                                       exc.hint, "units"))
             continue
@@ -352,14 +347,14 @@ def _scale(r: _Reader, base: Path) -> model.Scale:
 
 def _rank(r: _Reader, i: int) -> model.Rank:
     base: Path = ("ranks", i)
-    notes = _notes(r, (*base, "notes"))
-    _check_duplicates(r, (*base, "notes"), notes)
+    midis = _notes(r, (*base, "notes"))
+    _check_duplicates(r, (*base, "notes"), midis)
     return model.Rank(
         id=str(r.get((*base, "id"))),
         family=str(r.get((*base, "family"))),
         construction=str(r.get((*base, "construction"))),
         stock=str(r.get((*base, "stock"))),
-        notes=notes,
+        notes=midis,
         harmonic=int(r.get((*base, "harmonic")) or 1),
         scale=_scale(r, base),
         mouth=model.Mouth(r.ratio((*base, "mouth", "width")), r.ratio((*base, "mouth", "cutup")),
@@ -380,8 +375,8 @@ def _rank(r: _Reader, i: int) -> model.Rank:
 
 def _tube_set(r: _Reader, i: int) -> model.TubeSet:
     base: Path = ("tube_sets", i)
-    notes = _notes(r, (*base, "notes"))
-    _check_duplicates(r, (*base, "notes"), notes)
+    midis = _notes(r, (*base, "notes"))
+    _check_duplicates(r, (*base, "notes"), midis)
     raw_stock = r.get((*base, "stock"))
     stock = tuple(raw_stock) if isinstance(raw_stock, list) else (str(raw_stock),)
     holder = None
@@ -401,7 +396,7 @@ def _tube_set(r: _Reader, i: int) -> model.TubeSet:
         id=str(r.get((*base, "id"))),
         family=str(r.get((*base, "family"))),
         stock=stock,
-        notes=notes,
+        notes=midis,
         harmonic=int(r.get((*base, "harmonic")) or 1),
         end_correction=_end_correction(r, base),
         plug_length_m=r.length((*base, "plug", "length")),

@@ -395,10 +395,15 @@ def parse_size2(value: object, default_unit: str | None = "mm") -> tuple[float, 
             "write a size as `1200 x 600 mm`, `48 x 24 in` or `1200 mm x 600 mm`",
         )
     written = [_split(side, _LENGTH)[1] for side in sides]
-    shared = written[1] or written[0] or default_unit
+    shared = written[1] or written[0]
+    # A side without a unit is read with the other side's unit, so errors quote that unit.
+    first, second = (
+        side if unit or not shared else f"{side} {shared}"
+        for side, unit in zip(sides, written, strict=True)
+    )
     return (
-        _checked(sides[0], _LENGTH, shared, _positive, _POSITIVE),
-        _checked(sides[1], _LENGTH, shared, _positive, _POSITIVE),
+        _checked(first, _LENGTH, default_unit, _positive, _POSITIVE),
+        _checked(second, _LENGTH, default_unit, _positive, _POSITIVE),
     )
 
 

@@ -105,7 +105,7 @@ def _describe(error: ValidationError, document: Document) -> list[Problem]:
                                     f"unknown key `{key}` in {name}", tip, "schema"))
         return problems
     if kind == "required":
-        missing = error.message.split("'")[1] if "'" in error.message else str(error.validator_value)
+        missing = error.message.split("'")[1] if "'" in error.message else "?"
         sub = schema.get("properties", {}).get(missing, {})
         tip = _short(sub.get("description", "")) if isinstance(sub, dict) else ""
         return [Problem(where, f"{name} is missing the key `{missing}`", tip, "schema")]

@@ -16,21 +16,23 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from compiler.acoustics.tuning import (
-    PITCH_CLASSES,
     PYTHAGOREAN_COMMA_CENTS,
-    SCALE_PATTERNS,
     SYNTONIC_COMMA_CENTS,
     TEMPERAMENTS,
-    NoteError,
     cents,
     nearest_note,
     note_frequencies,
     note_frequency,
+    temperament_cents,
+)
+from compiler.spec.notes import (
+    PITCH_CLASSES,
+    SCALE_PATTERNS,
+    NoteError,
     note_name,
     parse_note,
     parse_note_range,
     scale_notes,
-    temperament_cents,
 )
 
 # --- 12-TET and the reference pitch ---------------------------------------------------------

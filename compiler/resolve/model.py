@@ -1,0 +1,271 @@
+"""The resolved model (the IR): what every backend reads, and nothing else.
+
+Frozen dataclasses, SI units (metres, Hz, K converted to °C for display only where the
+field name says so). Lengths along a pipe use explicit datums, named in each field:
+
+- Flue pipes (``open-flue``, ``stopped-flue``): the *speaking length* runs from the lower
+  lip (the languid's level, the top of the foot or block) to the open top, or to the
+  underside of the stopper. The body is cut ``cut_length_m`` long (speaking length plus the
+  tuning allowance; for wood, plus the block below the mouth and the stopper above).
+- Tubes (``stopped-tube``, ``open-tube``): the speaking length is the air column; a stopped
+  tube's cut length adds the plug.
+- Flutes: hole positions are given from the top end (the head end) and from the bottom end.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from compiler.errors import Position
+
+
+@dataclass(frozen=True)
+class AirReport:
+    """The air a group was resolved for; ``defaults`` names the values not given in the spec."""
+
+    preset: str
+    """``room`` (organ pipes, tubes) or ``breath`` (flutes): where the defaults came from."""
+    temperature_c: float
+    humidity_percent: float
+    pressure_pa: float
+    co2_ppm: float
+    sound_speed_model: str
+    speed_m_s: float
+    density_kg_m3: float
+    defaults: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class TuningReport:
+    a4_hz: float
+    temperament: str
+    tonic: str
+
+
+@dataclass(frozen=True)
+class StockItem:
+    name: str
+    kind: str
+    """``tube``, ``sheet`` or ``board``."""
+    material: str
+    thickness_m: float
+    outside_diameter_m: float | None
+    inside_diameter_m: float | None
+    length_m: float | None
+    width_m: float | None
+
+
+@dataclass(frozen=True)
+class FabricationReport:
+    sheet_length_m: float
+    sheet_width_m: float
+    kerf_m: float
+    spacing_m: float
+    precision_m: float
+    seam_allowance_m: float
+    tuning_allowance: str
+    """As written: ``3 %`` or ``10 mm`` (shown on the build sheet)."""
+    paper: str
+    dxf_version: str
+    part_files: bool
+    units: str
+    """The spec's length unit; the PDF shows inches beside mm when it is ``in`` or ``ft``."""
+
+
+@dataclass(frozen=True)
+class Calibration:
+    calibrated: bool
+    parameter: str
+    """What was fitted, in words (e.g. ``end correction scale``)."""
+    value: float
+    residuals_cents: tuple[tuple[str, float], ...]
+    """(note, measured minus predicted in cents after the fit)."""
+    rms_cents: float
+
+
+@dataclass(frozen=True)
+class Mouth:
+    width_m: float
+    cutup_m: float
+    lip_thickness_m: float
+    width_fraction: float
+    cutup_fraction: float
+    correction_m: float
+    """Mouth end correction, as an extra acoustic length."""
+
+
+@dataclass(frozen=True)
+class Foot:
+    """Conical foot of a metal flue pipe: from the toe (small end) to the languid."""
+
+    length_m: float
+    top_diameter_m: float
+    """Inside diameter at the languid (= the body's)."""
+    toe_diameter_m: float
+    """Inside diameter at the toe tip."""
+    toe_hole_m: float
+    """Diameter of the toe hole that admits the wind."""
+
+
+@dataclass(frozen=True)
+class Stopper:
+    """Stopper of a stopped wooden pipe, or the plug of a stopped tube."""
+
+    position_m: float
+    """From the lower lip (tube: from the open top) to the stopper's face inside the pipe."""
+    length_m: float
+    travel_m: float
+    """Tuning range each way from ``position_m``."""
+
+
+@dataclass(frozen=True)
+class Block:
+    """Wooden flue pipe: the block below the mouth and the cap forming the windway."""
+
+    length_m: float
+    flue_m: float
+    """Windway (flue) height between block and cap."""
+
+
+@dataclass(frozen=True)
+class Head:
+    """The exciting end of a flute."""
+
+    kind: str
+    """``duct`` (window and labium) or ``embouchure``."""
+    window_length_m: float | None
+    window_width_m: float | None
+    duct_height_m: float | None
+    labium_from_top_m: float | None
+    """Duct flute: from the top end to the labium edge (the block fills the tube above it)."""
+    embouchure_diameter_m: float | None
+    embouchure_from_top_m: float | None
+    cork_m: float | None
+    """Side-blown: from the embouchure centre up to the cork."""
+
+
+@dataclass(frozen=True)
+class Hole:
+    number: int
+    """1 is nearest the head."""
+    label: str
+    position_from_top_m: float
+    position_from_bottom_m: float
+    diameter_m: float
+    angle_deg: float
+    chimney_m: float
+    undercut_m: float
+    fixed: bool
+    """True when the spec fixed both position and diameter."""
+
+
+@dataclass(frozen=True)
+class Fingering:
+    note: str
+    closed: tuple[bool, ...]
+    register: int
+    target_hz: float
+    predicted_hz: float
+    error_cents: float
+
+
+@dataclass(frozen=True)
+class Curve:
+    """Samples for a plot (input admittance magnitude of one fingering, for example)."""
+
+    label: str
+    frequencies_hz: tuple[float, ...]
+    values: tuple[float, ...]
+
+
+@dataclass(frozen=True)
+class Holder:
+    """Holder plate for a tube set."""
+
+    stock: str
+    material: str
+    thickness_m: float
+    spacing_m: float
+    margin_m: float
+    clearance_m: float
+
+
+@dataclass(frozen=True)
+class Pipe:
+    """One pipe, tube or flute, as it will be cut, with its predicted pitch."""
+
+    id: str
+    group: str
+    family: str
+    construction: str
+    """``rolled-sheet``, ``boards`` or ``stock-tube``."""
+    note: str
+    harmonic: int
+    stock: str
+    material: str
+    target_hz: float
+    predicted_hz: float
+    error_cents: float
+    harmonics_hz: tuple[float, ...]
+    cents_per_mm: float
+    """Pitch change for 1 mm more speaking length (negative: longer is flatter)."""
+    cents_per_c: float
+    """Pitch change for 1 °C warmer air."""
+    section: str
+    """``round`` or ``rect``."""
+    inside_diameter_m: float | None
+    outside_diameter_m: float | None
+    inside_width_m: float | None
+    inside_depth_m: float | None
+    wall_m: float
+    acoustic_length_m: float
+    end_correction_m: float
+    speaking_length_m: float
+    cut_length_m: float
+    mouth: Mouth | None
+    foot: Foot | None
+    block: Block | None
+    stopper: Stopper | None
+    head: Head | None
+    holes: tuple[Hole, ...]
+    fingerings: tuple[Fingering, ...]
+    curves: tuple[Curve, ...]
+    source: Position
+
+
+@dataclass(frozen=True)
+class Group:
+    """A rank, a tube set or a flute, with what applies to all of its pipes."""
+
+    id: str
+    kind: str
+    """``rank``, ``tube-set`` or ``flute``."""
+    family: str
+    construction: str
+    air: AirReport
+    end_correction_model: str
+    calibration: Calibration
+    holder: Holder | None
+    pipe_ids: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class Note:
+    """A warning with its spec position (``--strict`` turns them into errors)."""
+
+    position: Position
+    message: str
+
+
+@dataclass(frozen=True)
+class Resolved:
+    instrument: str
+    slug: str
+    spec_file: str
+    spec_sha256: str
+    tuning: TuningReport
+    fabrication: FabricationReport
+    stock: tuple[StockItem, ...]
+    groups: tuple[Group, ...]
+    pipes: tuple[Pipe, ...]
+    warnings: tuple[Note, ...]
