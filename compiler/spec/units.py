@@ -256,7 +256,9 @@ def _lookup(unit: str, kind: _Kind, shown: str) -> tuple[Fraction, Fraction]:
             f"{kind.hint} (units: {valid})",
         )
     if any(key in d.units for d in _DIMENSIONS):
-        raise UnitParseError(f'{shown}: "{unit}" is not {_a(kind.noun)} unit', kind.hint)
+        raise UnitParseError(
+            f'{shown}: "{unit}" is not {_a(kind.noun)} unit', f"{kind.hint} (units: {valid})"
+        )
     near = difflib.get_close_matches(key, list(kind.units), n=1, cutoff=0.6)
     guess = f'did you mean "{near[0]}"? ' if near else ""
     raise UnitParseError(

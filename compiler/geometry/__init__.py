@@ -1,0 +1,1 @@
+"""Stage 4: resolved model -> parts in millimetres (flat patterns, templates, nesting)."""

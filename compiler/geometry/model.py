@@ -1,0 +1,118 @@
+"""Parts: 2D outlines in millimetres, each path tagged with the operation that makes it.
+
+The geometry stage turns the resolved model into ``Parts``; the DXF and PDF backends
+read them (and the resolved model) and nothing else. Coordinates are millimetres, x to
+the right, y up, each part's own origin at the lower-left of its bounding box.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+OPERATIONS = ("cut-inner", "cut-outer", "mark", "engrave")
+"""``cut-inner``: openings, cut first; ``cut-outer``: the part's outline; ``mark``: score or
+centre lines, not through; ``engrave``: labels."""
+
+Point = tuple[float, float]
+
+
+@dataclass(frozen=True)
+class Polyline:
+    """A path of straight segments and arcs (a DXF LWPOLYLINE).
+
+    ``bulges[i]`` bends the segment from vertex i to vertex i+1 (DXF convention:
+    tan(arc angle / 4), positive counter-clockwise, 0 straight). Cut paths are closed.
+    """
+
+    operation: str
+    points: tuple[Point, ...]
+    closed: bool
+    bulges: tuple[float, ...] = ()
+
+
+@dataclass(frozen=True)
+class Circle:
+    operation: str
+    center: Point
+    radius: float
+
+
+@dataclass(frozen=True)
+class Text:
+    operation: str
+    insert: Point
+    height: float
+    text: str
+    rotation_deg: float = 0.0
+
+
+Entity = Polyline | Circle | Text
+
+
+@dataclass(frozen=True)
+class Part:
+    """One physical part (or a paper template) with its outline and features."""
+
+    id: str
+    """Unique and safe as a file name: ``<pipe id>-<name>``."""
+    pipe_id: str | None
+    group: str
+    name: str
+    """What it is in the maker's words: ``body``, ``foot``, ``languid``, ``front``, ..."""
+    material: str
+    stock: str
+    thickness_mm: float
+    kind: str
+    """``sheet`` or ``board`` (nested and cut), ``template`` (printed, not cut),
+    ``tube`` (a length cut from stock tube: no outline to nest)."""
+    width_mm: float
+    height_mm: float
+    entities: tuple[Entity, ...]
+    grain_along_x: bool = False
+    """Board parts: the grain runs along x and must stay so when nested."""
+    quantity: int = 1
+    note: str = ""
+    """A line for the cut list (e.g. ``roll to 92.5 mm inside``)."""
+
+
+@dataclass(frozen=True)
+class Placement:
+    part_id: str
+    x_mm: float
+    y_mm: float
+    rotated: bool
+    """Turned 90° counter-clockwise about its origin, then moved."""
+
+
+@dataclass(frozen=True)
+class Sheet:
+    id: str
+    stock: str
+    material: str
+    thickness_mm: float
+    length_mm: float
+    width_mm: float
+    placements: tuple[Placement, ...]
+    utilisation: float
+    """Part area over sheet area, 0..1."""
+
+
+@dataclass(frozen=True)
+class TubeCut:
+    """A length cut from stock tube, for the cut list."""
+
+    pipe_id: str
+    stock: str
+    material: str
+    length_mm: float
+    outside_diameter_mm: float
+
+
+@dataclass(frozen=True)
+class Parts:
+    parts: tuple[Part, ...]
+    sheets: tuple[Sheet, ...]
+    tube_cuts: tuple[TubeCut, ...]
+
+    def part(self, part_id: str) -> Part:
+        return next(p for p in self.parts if p.id == part_id)
