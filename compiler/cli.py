@@ -59,6 +59,30 @@ def cmd_check(args: argparse.Namespace) -> int:
     return EXIT_SPEC if everything else EXIT_OK
 
 
+def _load(path: str, strict: bool = False):  # type: ignore[no-untyped-def]
+    """Load and resolve one spec (raises SpecError); warnings are errors when strict."""
+    from compiler.errors import Problem as P
+    from compiler.resolve.resolver import resolve
+    from compiler.spec import load_spec
+
+    resolved = resolve(load_spec(_read(path), path))
+    if strict and resolved.warnings:
+        raise SpecError([P(n.position, n.message, "warnings are errors with --strict")
+                         for n in resolved.warnings])
+    return resolved
+
+
+def cmd_resolve(args: argparse.Namespace) -> int:
+    from compiler.emit import resolved_json, table
+
+    resolved = _load(args.spec, args.strict)
+    if args.json:
+        sys.stdout.write(resolved_json.dumps(resolved))
+    else:
+        sys.stdout.write(table.render(resolved))
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="boresmith",
@@ -72,6 +96,14 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("specs", nargs="+", metavar="SPEC")
     check.add_argument("--json", action="store_true", help="print the problems as JSON")
     check.set_defaults(run=cmd_check)
+
+    resolve = sub.add_parser("resolve", help="resolve a spec and print every pipe's lengths, "
+                             "mouth, holes and predicted pitch")
+    resolve.add_argument("spec", metavar="SPEC")
+    resolve.add_argument("--json", action="store_true",
+                         help="print the resolved model as JSON (as in resolved.json)")
+    resolve.add_argument("--strict", action="store_true", help="treat warnings as errors")
+    resolve.set_defaults(run=cmd_resolve)
     return parser
 
 

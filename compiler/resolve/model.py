@@ -73,13 +73,19 @@ class FabricationReport:
 
 
 @dataclass(frozen=True)
+class Residual:
+    note: str
+    error_cents: float
+    """Measured minus predicted, after the fit."""
+
+
+@dataclass(frozen=True)
 class Calibration:
     calibrated: bool
     parameter: str
     """What was fitted, in words (e.g. ``end correction scale``)."""
     value: float
-    residuals_cents: tuple[tuple[str, float], ...]
-    """(note, measured minus predicted in cents after the fit)."""
+    residuals: tuple[Residual, ...]
     rms_cents: float
 
 

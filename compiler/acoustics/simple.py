@@ -1,0 +1,95 @@
+"""Closed-form pipe acoustics: resonance of a plain pipe with end corrections.
+
+Used for pipes without side holes (flue ranks, tube sets) and as the first guess of the
+hole solver. SI units throughout. Lossless plane-wave model: the air column of effective
+length L_eff resonates at
+
+    open at both ends (open flue pipe, open tube):   f_n = n · c / (2 · L_eff),  n = 1, 2, 3 ...
+    closed at one end (stopped pipe, stopped tube):  f_n = n · c / (4 · L_eff),  n = 1, 3, 5 ...
+
+(Fletcher & Rossing 1998, The Physics of Musical Instruments, §8.2 and §17), where
+L_eff = physical length + the end corrections of the open ends (and of the mouth).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from compiler.acoustics import radiation
+
+MOUTH_ALPHA = 0.9
+"""Rayleigh orifice coefficient of the mouth correction (REFERENCES §7a: 0.8-1.0, a flanged
+orifice gives 0.96); a derived approximation, to be calibrated against measured pipes."""
+
+
+@dataclass(frozen=True)
+class PipeAcoustics:
+    """What the closed form needs to know about one plain pipe."""
+
+    stopped: bool
+    """Closed at the far end (only odd harmonics)."""
+    open_ends: int
+    """Open ends that radiate and need an end correction: 2 for an open tube, 1 for an open
+    flue pipe (its top; the mouth has its own correction) or a stopped tube, 0 for a
+    stopped flue pipe."""
+    radius_m: float
+    """Radius used by the end-correction model (an equivalent radius for square pipes)."""
+    end_model: str
+    k: float = 0.3
+    mouth_m: float = 0.0
+    """Mouth end correction (flue pipes), see ``mouth_correction``."""
+    scale: float = 1.0
+    """Calibration factor applied to all end corrections together."""
+
+
+def acoustic_length(frequency_hz: float, speed_m_s: float, harmonic: int, stopped: bool) -> float:
+    """Effective length whose ``harmonic`` sounds at ``frequency_hz``: n·c/(2f) or n·c/(4f)."""
+    return harmonic * speed_m_s / ((4.0 if stopped else 2.0) * frequency_hz)
+
+
+def mouth_correction(pipe_area_m2: float, mouth_area_m2: float, lip_thickness_m: float,
+                     alpha: float = MOUTH_ALPHA) -> float:
+    """End correction of a flue mouth, as extra length of the pipe (m).
+
+    Δ_m = (S / A_m) · (ℓ + α·√A_m): the mouth is an orifice of area A_m = W·H in a wall of
+    thickness ℓ, with Rayleigh conductivity K = A_m / (ℓ + α√A_m), referred to the pipe area S
+    (Δ = S/K). Derived approximation of REFERENCES §7a (Rayleigh 1896, Theory of Sound §306-307;
+    Fletcher & Rossing 1998 ch. 17 treat the mouth the same way).
+    """
+    return pipe_area_m2 / mouth_area_m2 * (lip_thickness_m + alpha * math.sqrt(mouth_area_m2))
+
+
+def end_corrections(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) -> float:
+    """Total correction (m) added to the physical length: open ends plus mouth, scaled."""
+    ka = 2.0 * math.pi * frequency_hz * pipe.radius_m / speed_m_s
+    per_end = float(radiation.end_correction(pipe.end_model, pipe.radius_m, k=pipe.k, ka=ka))
+    return pipe.scale * (pipe.open_ends * per_end + pipe.mouth_m)
+
+
+def solve_length(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float,
+                 harmonic: int) -> tuple[float, float]:
+    """Physical length (m) sounding ``frequency_hz`` on ``harmonic``, and the correction used."""
+    effective = acoustic_length(frequency_hz, speed_m_s, harmonic, pipe.stopped)
+    correction = end_corrections(pipe, frequency_hz, speed_m_s)
+    return effective - correction, correction
+
+
+def predict_frequency(pipe: PipeAcoustics, length_m: float, speed_m_s: float,
+                      harmonic: int) -> float:
+    """Frequency (Hz) of ``harmonic`` for a physical length; fixed point when Δ depends on f."""
+    divisor = 4.0 if pipe.stopped else 2.0
+    frequency = harmonic * speed_m_s / (divisor * length_m)
+    for _ in range(60):
+        effective = length_m + end_corrections(pipe, frequency, speed_m_s)
+        updated = harmonic * speed_m_s / (divisor * effective)
+        if abs(updated - frequency) < 1e-12 * frequency:
+            return updated
+        frequency = updated
+    return frequency
+
+
+def harmonic_numbers(stopped: bool, count: int) -> tuple[int, ...]:
+    """The resonances a pipe has: 1, 2, 3 ... open; 1, 3, 5 ... stopped."""
+    return tuple(2 * i + 1 for i in range(count)) if stopped else tuple(range(1, count + 1))
+

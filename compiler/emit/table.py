@@ -1,0 +1,77 @@
+"""Plain-text tables of the resolved model, for ``boresmith resolve`` on a terminal."""
+
+from __future__ import annotations
+
+from compiler.resolve.model import Group, Pipe, Resolved
+
+
+def _mm(metres: float | None) -> str:
+    return "" if metres is None else f"{metres * 1000:.1f}"
+
+
+def _section(pipe: Pipe) -> str:
+    if pipe.section == "round":
+        return f"ø{_mm(pipe.inside_diameter_m)}"
+    return f"{_mm(pipe.inside_width_m)}×{_mm(pipe.inside_depth_m)}"
+
+
+def _align(rows: list[list[str]], right: set[int]) -> list[str]:
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    lines = []
+    for row in rows:
+        cells = [cell.rjust(w) if i in right else cell.ljust(w)
+                 for i, (cell, w) in enumerate(zip(row, widths, strict=True))]
+        lines.append("  ".join(cells).rstrip())
+    return lines
+
+
+def _group_table(group: Group, pipes: list[Pipe]) -> list[str]:
+    air = group.air
+    lines = [f"{group.id} ({group.family}, {group.construction}): "
+             f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
+             f"c = {air.speed_m_s:.2f} m/s ({air.sound_speed_model}); "
+             + ("calibrated, "
+                f"{group.calibration.parameter} {group.calibration.value:.3f}, "
+                f"rms {group.calibration.rms_cents:.2f} cents"
+                if group.calibration.calibrated else "uncalibrated")]
+    header = ["note", "target Hz", "predicted Hz", "cents", "speaking mm", "cut mm",
+              "section mm", "mouth mm", "cut-up mm", "toe mm", "stock"]
+    rows = [header]
+    for p in pipes:
+        rows.append([
+            p.note, f"{p.target_hz:.2f}", f"{p.predicted_hz:.2f}", f"{p.error_cents:+.2f}",
+            _mm(p.speaking_length_m), _mm(p.cut_length_m), _section(p),
+            _mm(p.mouth.width_m) if p.mouth else "", _mm(p.mouth.cutup_m) if p.mouth else "",
+            _mm(p.foot.toe_hole_m) if p.foot else "", p.stock])
+    lines += _align(rows, right={1, 2, 3, 4, 5, 7, 8, 9})
+    for p in pipes:
+        if p.holes:
+            lines.append("")
+            lines.append(f"{p.id}: holes (from the top end), cut length {_mm(p.cut_length_m)} mm")
+            hole_rows = [["hole", "from top mm", "from bottom mm", "diameter mm", "angle"]]
+            hole_rows += [[h.label, _mm(h.position_from_top_m), _mm(h.position_from_bottom_m),
+                           _mm(h.diameter_m), f"{h.angle_deg:g}°"] for h in p.holes]
+            lines += _align(hole_rows, right={1, 2, 3, 4})
+        if p.fingerings:
+            lines.append("")
+            f_rows = [["note", "reg", "fingering", "target Hz", "predicted Hz", "cents"]]
+            f_rows += [[f.note, str(f.register),
+                        "".join("x" if c else "o" for c in f.closed),
+                        f"{f.target_hz:.2f}", f"{f.predicted_hz:.2f}", f"{f.error_cents:+.2f}"]
+                       for f in p.fingerings]
+            lines += _align(f_rows, right={3, 4, 5})
+    return lines
+
+
+def render(resolved: Resolved) -> str:
+    """All groups, one aligned table each, then the warnings."""
+    by_id = {p.id: p for p in resolved.pipes}
+    lines = [f"{resolved.instrument} — {resolved.spec_file}",
+             f"tuning: A4 = {resolved.tuning.a4_hz:g} Hz, {resolved.tuning.temperament} "
+             f"on {resolved.tuning.tonic}"]
+    for group in resolved.groups:
+        lines.append("")
+        lines += _group_table(group, [by_id[i] for i in group.pipe_ids])
+    for note in resolved.warnings:
+        lines.append(f"{note.position}: warning: {note.message}")
+    return "\n".join(lines) + "\n"

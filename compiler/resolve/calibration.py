@@ -1,0 +1,62 @@
+"""Calibration: fit one correction factor to measured prototypes, least squares in cents.
+
+The factor scales every end correction of the group (open ends and mouth together): the
+part of the closed-form model that is least certain (REFERENCES §7a). The fit minimises
+Σ (1200·log2(f_measured / f_model(s)))² over s by golden-section search, which needs no
+derivatives and is exact enough (1e-9) for a one-parameter least-squares problem.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+from compiler.acoustics.tuning import cents
+from compiler.resolve.model import Calibration, Residual
+
+PARAMETER = "end-correction scale"
+SCALE_RANGE = (0.05, 4.0)
+
+
+@dataclass(frozen=True)
+class Observation:
+    note: str
+    measured_hz: float
+    predict: Callable[[float], float]
+    """Model frequency for this prototype as a function of the scale factor."""
+
+
+def uncalibrated() -> Calibration:
+    return Calibration(False, PARAMETER, 1.0, (), 0.0)
+
+
+def fit(observations: Sequence[Observation]) -> Calibration:
+    """Least-squares scale factor and the residuals (measured minus model) after the fit."""
+    if not observations:
+        return uncalibrated()
+
+    def cost(s: float) -> float:
+        return sum(cents(o.measured_hz, o.predict(s)) ** 2 for o in observations)
+
+    lo, hi = SCALE_RANGE
+    # A coarse scan first, so the golden section starts in the right valley.
+    grid = [lo + (hi - lo) * i / 40 for i in range(41)]
+    best = min(range(len(grid)), key=lambda i: cost(grid[i]))
+    a, b = grid[max(best - 1, 0)], grid[min(best + 1, len(grid) - 1)]
+    ratio = (math.sqrt(5) - 1) / 2
+    x1, x2 = b - ratio * (b - a), a + ratio * (b - a)
+    f1, f2 = cost(x1), cost(x2)
+    while b - a > 1e-10:
+        if f1 < f2:
+            b, x2, f2 = x2, x1, f1
+            x1 = b - ratio * (b - a)
+            f1 = cost(x1)
+        else:
+            a, x1, f1 = x1, x2, f2
+            x2 = a + ratio * (b - a)
+            f2 = cost(x2)
+    s = (a + b) / 2
+    residuals = tuple(Residual(o.note, cents(o.measured_hz, o.predict(s))) for o in observations)
+    rms = math.sqrt(sum(r.error_cents**2 for r in residuals) / len(residuals))
+    return Calibration(True, PARAMETER, s, residuals, rms)

@@ -1,0 +1,68 @@
+"""The air each group is resolved for: the family's defaults, overridden by the spec."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from compiler.acoustics import air as airmod
+from compiler.resolve.model import AirReport, Note
+from compiler.spec import model as spec_model
+
+BREATH_FAMILIES = ("duct-flute", "side-blown-flute")
+
+
+@dataclass(frozen=True)
+class GroupAir:
+    """The air state for physics, its report for the output, and any warnings."""
+
+    state: airmod.Air
+    report: AirReport
+    warnings: tuple[Note, ...]
+
+    def at_temperature(self, temperature_k: float) -> airmod.Air:
+        """The same air at another temperature (for sensitivities and calibration)."""
+        s = self.state
+        return airmod.air_state(temperature_k, s.pressure_pa, s.humidity, s.co2, s.model)
+
+
+def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
+    """Room air for organ pipes and tubes, breath for flutes; later layers override."""
+    preset = "breath" if family in BREATH_FAMILIES else "room"
+    base = dict(airmod.BREATH_AIR if preset == "breath" else airmod.ROOM_AIR)
+    values: dict[str, float | str] = {**base, "model": "cramer-1993"}
+    given: set[str] = set()
+    for env in layers:
+        for field, key in (("temperature_k", "temperature_k"), ("humidity", "humidity"),
+                           ("pressure_pa", "pressure_pa"), ("co2", "co2"),
+                           ("sound_speed", "model")):
+            value = getattr(env, field)
+            if value is not None:
+                values[key] = value
+                given.add(key)
+    state = airmod.air_state(float(values["temperature_k"]), float(values["pressure_pa"]),
+                             float(values["humidity"]), float(values["co2"]),
+                             str(values["model"]))
+    names = {"temperature_k": "temperature", "humidity": "humidity", "pressure_pa": "pressure",
+             "co2": "co2", "model": "sound_speed"}
+    defaults = tuple(sorted(names[k] for k in names if k not in given))
+    warnings: list[Note] = []
+    if state.model == "cramer-1993":
+        xw = airmod.vapour_mole_fraction(state.humidity, state.temperature_c, state.pressure_pa)
+        if not airmod.cramer_in_range(state.temperature_c, state.pressure_pa, xw, state.co2):
+            where = next((env.where.get("temperature") for env in layers
+                          if env.where.get("temperature")), None)
+            if where is not None:
+                warnings.append(Note(where, "the air lies outside the range Cramer (1993) was "
+                                     "fitted for (0-30 C, 75-102 kPa, CO2 up to 1 %)"))
+    report = AirReport(
+        preset=preset,
+        temperature_c=state.temperature_c,
+        humidity_percent=state.humidity * 100.0,
+        pressure_pa=state.pressure_pa,
+        co2_ppm=state.co2 * 1e6,
+        sound_speed_model=state.model,
+        speed_m_s=state.speed_m_s,
+        density_kg_m3=state.density_kg_m3,
+        defaults=defaults,
+    )
+    return GroupAir(state, report, tuple(warnings))

@@ -1,0 +1,90 @@
+"""Shared by ranks and tube sets: length, rounding and predictions of a pipe without holes."""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+from compiler.acoustics import simple
+from compiler.acoustics.tuning import cents
+from compiler.errors import PhysicsError, Position
+from compiler.resolve.environment import GroupAir
+
+HARMONICS_REPORTED = 6
+SENSITIVITY_STEP_M = 1e-4
+SENSITIVITY_STEP_K = 0.5
+
+
+@dataclass(frozen=True)
+class Solved:
+    """A plain pipe's speaking length as cut, and how it is predicted to sound."""
+
+    speaking_length_m: float
+    acoustic_length_m: float
+    end_correction_m: float
+    predicted_hz: float
+    error_cents: float
+    harmonics_hz: tuple[float, ...]
+    cents_per_mm: float
+    cents_per_c: float
+
+
+def round_to(value: float, step: float) -> float:
+    """Round a dimension to the spec's precision (the maker cannot cut finer)."""
+    return round(round(value / step) * step, 9)
+
+
+def solve_plain(pipe: simple.PipeAcoustics, target_hz: float, harmonic: int, air: GroupAir,
+                precision_m: float, label: str, where: Position, hint: str) -> Solved:
+    """Length for the target, rounded to the precision, then predicted as it will be cut."""
+    c = air.state.speed_m_s
+    length, correction = simple.solve_length(pipe, target_hz, c, harmonic)
+    if length <= precision_m:
+        raise PhysicsError.at(
+            where,
+            f"{label}: the end corrections ({correction * 1000:.1f} mm) leave no pipe "
+            f"(length {length * 1000:.1f} mm) for {target_hz:.2f} Hz",
+            hint)
+    rounded = round_to(length, precision_m)
+    return predict_plain(pipe, rounded, target_hz, harmonic, air)
+
+
+def predict_plain(pipe: simple.PipeAcoustics, length_m: float, target_hz: float,
+                  harmonic: int, air: GroupAir) -> Solved:
+    c = air.state.speed_m_s
+    predicted = simple.predict_frequency(pipe, length_m, c, harmonic)
+    series = tuple(simple.predict_frequency(pipe, length_m, c, n)
+                   for n in simple.harmonic_numbers(pipe.stopped, HARMONICS_REPORTED))
+    longer = simple.predict_frequency(pipe, length_m + SENSITIVITY_STEP_M, c, harmonic)
+    shorter = simple.predict_frequency(pipe, length_m - SENSITIVITY_STEP_M, c, harmonic)
+    per_mm = cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000)
+    t = air.state.temperature_k
+    warm = air.at_temperature(t + SENSITIVITY_STEP_K).speed_m_s
+    cool = air.at_temperature(t - SENSITIVITY_STEP_K).speed_m_s
+    per_c = cents(simple.predict_frequency(pipe, length_m, warm, harmonic),
+                  simple.predict_frequency(pipe, length_m, cool, harmonic)) / (
+        2 * SENSITIVITY_STEP_K)
+    correction = simple.end_corrections(pipe, predicted, c)
+    return Solved(
+        speaking_length_m=length_m,
+        acoustic_length_m=length_m + correction,
+        end_correction_m=correction,
+        predicted_hz=predicted,
+        error_cents=cents(predicted, target_hz),
+        harmonics_hz=series,
+        cents_per_mm=per_mm,
+        cents_per_c=per_c,
+    )
+
+
+def scaled(pipe: simple.PipeAcoustics, scale: float) -> simple.PipeAcoustics:
+    return dataclasses.replace(pipe, scale=scale)
+
+
+def equivalent_radius(width_m: float, depth_m: float) -> float:
+    """Radius of the circle with the same area as a W × D section: sqrt(W·D/π).
+
+    The traditional equivalence of square wooden pipes by area (REFERENCES §8; Töpfer).
+    """
+    return math.sqrt(width_m * depth_m / math.pi)
