@@ -146,6 +146,9 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
         what = exc.problem or "not valid YAML"
         if exc.context:
             what = f"{exc.context}: {what}"
+        if exc.context_mark is not None and mark is not None and (
+                exc.context_mark.line != mark.line):
+            what += f" (the construct began at line {exc.context_mark.line + 1})"
         raise _error(filename, mark, f"YAML syntax: {what}",
                      "check the indentation, colons and quotes on this line") from None
     except yaml.YAMLError as exc:

@@ -108,7 +108,9 @@ def _describe(error: ValidationError, document: Document) -> list[Problem]:
         missing = error.message.split("'")[1] if "'" in error.message else "?"
         sub = schema.get("properties", {}).get(missing, {})
         tip = _short(sub.get("description", "")) if isinstance(sub, dict) else ""
-        return [Problem(where, f"{name} is missing the key `{missing}`", tip, "schema")]
+        tip = tip or f"add `{missing}:` to {name}"
+        at = document.key_at(path) if path else where
+        return [Problem(at, f"{name} is missing the key `{missing}`", tip, "schema")]
     if kind == "not" and error.validator_value == {}:
         return [Problem(document.key_at(path), f"`{path[-1]}` does not apply here "
                         f"({_context(document, path[:-1])})", "remove it", "schema")]

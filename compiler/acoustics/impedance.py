@@ -1,0 +1,399 @@
+"""The instrument model (bore, holes, head) and the impedance its exciting jet sees.
+
+Conventions: SI units; every position is measured from the TOP END of the tube (the head end,
+where the block or the cork sits), increasing toward the foot. Time convention e^{+jωt}.
+Fingerings are boolean arrays of shape (n_fingerings, n_holes), True = hole closed.
+
+Model (transfer-matrix method, REFERENCES §5–§7):
+
+- Downstream of the mouth: the bore from the mouth to the foot (cylinders and frusta with
+  visco-thermal losses, ``compiler.acoustics.bore``), the holes as T-networks
+  (``compiler.acoustics.holes``), the open foot as a radiation impedance
+  (``compiler.acoustics.radiation``). This gives Z_down at the mouth.
+- Above the mouth, a head cavity of length ``cavity_length_m`` (embouchure flute: mouth to cork;
+  duct flute: usually 0, the block face) is a closed branch in parallel: Y_j = 1/Z_down + Y_cav.
+- The mouth opening (duct flute window, or embouchure hole partly covered by the lip) is treated
+  like an open side hole of the same area (REFERENCES §7a: "computed like an open tone hole"):
+  inner length t_i, a chimney of the window or riser thickness, and the radiation impedance of
+  its outer opening, all IN SERIES between the jet and the junction:
+  Z_total = Zr + Chimney(1/Y_j + jωρ t_i/S_m) + jωρ·extra_length_m/S_bore.
+- The jet is a flow source at the outer face of the mouth, so it sees Z_total; a flue
+  instrument sounds near the minima of |Z_total|, i.e. the peaks of Y = 1/Z_total, which
+  ``compiler.acoustics.playing`` locates as upward zero crossings of Im Z_total.
+- Head kind ``"open"``: the exciting end is a plain open end of the bore, Z_total = Z_down + Zr
+  with the instrument's end model (an open pipe driven at its end; used for checks and plain
+  tubes).
+
+Everything is vectorised over instruments × fingerings × frequencies; the only Python loops
+run along the bore (pieces and holes).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from compiler.acoustics.air import Air
+from compiler.acoustics.bore import LOSS_MODELS, frustum_matrix
+from compiler.acoustics.holes import (
+    HOLE_RADIATION_MODELS,
+    hole_elements,
+    inner_length,
+    matching_length,
+    radiation_length,
+)
+from compiler.acoustics.radiation import (
+    FLANGED_RESISTANCE,
+    RADIATION_MODELS,
+    UNFLANGED_RESISTANCE,
+    lumped_radiation_impedance,
+    radiation_impedance,
+)
+
+HEAD_KINDS: tuple[str, ...] = ("duct", "embouchure", "open")
+
+Complex = NDArray[np.complex128]
+Float = NDArray[np.float64]
+
+
+@dataclass(frozen=True)
+class Segment:
+    """A piece of bore profile: a frustum (or cylinder) of axial length and end radii, metres."""
+
+    length_m: float
+    radius_in_m: float
+    radius_out_m: float
+
+
+@dataclass(frozen=True)
+class Bore:
+    """The bore profile from the top end (position 0) downward, as consecutive segments.
+
+    Beyond the last segment the profile continues as a cylinder of the last radius, so a profile
+    may be shorter than the tube (e.g. one cylinder segment for stock tube of any length).
+    """
+
+    segments: tuple[Segment, ...]
+
+    def __post_init__(self) -> None:
+        if not self.segments:
+            raise ValueError("a bore needs at least one segment")
+        for s in self.segments:
+            if not (s.length_m > 0.0 and s.radius_in_m > 0.0 and s.radius_out_m > 0.0):
+                raise ValueError("bore segments need positive length and radii")
+
+    @classmethod
+    def cylinder(cls, radius_m: float, length_m: float = 1.0) -> Bore:
+        """A plain cylindrical bore (stock tube) of the given radius."""
+        return cls((Segment(length_m, radius_m, radius_m),))
+
+    @property
+    def length_m(self) -> float:
+        return float(sum(s.length_m for s in self.segments))
+
+    def profile(self) -> tuple[Float, Float, Float]:
+        """(edges, radius_in, radius_out) of the segments; the last edge is +inf when the
+        last segment is cylindrical, else a cylindrical extension segment is appended."""
+        edges = np.concatenate([[0.0], np.cumsum([s.length_m for s in self.segments])])
+        r_in = np.array([s.radius_in_m for s in self.segments])
+        r_out = np.array([s.radius_out_m for s in self.segments])
+        if r_in[-1] == r_out[-1]:
+            edges[-1] = np.inf
+        else:
+            edges = np.append(edges, np.inf)
+            r_in = np.append(r_in, r_out[-1])
+            r_out = np.append(r_out, r_out[-1])
+        return edges, r_in, r_out
+
+    def radius_at(self, position_m: ArrayLike) -> Float:
+        """Bore radius (m) at positions measured from the top end (at a step: the lower side)."""
+        x = np.asarray(position_m, dtype=np.float64)
+        edges, r_in, r_out = self.profile()
+        j = np.clip(np.searchsorted(edges, x, side="right") - 1, 0, len(r_in) - 1)
+        return _radius_in_segment(edges, r_in, r_out, j, x)
+
+
+def _radius_in_segment(edges: Float, r_in: Float, r_out: Float, j: ArrayLike, x: Float) -> Float:
+    lo = edges[j]
+    hi = edges[np.asarray(j) + 1]
+    span = np.where(np.isinf(hi), 1.0, hi - lo)
+    frac = np.where(np.isinf(hi), 0.0, np.clip((x - lo) / span, 0.0, 1.0))
+    return np.asarray(r_in[j] + (r_out[j] - r_in[j]) * frac, dtype=np.float64)
+
+
+@dataclass(frozen=True)
+class Hole:
+    """A side hole: centre position from the top end, outer radius, chimney height (the wall
+    thickness at the hole), and undercut (extra radius at the bore, see ``holes``); metres."""
+
+    position_m: float
+    radius_m: float
+    chimney_m: float
+    undercut_m: float = 0.0
+
+
+@dataclass(frozen=True)
+class Head:
+    """The blowing end.
+
+    kind: ``"duct"`` (window of window_length_m along the tube × window_width_m across, in a wall
+    of window_thickness_m at the labium), ``"embouchure"`` (hole of embouchure_radius_m with a
+    chimney or riser of embouchure_chimney_m, of which the lip covers the fraction lip_coverage of
+    the area: common practice, from memory, a quarter to a third), or ``"open"`` (a plain open
+    end, see the module docstring). mouth_position_m: centre of the window or embouchure hole,
+    from the top end. cavity_length_m: closed head cavity above the mouth centre (to the cork or
+    block face). extra_length_m: a calibration term, extra inertance at the mouth expressed as a
+    length of bore (0 unless fitted to measured pitches).
+    """
+
+    kind: str
+    mouth_position_m: float = 0.0
+    window_length_m: float = 0.0
+    window_width_m: float = 0.0
+    window_thickness_m: float = 0.0
+    embouchure_radius_m: float = 0.0
+    embouchure_chimney_m: float = 0.0
+    cavity_length_m: float = 0.0
+    lip_coverage: float = 0.25
+    extra_length_m: float = 0.0
+
+    def __post_init__(self) -> None:
+        if self.kind not in HEAD_KINDS:
+            raise ValueError(f"unknown head kind {self.kind!r}; expected one of {HEAD_KINDS}")
+        if self.kind == "duct" and not (self.window_length_m > 0 and self.window_width_m > 0):
+            raise ValueError("a duct head needs a window length and width")
+        if self.kind == "embouchure" and not self.embouchure_radius_m > 0:
+            raise ValueError("an embouchure head needs an embouchure radius")
+        if not 0.0 <= self.lip_coverage < 1.0:
+            raise ValueError("lip_coverage is a fraction in [0, 1)")
+        if self.cavity_length_m < 0 or self.cavity_length_m > self.mouth_position_m + 1e-12:
+            raise ValueError("the head cavity must lie inside the tube, above the mouth")
+
+    @property
+    def opening_radius_m(self) -> float:
+        """Radius of the circle with the open area of the mouth (0 for an ``"open"`` head)."""
+        if self.kind == "duct":
+            return float(np.sqrt(self.window_length_m * self.window_width_m / np.pi))
+        if self.kind == "embouchure":
+            return float(self.embouchure_radius_m * np.sqrt(1.0 - self.lip_coverage))
+        return 0.0
+
+    @property
+    def opening_chimney_m(self) -> float:
+        return self.window_thickness_m if self.kind == "duct" else self.embouchure_chimney_m
+
+
+@dataclass(frozen=True)
+class Instrument:
+    """A pipe with side holes: bore profile, holes (sorted by position), head, and tube length.
+
+    length_m: total tube length from the top end to the open foot. radiation: foot end model
+    (``radiation.RADIATION_MODELS``); hole_radiation: open holes' and mouth opening's radiation
+    length (``holes.HOLE_RADIATION_MODELS``); losses: ``bore.LOSS_MODELS``.
+    """
+
+    bore: Bore
+    holes: tuple[Hole, ...]
+    head: Head
+    length_m: float
+    radiation: str = "unflanged"
+    hole_radiation: str = "unflanged"
+    losses: str = "keefe"
+
+    def __post_init__(self) -> None:
+        if self.radiation not in RADIATION_MODELS:
+            raise ValueError(f"unknown radiation model {self.radiation!r}")
+        if self.hole_radiation not in HOLE_RADIATION_MODELS:
+            raise ValueError(f"unknown hole radiation model {self.hole_radiation!r}")
+        if self.losses not in LOSS_MODELS:
+            raise ValueError(f"unknown loss model {self.losses!r}")
+        xs = [self.head.mouth_position_m] + [h.position_m for h in self.holes] + [self.length_m]
+        if any(b <= a for a, b in zip(xs, xs[1:], strict=False)):
+            raise ValueError("holes must lie in order between the mouth and the foot")
+        if any(h.radius_m <= 0 or h.chimney_m < 0 or h.undercut_m < 0 for h in self.holes):
+            raise ValueError("holes need a positive radius and a non-negative chimney and undercut")
+
+
+def _as_fingerings(fingerings: ArrayLike | None, n_holes: int) -> NDArray[np.bool_]:
+    if fingerings is None:
+        return np.ones((1, n_holes), dtype=bool)
+    closed = np.asarray(fingerings, dtype=bool)
+    if closed.ndim == 1:
+        closed = closed[None, :]
+    if closed.ndim != 2 or closed.shape[1] != n_holes:
+        raise ValueError(f"fingerings must have shape (n_fingerings, {n_holes})")
+    return closed
+
+
+def _as_freqs(freqs_hz: ArrayLike) -> Float:
+    f = np.asarray(freqs_hz, dtype=np.float64)
+    if np.any(~(f > 0.0)):
+        raise ValueError("frequencies must be positive")
+    while f.ndim < 3:
+        f = f[None]
+    return f
+
+
+def _apply_piece(
+    instrument: Instrument, air: Air, omega: Float, xa: Float, xb: Float,
+    state: tuple[Complex, Complex], reverse: bool = False,
+) -> tuple[Complex, Complex]:  # fmt: skip
+    """Carry (P, U) from the far end of the bore piece [xa, xb] to its near end.
+
+    Normal: the load is at xb, the result at xa. reverse: the load is at xa (a closed cavity end),
+    the result at xb, with U counted positive toward xa (reversed matrices [[D, B], [C, A]]).
+    """
+    edges, r_in, r_out = instrument.bore.profile()
+    p, u = state
+    order = range(len(r_in) - 1, -1, -1) if not reverse else range(len(r_in))
+    for j in order:
+        lo = np.clip(edges[j], xa, xb)
+        hi = np.clip(edges[j + 1], xa, xb)
+        length = hi - lo
+        if not np.any(length > 0.0):
+            continue
+        r1 = _radius_in_segment(edges, r_in, r_out, j, lo)
+        r2 = _radius_in_segment(edges, r_in, r_out, j, hi)
+        A, B, C, D = frustum_matrix(air, length, r1, r2, omega, instrument.losses)
+        if reverse:
+            A, D = D, A
+        p, u = A * p + B * u, C * p + D * u
+    return p, u
+
+
+def _column(values: ArrayLike | None, default: list[float], n_inst: int) -> Float:
+    if values is None:
+        return np.broadcast_to(np.asarray(default, dtype=np.float64), (n_inst, len(default)))
+    arr = np.asarray(values, dtype=np.float64)
+    return arr[None, :] if arr.ndim == 1 else arr
+
+
+def impedance_batch(
+    instrument: Instrument,
+    air: Air,
+    freqs_hz: ArrayLike,
+    fingerings: ArrayLike | None = None,
+    *,
+    length_m: ArrayLike | None = None,
+    hole_positions_m: ArrayLike | None = None,
+    hole_radii_m: ArrayLike | None = None,
+    downstream_only: bool = False,
+) -> Complex:
+    """Z_total (Pa·s/m³) seen by the jet, for a batch of variants of one instrument.
+
+    The variants share the bore profile, head, chimneys and models of ``instrument`` and differ in
+    tube length (``length_m``, shape (n_inst,)), hole positions and hole radii (shape
+    (n_inst, n_holes)); omitted overrides take the instrument's values. freqs_hz broadcasts to
+    (n_inst, n_fingerings, n_freqs): a 1-D grid for all, or per-fingering frequencies of shape
+    (n_fingerings, n) or (n_inst, n_fingerings, n). Returns an array of shape
+    (n_inst, n_fingerings, n_freqs). ``downstream_only`` returns Z_down at the mouth instead
+    (no head elements). Holes must stay in order between the mouth and the foot.
+    """
+    holes = instrument.holes
+    n_holes = len(holes)
+    closed = _as_fingerings(fingerings, n_holes)
+    f = _as_freqs(freqs_hz)
+    omega = 2.0 * np.pi * f
+    rho, c = air.density_kg_m3, air.speed_m_s
+    k = omega / c
+    lengths = np.atleast_1d(np.asarray(instrument.length_m if length_m is None else length_m,
+                                       dtype=np.float64))  # fmt: skip
+    xs = _column(hole_positions_m, [h.position_m for h in holes], lengths.shape[0])
+    rs = _column(hole_radii_m, [h.radius_m for h in holes], lengths.shape[0])
+    n_inst = max(lengths.shape[0], xs.shape[0], rs.shape[0], f.shape[0])
+    lengths = np.broadcast_to(lengths, (n_inst,))[:, None, None]
+    xs = np.broadcast_to(xs, (n_inst, n_holes))
+    rs = np.broadcast_to(rs, (n_inst, n_holes))
+    head = instrument.head
+    x_m = np.full((n_inst, 1, 1), head.mouth_position_m)
+    stations = [x_m] + [xs[:, h, None, None] for h in range(n_holes)] + [lengths]
+    for upper, lower in zip(stations, stations[1:], strict=False):
+        if np.any(lower <= upper):
+            raise ValueError("holes must lie in order between the mouth and the foot")
+
+    bore = instrument.bore
+    a_foot = bore.radius_at(lengths)
+    p = radiation_impedance(instrument.radiation, a_foot, k, rho * c / (np.pi * a_foot**2))
+    u = np.ones_like(p)
+    for h in range(n_holes, -1, -1):
+        p, u = _apply_piece(instrument, air, omega, stations[h], stations[h + 1], (p, u))
+        if h == 0:
+            break
+        hole = holes[h - 1]
+        za_o, ys_o, za_c, ys_c = hole_elements(
+            air, omega, bore.radius_at(stations[h]), rs[:, h - 1, None, None], hole.chimney_m,
+            hole.undercut_m, instrument.losses, instrument.hole_radiation,
+        )  # fmt: skip
+        shut = closed[None, :, h - 1, None]
+        za = np.where(shut, za_c, za_o)
+        ys = np.where(shut, ys_c, ys_o)
+        p = p + 0.5 * za * u
+        u = u + ys * p
+        p = p + 0.5 * za * u
+    shape = (n_inst, closed.shape[0], f.shape[-1])
+    if downstream_only:
+        return np.broadcast_to(p / u, shape).astype(np.complex128)
+    y_j = u / p
+    if head.cavity_length_m > 0.0:
+        cp, cu = _apply_piece(
+            instrument, air, omega, x_m - head.cavity_length_m, x_m,
+            (np.ones_like(omega, dtype=np.complex128), np.zeros_like(omega, dtype=np.complex128)),
+            reverse=True,
+        )  # fmt: skip
+        y_j = y_j + cu / cp
+    a_m = float(bore.radius_at(head.mouth_position_m))
+    if head.kind == "open":
+        z = 1.0 / y_j + radiation_impedance(instrument.radiation, a_m, k, rho * c / (np.pi * a_m**2))
+    else:
+        z = _mouth(instrument, air, omega, a_m, 1.0 / y_j)
+    return np.broadcast_to(z, shape).astype(np.complex128)
+
+
+def _mouth(instrument: Instrument, air: Air, omega: Float, a_m: float, z_j: Complex) -> Complex:
+    """Series elements of the mouth opening between the jet and the junction (module docstring)."""
+    head = instrument.head
+    rho, c = air.density_kg_m3, air.speed_m_s
+    b = head.opening_radius_m
+    area = np.pi * b * b
+    z = z_j + 1j * omega * rho * float(inner_length(b, a_m)) / area
+    height = head.opening_chimney_m + float(matching_length(b, a_m))
+    A, B, C, D = frustum_matrix(air, height, b, b, omega, instrument.losses)
+    z = (A * z + B) / (C * z + D)
+    model = instrument.hole_radiation
+    t_r = radiation_length(model, b, a_m + head.opening_chimney_m)
+    resistance = UNFLANGED_RESISTANCE if model == "unflanged" else FLANGED_RESISTANCE
+    z = z + lumped_radiation_impedance(omega / c, b, t_r, resistance, rho * c / area)
+    return np.asarray(z + 1j * omega * rho * head.extra_length_m / (np.pi * a_m**2),
+                      dtype=np.complex128)  # fmt: skip
+
+
+def input_impedance(
+    instrument: Instrument, air: Air, freqs_hz: ArrayLike, fingerings: ArrayLike | None = None
+) -> Complex:
+    """Z_total seen by the jet, shape (n_fingerings, n_freqs), Pa·s/m³ (module docstring).
+
+    freqs_hz: a 1-D grid, or per-fingering frequencies of shape (n_fingerings, n).
+    fingerings: (n_fingerings, n_holes) booleans, True = closed; None = all closed.
+    """
+    return impedance_batch(instrument, air, freqs_hz, fingerings)[0]
+
+
+def input_admittance(
+    instrument: Instrument, air: Air, freqs_hz: ArrayLike, fingerings: ArrayLike | None = None
+) -> Complex:
+    """Admittance Y = 1/Z_total seen by the jet, shape (n_fingerings, n_freqs), m³/(Pa·s).
+
+    Flue excitation plays near the peaks of |Y| (see the module docstring).
+    """
+    return np.asarray(1.0 / input_impedance(instrument, air, freqs_hz, fingerings),
+                      dtype=np.complex128)  # fmt: skip
+
+
+def bore_impedance(
+    instrument: Instrument, air: Air, freqs_hz: ArrayLike, fingerings: ArrayLike | None = None
+) -> Complex:
+    """Z_down: the impedance at the mouth position looking down the bore (holes and foot),
+    without the mouth opening or head cavity; shape (n_fingerings, n_freqs)."""
+    return impedance_batch(instrument, air, freqs_hz, fingerings, downstream_only=True)[0]

@@ -1,0 +1,186 @@
+"""Playing frequencies of a flue-excited pipe: the minima of the impedance its jet sees.
+
+A flue instrument sounds near the peaks of the admittance Y = 1/Z_total seen by the jet
+(``compiler.acoustics.impedance``). We define the n-th register's frequency as the n-th upward
+zero crossing of the reactance Im Z_total above ``f_min``: there the impedance is a series-type
+minimum (in the lossless limit exactly the peak of |Y|); at impedance maxima the reactance
+crosses zero downward, so they are never taken. The jet's own phase delay is not modelled: the
+frequencies are those of the air column as the jet drives it.
+
+Method: scan a logarithmic grid (vectorised over fingerings), bracket each crossing, then refine
+all brackets at once by safeguarded Newton iterations on Im Z(f) (finite-difference slope,
+bisection when a step leaves its bracket) to a relative 1e-10 (far below 0.01 cent).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from compiler.acoustics.air import Air
+from compiler.acoustics.impedance import Instrument, impedance_batch, input_admittance
+
+Float = NDArray[np.float64]
+Evaluate = Callable[[Float], NDArray[np.complex128]]
+"""Z_total for frequencies of shape (n_inst, n_fingerings, n) → same shape."""
+
+GRID_STEP_CENTS = 10.0
+"""Scan grid spacing. Two crossings closer than this could hide each other; flute registers
+are hundreds of cents apart."""
+
+_EPS = 1e-6  # relative frequency step for the reactance slope
+
+
+@dataclass(frozen=True)
+class Resonances:
+    """First- and second-register frequencies per fingering, and the octave mismatch.
+
+    frequencies_hz: shape (n_fingerings, 2), NaN where no crossing lies in the scanned range.
+    octave_cents: 1200·log2(f2 / (2 f1)), shape (n_fingerings,).
+    """
+
+    frequencies_hz: Float
+    octave_cents: Float
+
+
+def default_range(instrument: Instrument, air: Air) -> tuple[float, float]:
+    """A scan range (Hz) that holds the first two registers of every fingering.
+
+    From an eighth of the quarter-wave frequency of the whole tube (below any register 1) to
+    twelve times the half-wave frequency of the bore below the mouth (above the second register
+    of a fingering whose first open hole sits a third of the way down).
+    """
+    below_mouth = instrument.length_m - instrument.head.mouth_position_m
+    f_lo = air.speed_m_s / (4.0 * instrument.length_m) / 8.0
+    f_hi = 12.0 * air.speed_m_s / (2.0 * below_mouth)
+    return f_lo, f_hi
+
+
+def log_grid(f_lo: float, f_hi: float, step_cents: float = GRID_STEP_CENTS) -> Float:
+    """Logarithmic frequency grid from f_lo to f_hi (Hz) with the given spacing in cents."""
+    n = int(np.ceil(1200.0 * np.log2(f_hi / f_lo) / step_cents)) + 1
+    return np.geomspace(f_lo, f_hi, max(n, 2))
+
+
+def bracket(
+    evaluate: Evaluate, grid: Float, shape: tuple[int, int], registers: int = 2
+) -> tuple[Float, Float]:
+    """Brackets (lo, hi), shape (n_inst, n_fingerings, registers), of the first ``registers``
+    upward zero crossings of Im Z on ``grid``; NaN where fewer crossings exist."""
+    g = evaluate(np.broadcast_to(grid, (*shape, grid.size))).imag
+    up = (g[..., :-1] < 0.0) & (g[..., 1:] >= 0.0)
+    count = np.cumsum(up, axis=-1)
+    lo = np.full((*shape, registers), np.nan)
+    hi = np.full((*shape, registers), np.nan)
+    for r in range(registers):
+        idx = np.argmax(count >= r + 1, axis=-1)
+        found = count[..., -1] >= r + 1
+        lo[..., r] = np.where(found, grid[idx], np.nan)
+        hi[..., r] = np.where(found, grid[idx + 1], np.nan)
+    return lo, hi
+
+
+def refine(
+    evaluate: Evaluate, lo: Float, hi: Float, tol: float = 1e-10, max_iter: int = 60
+) -> tuple[Float, Float]:
+    """Zero crossings of Im Z inside brackets [lo, hi] (Im Z(lo) < 0 ≤ Im Z(hi)), vectorised.
+
+    Returns (frequencies, slope d(Im Z)/df at the root); NaN brackets give NaN.
+    Newton steps on Im Z with a forward-difference slope; a step leaving the bracket (or with a
+    non-positive slope) is replaced by bisection, and each evaluation shrinks the bracket.
+    """
+    lo = np.array(lo, dtype=np.float64)
+    hi = np.array(hi, dtype=np.float64)
+    bad = ~(np.isfinite(lo) & np.isfinite(hi))
+    lo[bad], hi[bad] = 1.0, 1.0 + 1e-3
+    f = np.sqrt(lo * hi)
+    slope = np.ones_like(f)
+    for _ in range(max_iter):
+        z = evaluate(np.concatenate([f, f * (1.0 + _EPS)], axis=-1))
+        n = f.shape[-1]
+        g, g2 = z.imag[..., :n], z.imag[..., n:]
+        slope = (g2 - g) / (f * _EPS)
+        below = g < 0.0
+        lo = np.where(below, np.maximum(lo, f), lo)
+        hi = np.where(below, hi, np.minimum(hi, f))
+        with np.errstate(divide="ignore", invalid="ignore"):
+            step = np.where(slope > 0.0, -g / slope, np.nan)
+        new = f + step
+        ok = np.isfinite(new) & (new > lo) & (new < hi)
+        new = np.where(ok, new, 0.5 * (lo + hi))
+        done = np.abs(new - f) <= tol * f
+        f = new
+        if np.all(done | bad):
+            break
+    f[bad] = np.nan
+    return f, slope
+
+
+def track(
+    evaluate: Evaluate, guess: Float, width: float = 0.03
+) -> tuple[Float, Float, NDArray[np.bool_]]:
+    """Follow known crossings after a small change of geometry: bracket each at guess·(1 ± width).
+
+    Returns (frequencies, slopes, ok); ok is False where the bracket did not straddle a single
+    upward crossing (the caller should scan again).
+    """
+    lo = guess * (1.0 - width)
+    hi = guess * (1.0 + width)
+    g = evaluate(np.concatenate([lo, hi], axis=-1)).imag
+    n = guess.shape[-1]
+    ok = (g[..., :n] < 0.0) & (g[..., n:] >= 0.0)
+    f, slope = refine(evaluate, np.where(ok, lo, np.nan), np.where(ok, hi, np.nan))
+    return f, slope, ok
+
+
+def resonances(
+    instrument: Instrument,
+    air: Air,
+    fingerings: ArrayLike | None = None,
+    f_min_hz: float | None = None,
+    f_max_hz: float | None = None,
+) -> Resonances:
+    """Playing frequencies (Hz) of registers 1 and 2 for every fingering, and octave mismatch.
+
+    fingerings: (n_fingerings, n_holes) booleans, True = closed (None: all closed). The scan
+    range defaults to ``default_range``. See the module docstring for the definition.
+    """
+    closed = _fingerings(instrument, fingerings)
+
+    def evaluate(freqs: Float) -> NDArray[np.complex128]:
+        return impedance_batch(instrument, air, freqs, closed)
+
+    lo_default, hi_default = default_range(instrument, air)
+    grid = log_grid(f_min_hz or lo_default, f_max_hz or hi_default)
+    lo, hi = bracket(evaluate, grid, (1, closed.shape[0]))
+    f, _ = refine(evaluate, lo, hi)
+    f = f[0]
+    with np.errstate(invalid="ignore"):
+        octave = 1200.0 * np.log2(f[:, 1] / (2.0 * f[:, 0]))
+    return Resonances(frequencies_hz=f, octave_cents=octave)
+
+
+def spectrum(
+    instrument: Instrument,
+    air: Air,
+    fingerings: ArrayLike | None = None,
+    f_min_hz: float = 50.0,
+    f_max_hz: float = 4000.0,
+    n: int = 2000,
+) -> tuple[Float, Float]:
+    """(freqs, |Y|) for plots: n linearly spaced frequencies (Hz) and the admittance magnitude
+    seen by the jet, shape (n_fingerings, n), m³/(Pa·s)."""
+    freqs = np.linspace(f_min_hz, f_max_hz, n)
+    closed = _fingerings(instrument, fingerings)
+    return freqs, np.abs(input_admittance(instrument, air, freqs, closed))
+
+
+def _fingerings(instrument: Instrument, fingerings: ArrayLike | None) -> NDArray[np.bool_]:
+    n_holes = len(instrument.holes)
+    if fingerings is None:
+        return np.ones((1, n_holes), dtype=bool)
+    closed = np.asarray(fingerings, dtype=bool)
+    return closed[None, :] if closed.ndim == 1 else closed

@@ -1,0 +1,133 @@
+"""Look and numbers of the build sheet: page sizes, fonts, colours and the number formatters.
+
+Every number the PDF prints goes through one of the formatters here, so the build sheet
+shows exactly what ``resolved.json`` shows (the JSON writer rounds the same way):
+
+- lengths: millimetres to 0.01 mm, ``f"{metres * 1000:.2f}"`` (:func:`mm`);
+- inches beside them (specs written in ``in`` or ``ft``): ``f"{metres / 0.0254:.3f}"``;
+- frequencies: ``f"{hz:.2f}"`` (:func:`hz`);
+- cents: ``f"{cents:+.2f}"`` (:func:`cents`): the sign shows sharp or flat; without it the
+  digits are those of the JSON value.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from reportlab.lib.colors import Color
+
+MM = 72.0 / 25.4
+"""Points per millimetre: the one scale between the page (points) and the drawings (mm)."""
+
+INCH_M = 0.0254
+
+PAPER_MM: dict[str, tuple[float, float]] = {"a4": (210.0, 297.0), "letter": (215.9, 279.4)}
+"""Portrait page sizes in millimetres (ISO 216 A4; ANSI letter, 8.5 × 11 in)."""
+
+FONT = "Helvetica"
+FONT_BOLD = "Helvetica-Bold"
+FONT_MONO = "Courier"
+
+INK = Color(0, 0, 0)
+GREY = Color(0.45, 0.45, 0.45)
+LIGHT = Color(0.90, 0.90, 0.90)
+FAINT = Color(0.96, 0.96, 0.96)
+ACCENT = Color(0.05, 0.30, 0.60)
+WARN = Color(0.75, 0.05, 0.05)
+SERIES = (Color(0, 0, 0), Color(0.05, 0.35, 0.75), Color(0.85, 0.40, 0.0),
+          Color(0.20, 0.55, 0.20))
+"""Plot lines: dark enough to read on a monochrome print, told apart by dash pattern too."""
+DASHES: tuple[tuple[float, ...], ...] = ((), (4, 2), (1, 2), (6, 2, 1, 2))
+
+MARGIN_MM = 14.0
+HEADER_MM = 9.0
+FOOTER_MM = 8.0
+
+
+@dataclass(frozen=True)
+class Frame:
+    """One page's geometry in points: the paper and the content box inside the margins."""
+
+    paper: str
+    width: float
+    height: float
+    left: float
+    right: float
+    top: float
+    bottom: float
+
+    @property
+    def content_width(self) -> float:
+        return self.right - self.left
+
+    @property
+    def content_height(self) -> float:
+        return self.top - self.bottom
+
+
+def frame_for(paper: str) -> Frame:
+    """The page frame of a paper name (``a4`` or ``letter``)."""
+    if paper not in PAPER_MM:
+        raise ValueError(f"unknown paper {paper!r}: use one of {', '.join(sorted(PAPER_MM))}")
+    w_mm, h_mm = PAPER_MM[paper]
+    return Frame(paper, w_mm * MM, h_mm * MM, MARGIN_MM * MM, (w_mm - MARGIN_MM) * MM,
+                 (h_mm - MARGIN_MM - HEADER_MM) * MM, (MARGIN_MM + FOOTER_MM) * MM)
+
+
+def mm(length_m: float) -> str:
+    """A length in metres as millimetres to 0.01 mm, the resolution of ``resolved.json``."""
+    return f"{length_m * 1000.0:.2f}"
+
+
+def mm_of(value_mm: float) -> str:
+    """A length already in millimetres (Parts), to 0.01 mm."""
+    return f"{value_mm:.2f}"
+
+
+def inch(length_m: float) -> str:
+    """A length in metres as decimal inches to 0.001 in."""
+    return f"{length_m / INCH_M:.3f}"
+
+
+def length(length_m: float, inches: bool, unit: bool = True) -> str:
+    """``92.50 mm``, or ``92.50 mm (3.642 in)`` for a spec written in inches."""
+    text = mm(length_m) + (" mm" if unit else "")
+    if inches:
+        text += f" ({inch(length_m)} in)"
+    return text
+
+
+def hz(frequency_hz: float) -> str:
+    """A frequency to 0.01 Hz."""
+    return f"{frequency_hz:.2f}"
+
+
+def cents(value: float) -> str:
+    """Cents to 0.01, signed (``+1.25`` sharp, ``-0.40`` flat)."""
+    return f"{value:+.2f}"
+
+
+def percent(fraction: float) -> str:
+    """A 0..1 fraction as a percentage to 0.1 %."""
+    return f"{fraction * 100.0:.1f} %"
+
+
+def celsius(value_c: float) -> str:
+    return f"{value_c:.1f} °C"
+
+
+def uses_inches(units: str) -> bool:
+    """The spec was written in inches or feet: show inches beside millimetres."""
+    return units in ("in", "ft")
+
+
+def safe(text: str) -> str:
+    """Text the standard PDF fonts can show (Windows-1252); other characters become ``?``."""
+    return text.encode("cp1252", errors="replace").decode("cp1252")
+
+
+def strip_prefix(pipe_id: str, group: str) -> str:
+    """A pipe id without its group's name in front (``principal-4-C3`` → ``C3``)."""
+    prefix = group + "-"
+    return pipe_id[len(prefix):] if pipe_id.startswith(prefix) and len(pipe_id) > len(prefix) \
+        else pipe_id
