@@ -83,6 +83,23 @@ def cmd_resolve(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def cmd_build(args: argparse.Namespace) -> int:
+    from compiler.build import build
+    from compiler.options import BuildOptions
+
+    show = args.progress if args.progress is not None else sys.stderr.isatty()
+
+    def progress(message: str) -> None:
+        if show:
+            print(f"boresmith: {message}", file=sys.stderr, flush=True)
+
+    options = BuildOptions(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
+                           strict=args.strict, progress=show)
+    folder = build(_read(args.spec), args.spec, Path(args.out), options, progress)
+    print(f"boresmith: wrote {folder}", file=sys.stderr)
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="boresmith",
@@ -104,6 +121,20 @@ def build_parser() -> argparse.ArgumentParser:
                          help="print the resolved model as JSON (as in resolved.json)")
     resolve.add_argument("--strict", action="store_true", help="treat warnings as errors")
     resolve.set_defaults(run=cmd_resolve)
+
+    build = sub.add_parser("build", help="resolve a spec and write resolved.json, DXF cut "
+                           "files, the PDF build sheet, the cut list and a manifest")
+    build.add_argument("spec", metavar="SPEC")
+    build.add_argument("-o", "--out", default="out", metavar="DIR",
+                       help="output folder (default: out); the build goes into DIR/<instrument>/")
+    build.add_argument("--paper", choices=("a4", "letter"), help="paper size of the build sheet")
+    build.add_argument("--dxf", choices=("r2010", "r12"), help="DXF version")
+    build.add_argument("--part-files", action="store_true", default=None,
+                       help="also write one DXF per part")
+    build.add_argument("--strict", action="store_true", help="treat warnings as errors")
+    build.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                       help="show progress (default: when stderr is a terminal)")
+    build.set_defaults(run=cmd_build)
     return parser
 
 

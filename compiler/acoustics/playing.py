@@ -108,10 +108,11 @@ def refine(
         hi = np.where(below, hi, np.minimum(hi, f))
         with np.errstate(divide="ignore", invalid="ignore"):
             step = np.where(slope > 0.0, -g / slope, np.nan)
+        converged = np.isfinite(step) & (np.abs(step) <= tol * f)
         new = f + step
-        ok = np.isfinite(new) & (new > lo) & (new < hi)
+        ok = np.isfinite(new) & (new >= lo) & (new <= hi)
         new = np.where(ok, new, 0.5 * (lo + hi))
-        done = np.abs(new - f) <= tol * f
+        done = converged | (hi - lo <= tol * f)
         f = new
         if np.all(done | bad):
             break

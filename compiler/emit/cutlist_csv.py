@@ -1,0 +1,43 @@
+"""``cut-list.csv``: every part and tube length, by stock, for the saw and the laser."""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+
+from compiler.geometry.model import Parts
+from compiler.options import BuildOptions
+from compiler.resolve.model import Resolved
+
+NAME = "csv"
+COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantity",
+           "length_mm", "width_mm", "source", "note")
+
+
+def render(parts: Parts) -> str:
+    """CSV text, sorted by stock then part; sheet parts name the sheet they are nested on."""
+    placed = {pl.part_id: sheet.id for sheet in parts.sheets for pl in sheet.placements}
+    rows = []
+    for p in parts.parts:
+        if p.kind == "template":
+            continue
+        rows.append((p.stock, p.material, f"{p.thickness_mm:.2f}", p.id, p.pipe_id or "",
+                     p.name, str(p.quantity), f"{max(p.width_mm, p.height_mm):.2f}",
+                     f"{min(p.width_mm, p.height_mm):.2f}", placed.get(p.id, ""), p.note))
+    for cut in parts.tube_cuts:
+        rows.append((cut.stock, cut.material, "", f"{cut.pipe_id}-tube", cut.pipe_id,
+                     "tube", "1", f"{cut.length_mm:.2f}", f"{cut.outside_diameter_mm:.2f}",
+                     "stock tube", "width column: outside diameter"))
+    rows.sort(key=lambda r: (r[0], r[3]))
+    out = io.StringIO()
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(COLUMNS)
+    writer.writerows(rows)
+    return out.getvalue()
+
+
+def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path) -> list[Path]:
+    path = out_dir / "cut-list.csv"
+    path.write_text(render(parts), encoding="utf-8")
+    return [path]
