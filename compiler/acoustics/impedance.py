@@ -36,7 +36,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from compiler.acoustics.air import Air
-from compiler.acoustics.bore import LOSS_MODELS, frustum_matrix
+from compiler.acoustics.bore import LOSS_MODELS, characteristic, cylinder_matrix, frustum_matrix
 from compiler.acoustics.holes import (
     HOLE_RADIATION_MODELS,
     hole_elements,
@@ -93,6 +93,12 @@ class Bore:
     def length_m(self) -> float:
         return float(sum(s.length_m for s in self.segments))
 
+    @property
+    def uniform_radius_m(self) -> float | None:
+        """The radius if the whole profile is one cylinder (a fast path), else None."""
+        radii = {r for s in self.segments for r in (s.radius_in_m, s.radius_out_m)}
+        return radii.pop() if len(radii) == 1 else None
+
     def profile(self) -> tuple[Float, Float, Float]:
         """(edges, radius_in, radius_out) of the segments; the last edge is +inf when the
         last segment is cylindrical, else a cylindrical extension segment is appended."""
@@ -110,6 +116,9 @@ class Bore:
     def radius_at(self, position_m: ArrayLike) -> Float:
         """Bore radius (m) at positions measured from the top end (at a step: the lower side)."""
         x = np.asarray(position_m, dtype=np.float64)
+        uniform = self.uniform_radius_m
+        if uniform is not None:
+            return np.full(x.shape, uniform)
         edges, r_in, r_out = self.profile()
         j = np.clip(np.searchsorted(edges, x, side="right") - 1, 0, len(r_in) - 1)
         return _radius_in_segment(edges, r_in, r_out, j, x)
@@ -236,19 +245,20 @@ def _as_freqs(freqs_hz: ArrayLike) -> Float:
     return f
 
 
-def _apply_piece(
-    instrument: Instrument, air: Air, omega: Float, xa: Float, xb: Float,
-    state: tuple[Complex, Complex], reverse: bool = False,
-) -> tuple[Complex, Complex]:  # fmt: skip
-    """Carry (P, U) from the far end of the bore piece [xa, xb] to its near end.
-
-    Normal: the load is at xb, the result at xa. reverse: the load is at xa (a closed cavity end),
-    the result at xb, with U counted positive toward xa (reversed matrices [[D, B], [C, A]]).
-    """
+def _piece_matrices(
+    instrument: Instrument, air: Air, omega: Float, xa: Float, xb: Float
+) -> list[tuple[Complex, Complex, Complex, Complex]]:
+    """Transfer matrices of the bore pieces [xa, xb] (arrays of any shape, broadcast against
+    ``omega``), split at the profile's segment edges: one matrix set per profile segment that
+    any piece overlaps, in order from the top of the profile down (identity where a piece does
+    not overlap the segment)."""
+    uniform = instrument.bore.uniform_radius_m
+    if uniform is not None:
+        zc, gamma = characteristic(air, uniform, omega, instrument.losses)
+        return [cylinder_matrix(xb - xa, zc, gamma)]
     edges, r_in, r_out = instrument.bore.profile()
-    p, u = state
-    order = range(len(r_in) - 1, -1, -1) if not reverse else range(len(r_in))
-    for j in order:
+    out = []
+    for j in range(len(r_in)):
         lo = np.clip(edges[j], xa, xb)
         hi = np.clip(edges[j + 1], xa, xb)
         length = hi - lo
@@ -256,11 +266,8 @@ def _apply_piece(
             continue
         r1 = _radius_in_segment(edges, r_in, r_out, j, lo)
         r2 = _radius_in_segment(edges, r_in, r_out, j, hi)
-        A, B, C, D = frustum_matrix(air, length, r1, r2, omega, instrument.losses)
-        if reverse:
-            A, D = D, A
-        p, u = A * p + B * u, C * p + D * u
-    return p, u
+        out.append(frustum_matrix(air, length, r1, r2, omega, instrument.losses))
+    return out
 
 
 def _column(values: ArrayLike | None, default: list[float], n_inst: int) -> Float:
@@ -308,40 +315,49 @@ def impedance_batch(
     rs = np.broadcast_to(rs, (n_inst, n_holes))
     head = instrument.head
     x_m = np.full((n_inst, 1, 1), head.mouth_position_m)
-    stations = [x_m] + [xs[:, h, None, None] for h in range(n_holes)] + [lengths]
-    for upper, lower in zip(stations, stations[1:], strict=False):
-        if np.any(lower <= upper):
-            raise ValueError("holes must lie in order between the mouth and the foot")
 
     bore = instrument.bore
+    # Pieces and holes gain an axis after the instrument axis: (n_inst, n_pieces, n_fing, n_f).
+    om4 = omega[:, None]
+    xa = np.concatenate([x_m[:, :, 0], xs], axis=1)[:, :, None, None]
+    xb = np.concatenate([xs, lengths[:, :, 0]], axis=1)[:, :, None, None]
+    if np.any(xb <= xa):
+        raise ValueError("holes must lie in order between the mouth and the foot")
+    pieces = _piece_matrices(instrument, air, om4, xa, xb)
+    if n_holes:
+        za_o, ys_o, za_c, ys_c = hole_elements(
+            air, om4, bore.radius_at(xs)[:, :, None, None], rs[:, :, None, None],
+            np.array([h.chimney_m for h in holes])[None, :, None, None],
+            np.array([h.undercut_m for h in holes])[None, :, None, None],
+            instrument.losses, instrument.hole_radiation,
+        )  # fmt: skip
+        shut = closed.T[None, :, :, None]
+        za = np.where(shut, za_c, za_o)
+        ys = np.where(shut, ys_c, ys_o)
     a_foot = bore.radius_at(lengths)
     p = radiation_impedance(instrument.radiation, a_foot, k, rho * c / (np.pi * a_foot**2))
     u = np.ones_like(p)
     for h in range(n_holes, -1, -1):
-        p, u = _apply_piece(instrument, air, omega, stations[h], stations[h + 1], (p, u))
+        for A, B, C, D in reversed(pieces):
+            p, u = A[:, h] * p + B[:, h] * u, C[:, h] * p + D[:, h] * u
         if h == 0:
             break
-        hole = holes[h - 1]
-        za_o, ys_o, za_c, ys_c = hole_elements(
-            air, omega, bore.radius_at(stations[h]), rs[:, h - 1, None, None], hole.chimney_m,
-            hole.undercut_m, instrument.losses, instrument.hole_radiation,
-        )  # fmt: skip
-        shut = closed[None, :, h - 1, None]
-        za = np.where(shut, za_c, za_o)
-        ys = np.where(shut, ys_c, ys_o)
-        p = p + 0.5 * za * u
-        u = u + ys * p
-        p = p + 0.5 * za * u
+        zah, ysh = za[:, h - 1], ys[:, h - 1]
+        p = p + 0.5 * zah * u
+        u = u + ysh * p
+        p = p + 0.5 * zah * u
     shape = (n_inst, closed.shape[0], f.shape[-1])
     if downstream_only:
         return np.broadcast_to(p / u, shape).astype(np.complex128)
     y_j = u / p
     if head.cavity_length_m > 0.0:
-        cp, cu = _apply_piece(
-            instrument, air, omega, x_m - head.cavity_length_m, x_m,
-            (np.ones_like(omega, dtype=np.complex128), np.zeros_like(omega, dtype=np.complex128)),
-            reverse=True,
-        )  # fmt: skip
+        # Closed at the cork: start from (P, U) = (1, 0) there and carry it down to the mouth
+        # through the reversed matrices [[D, B], [C, A]] (U counted toward the cork).
+        top = head.mouth_position_m - head.cavity_length_m
+        cp: Complex | float = 1.0
+        cu: Complex | float = 0.0
+        for A, B, C, D in _piece_matrices(instrument, air, omega, np.array(top), x_m):
+            cp, cu = D * cp + B * cu, C * cp + A * cu
         y_j = y_j + cu / cp
     a_m = float(bore.radius_at(head.mouth_position_m))
     if head.kind == "open":

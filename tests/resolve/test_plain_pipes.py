@@ -1,0 +1,236 @@
+"""Resolver for pipes without side holes, checked against hand calculations and published
+formulas (sources beside each check)."""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import jsonschema
+import pytest
+
+from compiler.emit.resolved_json import to_dict
+from compiler.errors import PhysicsError
+from compiler.resolve.resolver import resolve
+from compiler.spec import load_spec
+
+SCHEMAS = Path(__file__).resolve().parents[2] / "schemas"
+
+
+def _spec(body: str, environment: str = "{temperature: 20 C, sound_speed: linear}",
+          fabrication: str = "{precision: 0.01 mm}") -> str:
+    return (f"boresmith: 1\ninstrument: Test bench\nenvironment: {environment}\n"
+            f"fabrication: {fabrication}\n"
+            "stock:\n"
+            "  tube-20: {material: aluminium, tube: {inside_diameter: 20 mm, wall: 1 mm}}\n"
+            "  tube-30: {material: aluminium, tube: {inside_diameter: 30 mm, wall: 1 mm}}\n"
+            "  tin: {material: spotted-metal, sheet: {thickness: 0.8 mm}}\n"
+            "  pine: {material: pine, board: {thickness: 15 mm}}\n" + body)
+
+
+def _resolve(text: str):  # type: ignore[no-untyped-def]
+    return resolve(load_spec(text, "bench.yaml"))
+
+
+def _tube_set(family: str, model: str, notes: str = "[A4]", extra: str = "") -> str:
+    return _spec(f"tube_sets:\n  - id: t\n    family: {family}\n    stock: tube-20\n"
+                 f"    notes: {notes}\n    end_correction: {model}\n{extra}")
+
+
+def test_rule_of_thumb_and_linear_speed_match_hand_calculation() -> None:
+    # Hand calculation: linear rule c = 331.3 + 0.606·20 = 343.42 m/s (common practice,
+    # REFERENCES §1a); open at both ends with 0.4 × diameter per open end (common practice):
+    # L = c/(2·440) − 2·0.4·0.020; the length is rounded to 0.01 mm, then f = c/(2(L + 0.016)).
+    r = _resolve(_tube_set("open-tube", "{model: rule-of-thumb, k: 0.4}"))
+    pipe = r.pipes[0]
+    c = 331.3 + 0.606 * 20
+    length = round((c / (2 * 440) - 2 * 0.4 * 0.020) / 1e-5) * 1e-5
+    assert r.groups[0].air.speed_m_s == pytest.approx(343.42, abs=1e-9)
+    assert pipe.speaking_length_m == pytest.approx(length, abs=1e-9)
+    assert pipe.predicted_hz == pytest.approx(c / (2 * (length + 0.016)), abs=0.01)
+
+
+@pytest.mark.parametrize(("model", "ratio"), [("unflanged", 0.6133), ("flanged", 0.8216)])
+def test_levine_schwinger_and_flanged_end_corrections(model: str, ratio: float) -> None:
+    # Levine & Schwinger 1948: 0.6133 a unflanged; Norris & Sheng 1989 via Dalmont et al.
+    # 2001: 0.8216 a flanged. An open tube has two open ends.
+    pipe = _resolve(_tube_set("open-tube", f"{{model: {model}}}")).pipes[0]
+    assert pipe.end_correction_m == pytest.approx(2 * ratio * 0.010, rel=1e-9)
+    assert pipe.acoustic_length_m == pytest.approx(pipe.speaking_length_m + 2 * ratio * 0.010)
+
+
+def test_stopped_tube_quarter_wave() -> None:
+    # f = c/(4(L + 0.6133a)) for a tube closed at one end (REFERENCES §11, lossless).
+    pipe = _resolve(_tube_set("stopped-tube", "{model: unflanged}")).pipes[0]
+    c = 343.42
+    assert pipe.predicted_hz == pytest.approx(c / (4 * (pipe.speaking_length_m + 0.6133 * 0.01)),
+                                              rel=1e-12)
+    assert pipe.target_hz == pytest.approx(440.0)
+    # the plug sits below the speaking length: cut = speaking length + plug (10 mm minimum)
+    assert pipe.stopper is not None
+    assert pipe.cut_length_m == pytest.approx(pipe.speaking_length_m + 0.010, abs=1e-9)
+
+
+def test_open_pipes_have_all_harmonics_stopped_only_odd() -> None:
+    # Fletcher & Rossing 1998 §8.2: open-open resonances at n·f1, closed-open at odd n·f1.
+    open_ = _resolve(_tube_set("open-tube", "{model: unflanged}")).pipes[0]
+    stopped = _resolve(_tube_set("stopped-tube", "{model: unflanged}")).pipes[0]
+    f1 = open_.harmonics_hz[0]
+    assert [h / f1 for h in open_.harmonics_hz] == pytest.approx([1, 2, 3, 4, 5, 6])
+    g1 = stopped.harmonics_hz[0]
+    assert [h / g1 for h in stopped.harmonics_hz] == pytest.approx([1, 3, 5, 7, 9, 11])
+
+
+def test_even_harmonic_of_a_stopped_tube_is_an_error() -> None:
+    with pytest.raises(PhysicsError, match="only odd harmonics"):
+        _resolve(_tube_set("stopped-tube", "{model: unflanged}", extra="    harmonic: 2\n"))
+
+
+def test_open_tube_on_a_higher_harmonic() -> None:
+    # Tuned on harmonic 3: L_eff = 3c/(2f).
+    pipe = _resolve(_tube_set("open-tube", "{model: unflanged}",
+                              extra="    harmonic: 3\n")).pipes[0]
+    assert pipe.acoustic_length_m == pytest.approx(3 * 343.42 / (2 * 440), abs=2e-5)
+
+
+@pytest.mark.parametrize(("model", "speed"), [
+    # REFERENCES §1: linear 343.42, ideal gas 343.215 at 20 °C; Cramer 1993 at 20 °C,
+    # 50 % RH, 400 ppm, 101.325 kPa: 343.987 m/s.
+    ("linear", 343.42), ("ideal-gas", 343.215), ("cramer-1993", 343.987)])
+def test_speed_of_sound_models_in_use(model: str, speed: float) -> None:
+    env = f"{{temperature: 20 C, humidity: 50 %, co2: 400 ppm, sound_speed: {model}}}"
+    r = resolve(load_spec(_spec("tube_sets:\n  - {id: t, family: open-tube, stock: tube-20, "
+                                "notes: [A4]}\n", environment=env), "b.yaml"))
+    assert r.groups[0].air.speed_m_s == pytest.approx(speed, abs=1e-3)
+
+
+def test_sensitivities() -> None:
+    # d(cents)/dL = −1200/ln2 / L_eff (f ∝ 1/L_eff); d(cents)/dT = 1200/ln2 · (dc/dT)/c with
+    # the linear rule's dc/dT = 0.606 m/s per K (REFERENCES §1a).
+    pipe = _resolve(_tube_set("open-tube", "{model: unflanged}")).pipes[0]
+    per_mm = -1200 / math.log(2) / (pipe.acoustic_length_m * 1000)
+    assert pipe.cents_per_mm == pytest.approx(per_mm, rel=1e-4)
+    assert pipe.cents_per_c == pytest.approx(1200 / math.log(2) * 0.606 / 343.42, rel=1e-6)
+
+
+def test_calibration_recovers_a_known_factor() -> None:
+    # Synthetic prototypes: open tubes built 300 and 200 mm long, measured at 20 °C where the
+    # true end correction is 1.25 × Levine–Schwinger: f = c/(2(L + 1.25·2·0.6133a)).
+    c = 343.42
+    measured = [(note, length, c / (2 * (length + 1.25 * 2 * 0.6133 * 0.010)))
+                for note, length in (("A4", 0.300), ("A5", 0.200))]
+    rows = "".join(f"      - {{note: {n}, frequency: {f!r} Hz, temperature: 20 C, "
+                   f"length: {L * 1000!r} mm}}\n" for n, L, f in measured)
+    r = _resolve(_tube_set("open-tube", "{model: unflanged}", notes="[A4, A5]",
+                           extra="    measured:\n" + rows))
+    fit = r.groups[0].calibration
+    assert fit.calibrated
+    assert fit.value == pytest.approx(1.25, abs=1e-6)
+    assert fit.rms_cents == pytest.approx(0.0, abs=1e-4)
+    assert r.pipes[0].end_correction_m == pytest.approx(1.25 * 2 * 0.6133 * 0.010, rel=1e-6)
+
+
+def test_uncalibrated_is_reported() -> None:
+    fit = _resolve(_tube_set("open-tube", "{model: unflanged}")).groups[0].calibration
+    assert not fit.calibrated and fit.value == 1.0
+
+
+RANK = """ranks:
+  - id: p
+    family: open-flue
+    construction: rolled-sheet
+    stock: tin
+    notes: {notes}
+    scale: {{reference: {{note: C2, diameter: 155.5 mm}}, halving_interval: 16}}
+    mouth: {{width: 1/4, cutup: 1/4}}
+"""
+
+
+def test_halving_interval_reproduces_normalmensur() -> None:
+    # Töpfer's Normalmensur (REFERENCES §8; Adelung 1991): D = 155.5 mm · 2^(−n/16);
+    # 4' C = 92.46 mm, 2' C = 54.98 mm, 1' C = 32.69 mm; halves on the 17th note (E3).
+    r = _resolve(_spec(RANK.format(notes="[C2, C3, E3, C4, C5]")))
+    d = {p.note: p.inside_diameter_m * 1000 for p in r.pipes}
+    assert d["C3"] == pytest.approx(92.46, abs=0.005)
+    assert d["C4"] == pytest.approx(54.98, abs=0.005)
+    assert d["C5"] == pytest.approx(32.69, abs=0.005)
+    assert d["E3"] == pytest.approx(155.5 / 2, abs=1e-9)
+
+
+def test_mouth_and_its_correction() -> None:
+    # Mouth width 1/4 of the circumference (Töpfer, REFERENCES §7b); cut-up 1/4 of it;
+    # correction Δ = (S/A)(ℓ + 0.9·√A), Rayleigh orifice (REFERENCES §7a, derived).
+    pipe = _resolve(_spec(RANK.format(notes="[C3]"))).pipes[0]
+    d = 0.1555 * 2 ** (-12 / 16)
+    width = math.pi * d / 4
+    area = width * width / 4
+    assert pipe.mouth is not None
+    assert pipe.mouth.width_m == pytest.approx(width, rel=1e-12)
+    assert pipe.mouth.cutup_m == pytest.approx(width / 4, rel=1e-12)
+    expected = (math.pi * d * d / 4) / area * (0.0008 + 0.9 * math.sqrt(area))
+    assert pipe.mouth.correction_m == pytest.approx(expected, rel=1e-12)
+    # open flue: top correction (Levine–Schwinger, default) plus the mouth
+    assert pipe.end_correction_m == pytest.approx(0.6133 * d / 2 + expected, rel=1e-9)
+
+
+def test_tuning_allowance_adds_to_the_cut_length() -> None:
+    r = _resolve(_spec(RANK.format(notes="[C3]")).replace(
+        "fabrication: {precision: 0.01 mm}",
+        "fabrication: {precision: 0.1 mm, tuning_allowance: 3 %}"))
+    pipe = r.pipes[0]
+    assert pipe.cut_length_m == pytest.approx(
+        pipe.speaking_length_m + round(pipe.speaking_length_m * 0.03, 4), abs=1e-9)
+
+
+def test_stopped_wooden_pipe_has_a_stopper_and_block() -> None:
+    text = _spec("""ranks:
+  - id: g
+    family: stopped-flue
+    construction: boards
+    stock: pine
+    notes: [C3]
+    scale: {reference: {note: C3, width: 60 mm, depth: 75 mm}, halving_interval: 17}
+    mouth: {width: 1, cutup: 0.4}
+    stopper: {length: 50 mm, travel: 20 mm}
+""")
+    pipe = _resolve(text).pipes[0]
+    assert pipe.section == "rect"
+    assert pipe.stopper is not None and pipe.block is not None
+    assert pipe.stopper.position_m == pytest.approx(pipe.speaking_length_m)
+    assert pipe.cut_length_m == pytest.approx(
+        pipe.block.length_m + pipe.speaking_length_m + 0.050 + 0.020, abs=1e-9)
+    # stopped: quarter wave, odd harmonics; the equivalent radius is sqrt(W·D/π) (§8)
+    assert [h / pipe.harmonics_hz[0] for h in pipe.harmonics_hz[:3]] == pytest.approx([1, 3, 5])
+
+
+def test_stock_choice_picks_the_nearest_fitting_tube() -> None:
+    text = _spec("tube_sets:\n  - {id: t, family: stopped-tube, stock: [tube-20, tube-30], "
+                 "notes: [C4, C5]}\n")
+    r = _resolve(text)
+    picked = {p.note: p.stock for p in r.pipes}
+    # C4 (≈ 320 mm long): the 30 mm bore gives L/D ≈ 10.6, nearer 12 than 20 mm (≈ 16);
+    # C5 (≈ 158 mm): 20 mm gives ≈ 7.9, nearer 12 than 30 mm (≈ 5.1).
+    assert picked == {"C4": "tube-30", "C5": "tube-20"}
+
+
+def test_note_no_stock_can_reach() -> None:
+    text = _spec("tube_sets:\n  - {id: t, family: stopped-tube, stock: tube-30, "
+                 "notes: [C7]}\n")
+    with pytest.raises(PhysicsError, match="no listed stock can make C7"):
+        _resolve(text)
+
+
+def test_resolved_json_follows_its_schema() -> None:
+    schema = json.loads((SCHEMAS / "boresmith-resolved.schema.json").read_text())
+    text = _spec(RANK.format(notes="C3..C4") + "tube_sets:\n  - {id: t, family: open-tube, "
+                 "stock: tube-20, notes: [A4, B4]}\n")
+    data = json.loads(json.dumps(to_dict(_resolve(text))))
+    jsonschema.Draft202012Validator(schema).validate(data)
+    assert len(data["pipes"]) == 15
+    for pipe in data["pipes"]:
+        for key in pipe:
+            assert key.endswith(("_mm", "_hz", "_cents", "_c", "_m_s")) or key in {
+                "id", "group", "family", "construction", "note", "harmonic", "stock", "material",
+                "section", "mouth", "foot", "block", "stopper", "head", "holes", "fingerings",
+                "curves", "source"}, key
