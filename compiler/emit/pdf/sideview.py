@@ -1,0 +1,466 @@
+"""Dimensioned side view of one pipe: its outline, mouth or head, holes, and dimension lines.
+
+The view is built in the pipe's own millimetres (x across, centred; y up from the bottom
+end), then fitted into a box on the page: lengths along the pipe get dimension lines on the
+right (stacked so labels never overlap), widths get dimension lines above or below, and
+features (mouth, toe hole, stopper, holes) get leader callouts on the left. In *key* mode
+the labels are the dimensions' letters, for the drawing at the head of a rank's table.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from reportlab.pdfbase.pdfmetrics import stringWidth
+from reportlab.pdfgen.canvas import Canvas
+
+from compiler.emit.pdf import dimensions as D
+from compiler.emit.pdf.document import fit_text
+from compiler.emit.pdf.style import (
+    ACCENT,
+    FAINT,
+    FONT,
+    FONT_BOLD,
+    GREY,
+    INK,
+    LIGHT,
+    MM,
+    inch,
+    mm,
+)
+from compiler.resolve.model import Head, Pipe
+
+Point = tuple[float, float]
+
+
+@dataclass(frozen=True)
+class Shape:
+    style: str
+    """``outline``, ``hidden`` (dashed), ``centre`` (chain line), ``opening`` (dark fill),
+    ``solid`` (hatched: block, stopper, plug), ``tint`` (tuning allowance)."""
+    points: tuple[Point, ...]
+    closed: bool = True
+
+
+@dataclass(frozen=True)
+class HoleMark:
+    x: float
+    y: float
+    radius: float
+    hidden: bool
+
+
+@dataclass(frozen=True)
+class VDim:
+    y0: float
+    y1: float
+    dim: D.Dim
+
+
+@dataclass(frozen=True)
+class HDim:
+    x0: float
+    x1: float
+    y: float
+    dim: D.Dim
+    above: bool
+
+
+@dataclass(frozen=True)
+class Callout:
+    x: float
+    y: float
+    text: str
+    key_text: str
+
+
+@dataclass(frozen=True)
+class View:
+    half_width: float
+    height: float
+    shapes: tuple[Shape, ...]
+    holes: tuple[HoleMark, ...]
+    vdims: tuple[VDim, ...]
+    hdims: tuple[HDim, ...]
+    callouts: tuple[Callout, ...]
+
+
+def _rect(style: str, x0: float, y0: float, x1: float, y1: float) -> Shape:
+    return Shape(style, ((x0, y0), (x1, y0), (x1, y1), (x0, y1)))
+
+
+def _line(style: str, a: Point, b: Point) -> Shape:
+    return Shape(style, (a, b), closed=False)
+
+
+def _k(dims: dict[str, D.Dim], *names: str) -> str:
+    return " × ".join(dims[n].key for n in names if n in dims and dims[n].key)
+
+
+def build_view(pipe: Pipe, inches: bool) -> View:
+    """The side view of a resolved pipe, in its own millimetres."""
+    dims = D.by_name(D.dimensions(pipe))
+    shapes: list[Shape] = []
+    holes: list[HoleMark] = []
+    vdims: list[VDim] = []
+    hdims: list[HDim] = []
+    calls: list[Callout] = []
+
+    def size(name: str) -> str:
+        return mm(dims[name].value_m)
+
+    cut = pipe.cut_length_m * 1000.0
+    speaking = pipe.speaking_length_m * 1000.0
+    if pipe.section == "rect":
+        inner = (pipe.inside_width_m or 0.0) * 500.0
+    else:
+        inner = (pipe.inside_diameter_m or 0.0) * 500.0
+    outer = inner + pipe.wall_m * 1000.0
+    if pipe.construction == "stock-tube" and pipe.outside_diameter_m:
+        outer = pipe.outside_diameter_m * 500.0
+    base = 0.0  # the lower lip (flue pipes), or the bottom end
+    if pipe.foot is not None:
+        base = pipe.foot.length_m * 1000.0
+        toe = pipe.foot.toe_diameter_m * 500.0
+        shapes.append(Shape("outline", ((-toe, 0.0), (toe, 0.0), (inner, base), (-inner, base))))
+        vdims.append(VDim(0.0, base, dims[D.FOOT]))
+        hdims.append(HDim(-toe, toe, 0.0, dims[D.TOE], above=False))
+        calls.append(Callout(0.0, 0.0, f"toe hole ø {size(D.TOE_HOLE)}",
+                             f"toe hole {_k(dims, D.TOE_HOLE)}"))
+    elif pipe.block is not None:
+        base = pipe.block.length_m * 1000.0
+    top = base + cut if pipe.foot is not None else cut
+    shapes.append(_rect("outline", -outer if pipe.foot is None else -inner, base
+                        if pipe.foot is not None else 0.0, outer if pipe.foot is None else inner,
+                        top))
+    if pipe.foot is None and outer > inner:
+        shapes += [_line("hidden", (-inner, 0.0), (-inner, top)),
+                   _line("hidden", (inner, 0.0), (inner, top))]
+    shapes.append(_line("centre", (0.0, -3.0), (0.0, top + 3.0)))
+    width_name = D.INSIDE_WIDTH if pipe.section == "rect" else (
+        D.OUTSIDE_DIAMETER if D.OUTSIDE_DIAMETER in dims else D.INSIDE_DIAMETER)
+    wv = outer if width_name == D.OUTSIDE_DIAMETER else inner
+    hdims.append(HDim(-wv, wv, top, dims[width_name], above=True))
+
+    if pipe.block is not None:
+        shapes.append(_rect("solid", -inner, 0.0, inner, base))
+        vdims.append(VDim(0.0, base, dims[D.BLOCK]))
+        calls.append(Callout(-inner * 0.6, base - 1.0, f"flue {size(D.FLUE)}", ""))
+    if pipe.mouth is not None:
+        w, h = pipe.mouth.width_m * 500.0, pipe.mouth.cutup_m * 1000.0
+        shapes.append(_rect("opening", -w, base, w, base + h))
+        calls.append(Callout(-w * 0.5, base + h * 0.5,
+                             f"mouth {size(D.MOUTH_WIDTH)} × {size(D.CUTUP)}",
+                             f"mouth {_k(dims, D.MOUTH_WIDTH, D.CUTUP)}"))
+    if pipe.head is None:
+        if pipe.family in ("open-flue", "open-tube") and speaking < top - base - 0.01:
+            shapes.append(_rect("tint", -inner, base + speaking, inner, top))
+            shapes.append(_line("hidden", (-outer, base + speaking), (outer, base + speaking)))
+        if pipe.stopper is None or pipe.construction != "stock-tube":
+            vdims.append(VDim(base, base + speaking, dims[D.SPEAKING]))
+    vdims.append(VDim(0.0 if pipe.foot is None else base, top, dims[D.CUT]))
+
+    stop = pipe.stopper
+    if stop is not None and pipe.construction == "stock-tube":
+        face = top - stop.position_m * 1000.0
+        shapes.append(_rect("solid", -inner, max(0.0, face - stop.length_m * 1000.0), inner, face))
+        vdims.append(VDim(face, top, dims[D.SPEAKING]))
+        calls.append(Callout(0.0, face, f"plug face {size(D.PLUG)} from the top",
+                             f"plug face {_k(dims, D.PLUG)} from the top"))
+    elif stop is not None:
+        face = base + stop.position_m * 1000.0
+        end = min(top, face + stop.length_m * 1000.0)
+        shapes.append(_rect("solid", -inner, face, inner, end))
+        if end < top:
+            shapes.append(_rect("tint", -inner, end, inner, top))
+        calls.append(Callout(0.0, face, f"stopper face {size(D.STOPPER)} above the lower lip",
+                             f"stopper face {_k(dims, D.STOPPER)}"))
+
+    head = pipe.head
+    if head is not None:
+        _head(head, top, inner, dims, shapes, holes, vdims, calls)
+    for hole in pipe.holes:
+        y = hole.position_from_bottom_m * 1000.0
+        hidden = 90.0 < abs(hole.angle_deg) % 360.0 < 270.0
+        holes.append(HoleMark(0.0, y, hole.diameter_m * 500.0, hidden))
+        where = "back" if hidden else ""
+        calls.append(Callout(0.0, y, f"{hole.label} ø {mm(hole.diameter_m)}  at "
+                             f"{mm(hole.position_from_top_m)} from top"
+                             + (f" ({where})" if where else "")
+                             + (f" = {inch(hole.position_from_top_m)} in" if inches else ""),
+                             ""))
+    return View(max(outer, inner), top, tuple(shapes), tuple(holes), tuple(vdims),
+                tuple(hdims), tuple(calls))
+
+
+def _head(head: Head, top: float, inner: float, dims: dict[str, D.Dim],
+          shapes: list[Shape], holes: list[HoleMark], vdims: list[VDim],
+          calls: list[Callout]) -> None:
+    if head.kind == "duct" and head.labium_from_top_m is not None:
+        lab = top - head.labium_from_top_m * 1000.0
+        wl = (head.window_length_m or 0.0) * 1000.0
+        ww = (head.window_width_m or inner) * 500.0
+        shapes.append(_rect("solid", -inner, lab + wl, inner, top))
+        shapes.append(_rect("opening", -ww, lab, ww, lab + wl))
+        vdims.append(VDim(lab, top, dims[D.LABIUM]))
+        text = "window"
+        if D.WINDOW_LENGTH in dims and D.WINDOW_WIDTH in dims:
+            text += f" {mm(dims[D.WINDOW_LENGTH].value_m)} × {mm(dims[D.WINDOW_WIDTH].value_m)}"
+        calls.append(Callout(-ww * 0.5, lab + wl * 0.5, text, ""))
+        if D.DUCT in dims:
+            calls.append(Callout(0.0, lab + wl + 4.0,
+                                 f"duct height {mm(dims[D.DUCT].value_m)}", ""))
+    elif head.embouchure_from_top_m is not None:
+        y = top - head.embouchure_from_top_m * 1000.0
+        holes.append(HoleMark(0.0, y, (head.embouchure_diameter_m or 0.0) * 500.0, False))
+        vdims.append(VDim(y, top, dims[D.EMBOUCHURE_FROM_TOP]))
+        calls.append(Callout(0.0, y, "embouchure ø "
+                             + mm(head.embouchure_diameter_m or 0.0), ""))
+        if head.cork_m is not None:
+            cy = y + head.cork_m * 1000.0
+            shapes.append(_rect("solid", -inner, cy, inner, min(top, cy + 4.0)))
+            calls.append(Callout(0.0, cy, f"cork face {mm(head.cork_m)} above the embouchure",
+                                 ""))
+
+
+# --- drawing -------------------------------------------------------------------------------
+
+LEVEL = 6.0 * MM
+MIN_WIDTH = 10.0 * MM
+
+
+def _dim_label(dim: D.Dim, inches: bool, key: bool) -> str:
+    if key:
+        return dim.key
+    text = mm(dim.value_m)
+    return text + (f" ({inch(dim.value_m)} in)" if inches else "")
+
+
+def _font(key: bool) -> tuple[str, float]:
+    return (FONT_BOLD, 10.0) if key else (FONT, 7.5)
+
+
+def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
+              inches: bool, key: bool = False) -> str:
+    """Draw ``view`` fitted into the box (points); returns the scale note shown under it."""
+    font, size = _font(key)
+    vdims = [v for v in view.vdims if v.dim.key or not key]
+    hdims = [d for d in view.hdims if d.dim.key or not key]
+    calls = [co for co in view.callouts if co.key_text or not key]
+    labels = [_dim_label(v.dim, inches, key) for v in vdims]
+    texts = [co.key_text if key else co.text for co in calls]
+    left = min(max((stringWidth(t, FONT, 7.5) for t in texts), default=0.0) + 9 * MM, w * 0.55)
+    if not texts:
+        left = 4 * MM
+    top_res = 3 * MM + LEVEL * sum(1 for d in hdims if d.above)
+    bottom_res = 3 * MM + LEVEL * sum(1 for d in hdims if not d.above)
+    levels = len(vdims)
+    for _ in range(2):
+        right = 5 * MM + LEVEL * max(levels, 1)
+        sy = min((h - top_res - bottom_res) / view.height,
+                 (w - left - right) / (2.0 * view.half_width), MM)
+        assigned = _levels(vdims, labels, sy, font, size)
+        levels = max(assigned, default=-1) + 1
+    sx = sy
+    note = f"drawn at 1:{1.0 / (sy / MM):.1f}" if sy < MM * 0.999 else "drawn at 1:1"
+    if 2.0 * view.half_width * sx < MIN_WIDTH:
+        sx = min(MIN_WIDTH, w - left - right) / (2.0 * view.half_width)
+        note = "lengths " + note[6:] + "; widths exaggerated"
+    drawn_h = view.height * sy
+    cx = x + left + view.half_width * sx
+    by = y + bottom_res + (h - top_res - bottom_res - drawn_h) / 2.0
+
+    def at(px: float, py: float) -> Point:
+        return cx + px * sx, by + py * sy
+
+    for shape in view.shapes:
+        _shape(c, shape, at)
+    for hole in view.holes:
+        hx, hy = at(hole.x, hole.y)
+        c.setLineWidth(0.8)
+        c.setStrokeColor(INK)
+        c.setFillColor(LIGHT if hole.hidden else FAINT)
+        c.setDash(2, 1.5) if hole.hidden else c.setDash()
+        c.ellipse(hx - hole.radius * sx, hy - hole.radius * sy, hx + hole.radius * sx,
+                  hy + hole.radius * sy, stroke=1, fill=1)
+        c.setDash()
+    c.setStrokeColor(ACCENT)
+    c.setFillColor(ACCENT)
+    right_x = cx + view.half_width * sx
+    for v, label, level in zip(vdims, labels, assigned, strict=True):
+        lx = right_x + 5 * MM + level * LEVEL
+        _vdim(c, lx, right_x + 1.0, at(0, v.y0)[1], at(0, v.y1)[1], label, font, size)
+    up = down = 0
+    for d in hdims:
+        x0, fy = at(d.x0, d.y)
+        x1, _ = at(d.x1, d.y)
+        if d.above:
+            ly = by + drawn_h + 4 * MM + up * LEVEL
+            up += 1
+        else:
+            ly = by - 4 * MM - down * LEVEL
+            down += 1
+        _hdim(c, x0, x1, fy, ly, _dim_label(d.dim, inches, key), font, size)
+    _callouts(c, calls, texts, at, cx - view.half_width * sx - 4 * MM, y, y + h, key)
+    c.setStrokeColor(INK)
+    c.setFillColor(INK)
+    return note
+
+
+def _levels(vdims: list[VDim], labels: list[str], sy: float, font: str, size: float
+            ) -> list[int]:
+    """Stack the length dimensions in columns so that no two labels overlap."""
+    spans: list[tuple[float, float]] = []
+    for v, label in zip(vdims, labels, strict=True):
+        length = abs(v.y1 - v.y0) * sy
+        need = stringWidth(label, font, size) + 4 * MM
+        lo, hi = min(v.y0, v.y1) * sy, max(v.y0, v.y1) * sy
+        spans.append((lo, hi if length >= need else hi + need))
+    order = sorted(range(len(vdims)), key=lambda i: (spans[i][1] - spans[i][0], i))
+    taken: list[list[tuple[float, float]]] = []
+    out = [0] * len(vdims)
+    for i in order:
+        lo, hi = spans[i]
+        for level, used in enumerate(taken):
+            if all(hi + MM < a or lo - MM > b for a, b in used):
+                used.append((lo, hi))
+                out[i] = level
+                break
+        else:
+            taken.append([(lo, hi)])
+            out[i] = len(taken) - 1
+    return out
+
+
+def _shape(c: Canvas, shape: Shape, at: object) -> None:
+    pts = [at(px, py) for px, py in shape.points]  # type: ignore[operator]
+    path = c.beginPath()
+    path.moveTo(*pts[0])
+    for p in pts[1:]:
+        path.lineTo(*p)
+    if shape.closed:
+        path.close()
+    c.setDash()
+    c.setStrokeColor(INK)
+    c.setLineWidth(1.0)
+    style = shape.style
+    if style == "outline":
+        c.drawPath(path, stroke=1, fill=0)
+    elif style == "hidden":
+        c.setLineWidth(0.4)
+        c.setDash(3, 2)
+        c.drawPath(path, stroke=1, fill=0)
+    elif style == "centre":
+        c.setLineWidth(0.3)
+        c.setStrokeColor(GREY)
+        c.setDash(8, 2, 1.5, 2)
+        c.drawPath(path, stroke=1, fill=0)
+    elif style == "opening":
+        c.setFillColor(GREY)
+        c.drawPath(path, stroke=1, fill=1)
+    elif style == "tint":
+        c.setFillColor(FAINT)
+        c.drawPath(path, stroke=0, fill=1)
+    elif style == "solid":
+        c.setFillColor(LIGHT)
+        c.setLineWidth(0.6)
+        c.drawPath(path, stroke=1, fill=1)
+    c.setDash()
+    c.setFillColor(INK)
+
+
+def _arrow(c: Canvas, x: float, y: float, dx: float, dy: float) -> None:
+    """A filled arrowhead with its tip at (x, y) pointing along (dx, dy) (a unit vector)."""
+    length, half = 2.0 * MM, 0.6 * MM
+    bx, by = x - dx * length, y - dy * length
+    path = c.beginPath()
+    path.moveTo(x, y)
+    path.lineTo(bx - dy * half, by + dx * half)
+    path.lineTo(bx + dy * half, by - dx * half)
+    path.close()
+    c.drawPath(path, stroke=0, fill=1)
+
+
+def _vdim(c: Canvas, lx: float, ext_from: float, y0: float, y1: float, label: str,
+          font: str, size: float) -> None:
+    lo, hi = min(y0, y1), max(y0, y1)
+    c.setLineWidth(0.35)
+    c.line(ext_from, lo, lx + 1.5 * MM, lo)
+    c.line(ext_from, hi, lx + 1.5 * MM, hi)
+    tw = stringWidth(label, font, size)
+    c.saveState()
+    if hi - lo >= tw + 4 * MM:
+        c.line(lx, lo, lx, hi)
+        _arrow(c, lx, lo, 0.0, -1.0)
+        _arrow(c, lx, hi, 0.0, 1.0)
+        mid = (lo + hi) / 2.0
+    else:
+        c.line(lx, lo - 3 * MM, lx, hi + tw + 3 * MM)
+        _arrow(c, lx, lo, 0.0, 1.0)
+        _arrow(c, lx, hi, 0.0, -1.0)
+        mid = hi + 2.5 * MM + tw / 2.0
+    c.translate(lx - 0.8 * MM, mid)
+    c.rotate(90)
+    c.setFont(font, size)
+    c.setFillColor(INK)
+    c.drawCentredString(0, 0, label)
+    c.restoreState()
+
+
+def _hdim(c: Canvas, x0: float, x1: float, fy: float, ly: float, label: str, font: str,
+          size: float) -> None:
+    lo, hi = min(x0, x1), max(x0, x1)
+    c.setLineWidth(0.35)
+    sign = 1.0 if ly > fy else -1.0
+    c.line(lo, fy + sign * 1.0, lo, ly + sign * 1.5 * MM)
+    c.line(hi, fy + sign * 1.0, hi, ly + sign * 1.5 * MM)
+    c.setFont(font, size)
+    c.setFillColor(INK)
+    tw = stringWidth(label, font, size)
+    if hi - lo >= 6 * MM:
+        c.line(lo, ly, hi, ly)
+        _arrow(c, lo, ly, -1.0, 0.0)
+        _arrow(c, hi, ly, 1.0, 0.0)
+    else:
+        c.line(lo - 3 * MM, ly, hi + 3 * MM, ly)
+        _arrow(c, lo, ly, 1.0, 0.0)
+        _arrow(c, hi, ly, -1.0, 0.0)
+    if tw + 2 * MM <= hi - lo:
+        c.drawCentredString((lo + hi) / 2.0, ly + 0.8 * MM, label)
+    else:
+        c.drawString(hi + 3.5 * MM, ly - size * 0.35, label)
+    c.setFillColor(ACCENT)
+
+
+def _callouts(c: Canvas, calls: list[Callout], texts: list[str], at: object, text_right: float,
+              y_min: float, y_max: float, key: bool) -> None:
+    """Leader callouts on the left, spread apart so that no two labels touch."""
+    if not calls:
+        return
+    size = 7.5
+    gap = size * 1.35
+    targets = [at(co.x, co.y) for co in calls]  # type: ignore[operator]
+    order = sorted(range(len(calls)), key=lambda i: (-targets[i][1], i))
+    ys: dict[int, float] = {}
+    last = y_max - size
+    for i in order:
+        ys[i] = min(targets[i][1] - size * 0.35, last)
+        last = ys[i] - gap
+    low = y_min + size * 0.5
+    for i in reversed(order):
+        if ys[i] < low:
+            ys[i] = low
+        low = ys[i] + gap
+    c.setFont(FONT, size)
+    for i in order:
+        tx, ty = targets[i]
+        ly = ys[i]
+        c.setFillColor(INK)
+        c.drawRightString(text_right, ly, fit_text(texts[i], FONT, size, text_right))
+        c.setStrokeColor(GREY)
+        c.setLineWidth(0.35)
+        c.line(text_right + 1.0 * MM, ly + size * 0.35, tx, ty)
+        c.setFillColor(ACCENT)
+        c.circle(tx, ty, 0.5 * MM, stroke=0, fill=1)
+    c.setStrokeColor(ACCENT)
+    c.setFillColor(ACCENT)

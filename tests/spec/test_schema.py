@@ -1,0 +1,67 @@
+"""The spec schema: valid JSON Schema 2020-12, help on every property, examples that pass,
+one source of truth shipped with the package, and the bundled examples valid under it."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+from typing import Any
+
+import pytest
+from jsonschema import Draft202012Validator
+
+from compiler.spec import load_spec
+from compiler.spec.validate import SPEC_SCHEMA, read_schema
+
+ROOT = Path(__file__).resolve().parents[2]
+SCHEMA_FILE = ROOT / "schemas" / SPEC_SCHEMA
+
+
+def _walk(node: Any, path: str = "#") -> list[tuple[str, dict[str, Any]]]:
+    found = []
+    if isinstance(node, dict):
+        for name, sub in node.get("properties", {}).items():
+            if isinstance(sub, dict):
+                found.append((f"{path}/properties/{name}", sub))
+        for key, value in node.items():
+            if key not in ("allOf",):
+                found += _walk(value, f"{path}/{key}")
+    elif isinstance(node, list):
+        for i, value in enumerate(node):
+            found += _walk(value, f"{path}/{i}")
+    return found
+
+
+def test_schema_is_valid_2020_12_with_id() -> None:
+    schema = json.loads(SCHEMA_FILE.read_text())
+    Draft202012Validator.check_schema(schema)
+    assert schema["$schema"] == "https://json-schema.org/draft/2020-12/schema"
+    assert schema["$id"].endswith(SPEC_SCHEMA)
+    assert schema["additionalProperties"] is False
+
+
+def test_every_property_has_a_description() -> None:
+    missing = [path for path, sub in _walk(json.loads(SCHEMA_FILE.read_text()))
+               if "description" not in sub and "$ref" not in sub]
+    assert missing == []
+
+
+def test_every_object_rejects_unknown_keys() -> None:
+    schema = json.loads(SCHEMA_FILE.read_text())
+    loose = [path for path, sub in _walk(schema)
+             if sub.get("type") == "object" and "properties" in sub
+             and sub.get("additionalProperties") is not False]
+    assert loose == []
+
+
+def test_loaded_schema_is_the_checked_in_file() -> None:
+    # One source of truth: what the program validates with is schemas/ verbatim.
+    assert read_schema(SPEC_SCHEMA) == json.loads(SCHEMA_FILE.read_text())
+
+
+@pytest.mark.parametrize("path", sorted((ROOT / "specs_examples").glob("*.yaml")),
+                         ids=lambda p: p.stem)
+def test_examples_are_valid_and_carry_the_modeline(path: Path) -> None:
+    text = path.read_text()
+    assert text.startswith("# yaml-language-server: $schema=../schemas/" + SPEC_SCHEMA)
+    load_spec(text, str(path))

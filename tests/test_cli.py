@@ -1,0 +1,70 @@
+"""The command line: exit codes, JSON problems, `python -m compiler`, a fast `check`."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from compiler.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLE = ROOT / "specs_examples" / "house-organ-principal.yaml"
+BAD = ROOT / "tests" / "invalid" / "misspelt-env-key.yaml"
+
+
+def test_check_ok(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["check", str(EXAMPLE)]) == 0
+    assert "ok" in capsys.readouterr().err
+
+
+def test_check_json(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["check", "--json", str(BAD), str(EXAMPLE)]) == 1
+    problems = json.loads(capsys.readouterr().out)
+    assert problems == [{
+        "file": str(BAD), "line": 5, "col": 3, "severity": "error", "category": "schema",
+        "message": "unknown key `humidty` in environment",
+        "hint": "did you mean `humidity`? valid keys here: `co2`, `humidity`, `pressure`, "
+                "`sound_speed`, `temperature`"}]
+
+
+def test_usage_errors() -> None:
+    assert main([]) == 2
+    assert main(["frobnicate"]) == 2
+    assert main(["check"]) == 2
+
+
+def test_python_dash_m_is_the_same_program() -> None:
+    done = subprocess.run([sys.executable, "-m", "compiler", "check", str(BAD)],
+                          capture_output=True, text=True, cwd=ROOT, check=False)
+    assert done.returncode == 1
+    assert done.stderr.startswith(f"{BAD}:5:3: error: unknown key `humidty`")
+
+
+def test_check_imports_no_heavy_modules() -> None:
+    code = ("import sys; from compiler.cli import main; main(['check', %r]); "
+            "print(sorted(m for m in ('numpy', 'ezdxf', 'reportlab', 'shapely') "
+            "if m in sys.modules))" % str(EXAMPLE))
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          cwd=ROOT, check=True)
+    assert done.stdout.strip() == "[]"
+
+
+def test_resolve_json_is_deterministic(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["resolve", "--json", str(EXAMPLE)]) == 0
+    first = capsys.readouterr().out
+    assert main(["resolve", "--json", str(EXAMPLE)]) == 0
+    assert capsys.readouterr().out == first
+    data = json.loads(first)
+    assert data["pipes"][0]["id"] == "principal-4-C3"
+    assert len(data["pipes"]) == 37
+
+
+def test_resolve_table(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["resolve", str(EXAMPLE)]) == 0
+    out = capsys.readouterr().out
+    assert "note  target Hz  predicted Hz" in out
+    assert "\nC3 " in out and "\nC6 " in out
