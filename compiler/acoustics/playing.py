@@ -84,10 +84,16 @@ def bracket(
 
 
 def refine(
-    evaluate: Evaluate, lo: Float, hi: Float, tol: float = 1e-10, max_iter: int = 60
+    evaluate: Evaluate,
+    lo: Float,
+    hi: Float,
+    start: Float | None = None,
+    tol: float = 1e-10,
+    max_iter: int = 60,
 ) -> tuple[Float, Float]:
     """Zero crossings of Im Z inside brackets [lo, hi] (Im Z(lo) < 0 ≤ Im Z(hi)), vectorised.
 
+    start: first guesses inside the brackets (default: their geometric middle).
     Returns (frequencies, slope d(Im Z)/df at the root); NaN brackets give NaN.
     Newton steps on Im Z with a forward-difference slope; a step leaving the bracket (or with a
     non-positive slope) is replaced by bisection, and each evaluation shrinks the bracket.
@@ -96,7 +102,7 @@ def refine(
     hi = np.array(hi, dtype=np.float64)
     bad = ~(np.isfinite(lo) & np.isfinite(hi))
     lo[bad], hi[bad] = 1.0, 1.0 + 1e-3
-    f = np.sqrt(lo * hi)
+    f = np.sqrt(lo * hi) if start is None else np.where(bad, lo, np.asarray(start, dtype=np.float64))
     slope = np.ones_like(f)
     for _ in range(max_iter):
         z = evaluate(np.concatenate([f, f * (1.0 + _EPS)], axis=-1))
@@ -133,7 +139,7 @@ def track(
     g = evaluate(np.concatenate([lo, hi], axis=-1)).imag
     n = guess.shape[-1]
     ok = (g[..., :n] < 0.0) & (g[..., n:] >= 0.0)
-    f, slope = refine(evaluate, np.where(ok, lo, np.nan), np.where(ok, hi, np.nan))
+    f, slope = refine(evaluate, np.where(ok, lo, np.nan), np.where(ok, hi, np.nan), start=guess)
     return f, slope, ok
 
 
