@@ -130,12 +130,12 @@ def frustum_matrix(
     a1 = np.asarray(r1_m, dtype=np.float64)
     a2 = np.asarray(r2_m, dtype=np.float64)
     w = np.asarray(omega, dtype=np.float64)
-    a_eq = equivalent_radius(a1, a2)
-    zc, gamma = characteristic(air, a_eq, w, losses)
     dr = a2 - a1
     cyl = np.abs(dr) <= 1e-9 * np.maximum(a1, a2)
     if np.all(cyl):
-        return cylinder_matrix(L, zc, gamma)
+        return cylinder_matrix(L, *characteristic(air, a1, w, losses))
+    a_eq = equivalent_radius(a1, a2)
+    zc, gamma = characteristic(air, a_eq, w, losses)
     z = zc * (np.pi * a_eq * a_eq)
     s12 = np.pi * a1 * a2
     # Dummy apex distances where the element is cylindrical, so that no branch divides by 0.
@@ -151,10 +151,15 @@ def frustum_matrix(
     D = (x1 / x2) * ch + sh / (gamma * x2)
     if np.any(cyl):
         cA, cB, cC, cD = cylinder_matrix(L, zc, gamma)
-        A, B, C, D = (np.where(cyl, cyl_v, cone_v)
-                      for cyl_v, cone_v in ((cA, A), (cB, B), (cC, C), (cD, D)))  # fmt: skip
-    return (np.asarray(A, dtype=np.complex128), np.asarray(B, dtype=np.complex128),
-            np.asarray(C, dtype=np.complex128), np.asarray(D, dtype=np.complex128))  # fmt: skip
+        A, B, C, D = (
+            np.where(cyl, cyl_v, cone_v) for cyl_v, cone_v in ((cA, A), (cB, B), (cC, C), (cD, D))
+        )
+    return (
+        np.asarray(A, dtype=np.complex128),
+        np.asarray(B, dtype=np.complex128),
+        np.asarray(C, dtype=np.complex128),
+        np.asarray(D, dtype=np.complex128),
+    )
 
 
 def input_impedance(matrix: Matrix, load: ArrayLike) -> Complex:

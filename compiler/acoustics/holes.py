@@ -115,7 +115,7 @@ def radiation_length(model: str, hole_radius_m: ArrayLike, outer_radius_m: Array
         ratio = np.minimum(b / np.asarray(outer_radius_m, dtype=np.float64), 1.0)
         return np.asarray(b * (FLANGED_RATIO - 0.47 * ratio**0.8), dtype=np.float64)
     raise ValueError(
-        f"unknown hole radiation model {model!r}; expected one of {', '.join(HOLE_RADIATION_MODELS)}"
+        f"unknown hole radiation model {model!r}; expected one of {HOLE_RADIATION_MODELS}"
     )
 
 
@@ -173,16 +173,23 @@ def hole_elements(
     height = t + matching_length(b_in, a)
     A, B, C, D = frustum_matrix(air, height, b_in, b, w, losses)
     zr = lumped_radiation_impedance(
-        k, b, radiation_length(radiation, b, a + t), _radiation_resistance(radiation),
+        k,
+        b,
+        radiation_length(radiation, b, a + t),
+        _radiation_resistance(radiation),
         rho * c / (np.pi * b * b),
-    )  # fmt: skip
+    )
     zs_open = mass_in + (A * zr + B) / (C * zr + D)
     ys_closed = C / (A + mass_in * C)
     series = 1j * w * rho / (np.pi * a * a)
     za_open = series * series_length(b_in, a, t, closed=False)
     za_closed = series * series_length(b_in, a, t, closed=True)
-    return (np.asarray(za_open, dtype=np.complex128), np.asarray(1.0 / zs_open, dtype=np.complex128),
-            np.asarray(za_closed, dtype=np.complex128), np.asarray(ys_closed, dtype=np.complex128))  # fmt: skip
+    return (
+        np.asarray(za_open, dtype=np.complex128),
+        np.asarray(1.0 / zs_open, dtype=np.complex128),
+        np.asarray(za_closed, dtype=np.complex128),
+        np.asarray(ys_closed, dtype=np.complex128),
+    )
 
 
 def end_distance(
@@ -200,9 +207,12 @@ def end_distance(
     Check value: a 9.5 mm, b 4 mm, t_e 8.93 mm, L_d = 50 mm + 0.6133a → Δ = 26.48 mm.
     """
     ld = np.asarray(downstream_m, dtype=np.float64)
-    q = (np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(bore_radius_m, dtype=np.float64)) ** 2
-    return np.asarray(ld / (1.0 + ld * q / np.asarray(effective_length_m, dtype=np.float64)),
-                      dtype=np.float64)  # fmt: skip
+    q = (
+        np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(bore_radius_m, dtype=np.float64)
+    ) ** 2
+    return np.asarray(
+        ld / (1.0 + ld * q / np.asarray(effective_length_m, dtype=np.float64)), dtype=np.float64
+    )
 
 
 def downstream_for_shortening(
@@ -217,7 +227,9 @@ def downstream_for_shortening(
     Used to place a hole so that the column ends a given distance s above its acoustic end below.
     """
     s = np.asarray(shortening_m, dtype=np.float64)
-    q = (np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(bore_radius_m, dtype=np.float64)) ** 2
+    q = (
+        np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(bore_radius_m, dtype=np.float64)
+    ) ** 2
     q = q / np.asarray(effective_length_m, dtype=np.float64)
     return np.asarray((s * q + np.sqrt(s * s * q * q + 4.0 * q * s)) / (2.0 * q), dtype=np.float64)
 
@@ -235,6 +247,10 @@ def lattice_cutoff(
     the resonance of one hole's inertance ρt_e/Sh with the compliance S·2s/(ρc²) of one cell.
     Check value: c 343.36, a 9.5 mm, b 5 mm, 2s 30 mm, t_e 8 mm → 1856.6 Hz.
     """
-    ratio = np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(bore_radius_m, dtype=np.float64)
-    cell = np.asarray(spacing_m, dtype=np.float64) * np.asarray(effective_length_m, dtype=np.float64)
+    ratio = np.asarray(hole_radius_m, dtype=np.float64) / np.asarray(
+        bore_radius_m, dtype=np.float64
+    )
+    cell = np.asarray(spacing_m, dtype=np.float64) * np.asarray(
+        effective_length_m, dtype=np.float64
+    )
     return np.asarray(speed_m_s / (2.0 * np.pi) * ratio / np.sqrt(cell), dtype=np.float64)

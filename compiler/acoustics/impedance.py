@@ -14,9 +14,12 @@ Model (transfer-matrix method, REFERENCES §5–§7):
   duct flute: usually 0, the block face) is a closed branch in parallel: Y_j = 1/Z_down + Y_cav.
 - The mouth opening (duct flute window, or embouchure hole partly covered by the lip) is treated
   like an open side hole of the same area (REFERENCES §7a: "computed like an open tone hole"):
-  inner length t_i, a chimney of the window or riser thickness, and the radiation impedance of
-  its outer opening, all IN SERIES between the jet and the junction:
+  inner length t_i, a chimney of the window or riser thickness (+ matching length t_m), and the
+  radiation impedance of its outer opening, all IN SERIES between the jet and the junction:
   Z_total = Zr + Chimney(1/Y_j + jωρ t_i/S_m) + jωρ·extra_length_m/S_bore.
+  This is our reading of REFERENCES §7a; its end-correction coefficients are not calibrated
+  against measured flutes, which is what ``Head.extra_length_m`` is for.
+- The tube above the head cavity (the block, or beyond the cork) takes no part.
 - The jet is a flow source at the outer face of the mouth, so it sees Z_total; a flue
   instrument sounds near the minima of |Z_total|, i.e. the peaks of Y = 1/Z_total, which
   ``compiler.acoustics.playing`` locates as upward zero crossings of Im Z_total.
@@ -124,9 +127,11 @@ class Bore:
         return _radius_in_segment(edges, r_in, r_out, j, x)
 
 
-def _radius_in_segment(edges: Float, r_in: Float, r_out: Float, j: ArrayLike, x: Float) -> Float:
-    lo = edges[j]
-    hi = edges[np.asarray(j) + 1]
+def _radius_in_segment(
+    edges: Float, r_in: Float, r_out: Float, j: int | NDArray[np.intp], x: Float
+) -> Float:
+    lo: Float = edges[j]
+    hi: Float = edges[np.asarray(j) + 1]
     span = np.where(np.isinf(hi), 1.0, hi - lo)
     frac = np.where(np.isinf(hi), 0.0, np.clip((x - lo) / span, 0.0, 1.0))
     return np.asarray(r_in[j] + (r_out[j] - r_in[j]) * frac, dtype=np.float64)
@@ -305,8 +310,9 @@ def impedance_batch(
     omega = 2.0 * np.pi * f
     rho, c = air.density_kg_m3, air.speed_m_s
     k = omega / c
-    lengths = np.atleast_1d(np.asarray(instrument.length_m if length_m is None else length_m,
-                                       dtype=np.float64))  # fmt: skip
+    lengths = np.atleast_1d(
+        np.asarray(instrument.length_m if length_m is None else length_m, dtype=np.float64)
+    )
     xs = _column(hole_positions_m, [h.position_m for h in holes], lengths.shape[0])
     rs = _column(hole_radii_m, [h.radius_m for h in holes], lengths.shape[0])
     n_inst = max(lengths.shape[0], xs.shape[0], rs.shape[0], f.shape[0])
@@ -326,11 +332,15 @@ def impedance_batch(
     pieces = _piece_matrices(instrument, air, om4, xa, xb)
     if n_holes:
         za_o, ys_o, za_c, ys_c = hole_elements(
-            air, om4, bore.radius_at(xs)[:, :, None, None], rs[:, :, None, None],
+            air,
+            om4,
+            bore.radius_at(xs)[:, :, None, None],
+            rs[:, :, None, None],
             np.array([h.chimney_m for h in holes])[None, :, None, None],
             np.array([h.undercut_m for h in holes])[None, :, None, None],
-            instrument.losses, instrument.hole_radiation,
-        )  # fmt: skip
+            instrument.losses,
+            instrument.hole_radiation,
+        )
         shut = closed.T[None, :, :, None]
         za = np.where(shut, za_c, za_o)
         ys = np.where(shut, ys_c, ys_o)
@@ -361,7 +371,9 @@ def impedance_batch(
         y_j = y_j + cu / cp
     a_m = float(bore.radius_at(head.mouth_position_m))
     if head.kind == "open":
-        z = 1.0 / y_j + radiation_impedance(instrument.radiation, a_m, k, rho * c / (np.pi * a_m**2))
+        z = 1.0 / y_j + radiation_impedance(
+            instrument.radiation, a_m, k, rho * c / (np.pi * a_m**2)
+        )
     else:
         z = _mouth(instrument, air, omega, a_m, 1.0 / y_j)
     return np.broadcast_to(z, shape).astype(np.complex128)
@@ -381,8 +393,9 @@ def _mouth(instrument: Instrument, air: Air, omega: Float, a_m: float, z_j: Comp
     t_r = radiation_length(model, b, a_m + head.opening_chimney_m)
     resistance = UNFLANGED_RESISTANCE if model == "unflanged" else FLANGED_RESISTANCE
     z = z + lumped_radiation_impedance(omega / c, b, t_r, resistance, rho * c / area)
-    return np.asarray(z + 1j * omega * rho * head.extra_length_m / (np.pi * a_m**2),
-                      dtype=np.complex128)  # fmt: skip
+    return np.asarray(
+        z + 1j * omega * rho * head.extra_length_m / (np.pi * a_m**2), dtype=np.complex128
+    )
 
 
 def input_impedance(
@@ -393,7 +406,7 @@ def input_impedance(
     freqs_hz: a 1-D grid, or per-fingering frequencies of shape (n_fingerings, n).
     fingerings: (n_fingerings, n_holes) booleans, True = closed; None = all closed.
     """
-    return impedance_batch(instrument, air, freqs_hz, fingerings)[0]
+    return np.asarray(impedance_batch(instrument, air, freqs_hz, fingerings)[0])
 
 
 def input_admittance(
@@ -403,8 +416,9 @@ def input_admittance(
 
     Flue excitation plays near the peaks of |Y| (see the module docstring).
     """
-    return np.asarray(1.0 / input_impedance(instrument, air, freqs_hz, fingerings),
-                      dtype=np.complex128)  # fmt: skip
+    return np.asarray(
+        1.0 / input_impedance(instrument, air, freqs_hz, fingerings), dtype=np.complex128
+    )
 
 
 def bore_impedance(
@@ -412,4 +426,6 @@ def bore_impedance(
 ) -> Complex:
     """Z_down: the impedance at the mouth position looking down the bore (holes and foot),
     without the mouth opening or head cavity; shape (n_fingerings, n_freqs)."""
-    return impedance_batch(instrument, air, freqs_hz, fingerings, downstream_only=True)[0]
+    return np.asarray(
+        impedance_batch(instrument, air, freqs_hz, fingerings, downstream_only=True)[0]
+    )

@@ -22,14 +22,15 @@ from numpy.typing import ArrayLike, NDArray
 
 from compiler.acoustics.air import Air
 from compiler.acoustics.impedance import Instrument, impedance_batch, input_admittance
+from compiler.acoustics.tuning import cents
 
 Float = NDArray[np.float64]
 Evaluate = Callable[[Float], NDArray[np.complex128]]
 """Z_total for frequencies of shape (n_inst, n_fingerings, n) → same shape."""
 
-GRID_STEP_CENTS = 10.0
-"""Scan grid spacing. Two crossings closer than this could hide each other; flute registers
-are hundreds of cents apart."""
+GRID_STEP_CENTS = 20.0
+"""Scan grid spacing. A minimum and a maximum closer than this could hide each other; in a
+flute they are hundreds of cents apart."""
 
 _EPS = 1e-6  # relative frequency step for the reactance slope
 
@@ -88,26 +89,36 @@ def refine(
     lo: Float,
     hi: Float,
     start: Float | None = None,
-    tol: float = 1e-10,
+    check: bool = False,
+    tol: float = 1e-9,
     max_iter: int = 60,
 ) -> tuple[Float, Float]:
     """Zero crossings of Im Z inside brackets [lo, hi] (Im Z(lo) < 0 ≤ Im Z(hi)), vectorised.
 
-    start: first guesses inside the brackets (default: their geometric middle).
+    start: first guesses inside the brackets (default: their geometric middle). check: verify
+    the bracket signs (in the first evaluation) and give NaN where they do not hold.
     Returns (frequencies, slope d(Im Z)/df at the root); NaN brackets give NaN.
     Newton steps on Im Z with a forward-difference slope; a step leaving the bracket (or with a
     non-positive slope) is replaced by bisection, and each evaluation shrinks the bracket.
+    Stops at a relative step of ``tol`` (1e-9 is 0.002 cent).
     """
     lo = np.array(lo, dtype=np.float64)
     hi = np.array(hi, dtype=np.float64)
     bad = ~(np.isfinite(lo) & np.isfinite(hi))
     lo[bad], hi[bad] = 1.0, 1.0 + 1e-3
-    f = np.sqrt(lo * hi) if start is None else np.where(bad, lo, np.asarray(start, dtype=np.float64))
+    f = (
+        np.sqrt(lo * hi)
+        if start is None
+        else np.where(bad, lo, np.asarray(start, dtype=np.float64))
+    )
     slope = np.ones_like(f)
-    for _ in range(max_iter):
-        z = evaluate(np.concatenate([f, f * (1.0 + _EPS)], axis=-1))
-        n = f.shape[-1]
-        g, g2 = z.imag[..., :n], z.imag[..., n:]
+    n = f.shape[-1]
+    for i in range(max_iter):
+        probe = [f, f * (1.0 + _EPS)] + ([lo, hi] if check and i == 0 else [])
+        g_all = evaluate(np.concatenate(probe, axis=-1)).imag
+        g, g2 = g_all[..., :n], g_all[..., n : 2 * n]
+        if check and i == 0:
+            bad |= ~((g_all[..., 2 * n : 3 * n] < 0.0) & (g_all[..., 3 * n :] >= 0.0))
         slope = (g2 - g) / (f * _EPS)
         below = g < 0.0
         lo = np.where(below, np.maximum(lo, f), lo)
@@ -134,13 +145,29 @@ def track(
     Returns (frequencies, slopes, ok); ok is False where the bracket did not straddle a single
     upward crossing (the caller should scan again).
     """
-    lo = guess * (1.0 - width)
-    hi = guess * (1.0 + width)
-    g = evaluate(np.concatenate([lo, hi], axis=-1)).imag
-    n = guess.shape[-1]
-    ok = (g[..., :n] < 0.0) & (g[..., n:] >= 0.0)
-    f, slope = refine(evaluate, np.where(ok, lo, np.nan), np.where(ok, hi, np.nan), start=guess)
-    return f, slope, ok
+    f, slope = refine(
+        evaluate, guess * (1.0 - width), guess * (1.0 + width), start=guess, check=True
+    )
+    return f, slope, np.isfinite(f)
+
+
+def first_register(
+    evaluate: Evaluate,
+    shape: tuple[int, int],
+    f_lo: float,
+    f_hi: float,
+    guess: Float | None = None,
+) -> tuple[Float, Float]:
+    """Register-1 frequencies (shape (n_inst, n_fingerings)) and reactance slopes d(Im Z)/df:
+    tracked from ``guess`` (broadcastable to ``shape``) when given, else, or when any fails to
+    track, the lowest crossing of a scan from f_lo to f_hi (Hz)."""
+    if guess is not None:
+        f, slope, ok = track(evaluate, np.broadcast_to(guess, shape)[..., None].copy())
+        if np.all(ok):
+            return f[..., 0], slope[..., 0]
+    lo, hi = bracket(evaluate, log_grid(f_lo, f_hi), shape, registers=1)
+    f, slope = refine(evaluate, lo, hi)
+    return f[..., 0], slope[..., 0]
 
 
 def resonances(
@@ -155,7 +182,9 @@ def resonances(
     fingerings: (n_fingerings, n_holes) booleans, True = closed (None: all closed). The scan
     range defaults to ``default_range``. See the module docstring for the definition.
     """
-    closed = _fingerings(instrument, fingerings)
+    closed_rows = _fingerings(instrument, fingerings)
+    # Repeated fingerings (one row per register in a table) are computed once.
+    closed, back = np.unique(closed_rows, axis=0, return_inverse=True)
 
     def evaluate(freqs: Float) -> NDArray[np.complex128]:
         return impedance_batch(instrument, air, freqs, closed)
@@ -164,9 +193,11 @@ def resonances(
     grid = log_grid(f_min_hz or lo_default, f_max_hz or hi_default)
     lo, hi = bracket(evaluate, grid, (1, closed.shape[0]))
     f, _ = refine(evaluate, lo, hi)
-    f = f[0]
-    with np.errstate(invalid="ignore"):
-        octave = 1200.0 * np.log2(f[:, 1] / (2.0 * f[:, 0]))
+    f = f[0][np.ravel(back)]
+    found = np.isfinite(f).all(axis=1)
+    octave = np.where(
+        found, cents(np.where(found, f[:, 1], 2.0), 2.0 * np.where(found, f[:, 0], 1.0)), np.nan
+    )
     return Resonances(frequencies_hz=f, octave_cents=octave)
 
 
@@ -191,3 +222,25 @@ def _fingerings(instrument: Instrument, fingerings: ArrayLike | None) -> NDArray
         return np.ones((1, n_holes), dtype=bool)
     closed = np.asarray(fingerings, dtype=bool)
     return closed[None, :] if closed.ndim == 1 else closed
+
+
+def predictions(
+    instrument: Instrument,
+    air: Air,
+    fingerings: ArrayLike,
+    targets_hz: ArrayLike,
+    registers: ArrayLike,
+) -> tuple[Float, Float, Float]:
+    """For a fingering table with a target and a register (1 or 2) per row: the predicted
+    frequencies of registers 1 and 2 per row (Hz, shape (n, 2)), the residual in cents of the
+    row's register against its target, and the octave mismatch in cents (see ``resonances``).
+
+    The scan runs from half the lowest register-1 target to 2.2 times the highest target."""
+    targets = np.asarray(targets_hz, dtype=np.float64)
+    regs = np.asarray(registers, dtype=int)
+    f_lo = float(targets[regs == 1].min()) / 2.0 if np.any(regs == 1) else targets.min() / 4.0
+    res = resonances(instrument, air, fingerings, f_lo, float(targets.max()) * 2.2)
+    chosen = res.frequencies_hz[np.arange(targets.size), regs - 1]
+    found = np.isfinite(chosen)
+    resid = np.where(found, cents(np.where(found, chosen, 1.0), targets), np.nan)
+    return res.frequencies_hz, np.asarray(resid, dtype=np.float64), res.octave_cents

@@ -79,7 +79,8 @@ def unflanged_end_correction_ratio(ka: ArrayLike) -> NDArray[np.float64]:
     """
     x = np.asarray(ka, dtype=np.float64)
     return np.asarray(
-        UNFLANGED_RATIO * ((1.0 + 0.044 * x**2) / (1.0 + 0.19 * x**2) - 0.02 * np.sin(2.0 * x) ** 2),
+        UNFLANGED_RATIO
+        * ((1.0 + 0.044 * x**2) / (1.0 + 0.19 * x**2) - 0.02 * np.sin(2.0 * x) ** 2),
         dtype=np.float64,
     )
 

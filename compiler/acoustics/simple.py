@@ -48,8 +48,9 @@ def acoustic_length(frequency_hz: float, speed_m_s: float, harmonic: int, stoppe
     return harmonic * speed_m_s / ((4.0 if stopped else 2.0) * frequency_hz)
 
 
-def mouth_correction(pipe_area_m2: float, mouth_area_m2: float, lip_thickness_m: float,
-                     alpha: float = MOUTH_ALPHA) -> float:
+def mouth_correction(
+    pipe_area_m2: float, mouth_area_m2: float, lip_thickness_m: float, alpha: float = MOUTH_ALPHA
+) -> float:
     """End correction of a flue mouth, as extra length of the pipe (m).
 
     Δ_m = (S / A_m) · (ℓ + α·√A_m): the mouth is an orifice of area A_m = W·H in a wall of
@@ -67,16 +68,18 @@ def end_corrections(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) 
     return pipe.scale * (pipe.open_ends * per_end + pipe.mouth_m)
 
 
-def solve_length(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float,
-                 harmonic: int) -> tuple[float, float]:
+def solve_length(
+    pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float, harmonic: int
+) -> tuple[float, float]:
     """Physical length (m) sounding ``frequency_hz`` on ``harmonic``, and the correction used."""
     effective = acoustic_length(frequency_hz, speed_m_s, harmonic, pipe.stopped)
     correction = end_corrections(pipe, frequency_hz, speed_m_s)
     return effective - correction, correction
 
 
-def predict_frequency(pipe: PipeAcoustics, length_m: float, speed_m_s: float,
-                      harmonic: int) -> float:
+def predict_frequency(
+    pipe: PipeAcoustics, length_m: float, speed_m_s: float, harmonic: int
+) -> float:
     """Frequency (Hz) of ``harmonic`` for a physical length; fixed point when Δ depends on f."""
     divisor = 4.0 if pipe.stopped else 2.0
     frequency = harmonic * speed_m_s / (divisor * length_m)
@@ -92,4 +95,3 @@ def predict_frequency(pipe: PipeAcoustics, length_m: float, speed_m_s: float,
 def harmonic_numbers(stopped: bool, count: int) -> tuple[int, ...]:
     """The resonances a pipe has: 1, 2, 3 ... open; 1, 3, 5 ... stopped."""
     return tuple(2 * i + 1 for i in range(count)) if stopped else tuple(range(1, count + 1))
-

@@ -24,8 +24,7 @@ from __future__ import annotations
 
 import math
 
-from compiler.errors import GeometryError, Problem
-from compiler.geometry.drafts import Draft, label, labels
+from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline
 from compiler.geometry.paths import closed, line, rect
 from compiler.geometry.units import mm
@@ -39,10 +38,6 @@ HANDLE_MIN_MM = 40.0
 HANDLE_MAX_MM = 80.0
 GRIP_MAX_MM = 25.0
 GRIP_MIN_MM = 10.0
-
-
-def _fail(pipe: Pipe, message: str, hint: str) -> GeometryError:
-    return GeometryError(Problem(pipe.source, f"pipe `{pipe.id}`: {message}", hint, "geometry"))
 
 
 def _board(pipe: Pipe, name: str, t: float, length: float, width: float,
@@ -65,10 +60,10 @@ def _front(pipe: Pipe, t: float, length: float, width: float) -> Draft:
     mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
     inside = width - 2.0 * t
     if mw > inside + 1e-6:
-        raise _fail(pipe, f"the mouth ({mw:.1f} mm) is wider than the pipe's inside "
+        raise pipe_error(pipe, f"the mouth ({mw:.1f} mm) is wider than the pipe's inside "
                     f"({inside:.1f} mm)", "give a mouth width of at most the full width")
     if cu >= length:
-        raise _fail(pipe, f"the cut-up ({cu:.1f} mm) is longer than the front board",
+        raise pipe_error(pipe, f"the cut-up ({cu:.1f} mm) is longer than the front board",
                     "give a smaller cut-up")
     lo, hi = width / 2.0 - mw / 2.0, width / 2.0 + mw / 2.0
     pts = [(0.0, 0.0), (length, 0.0), (length, width), (0.0, width),
@@ -82,7 +77,7 @@ def _stopper_parts(pipe: Pipe, t: float, inside_w: float, inside_d: float) -> li
     w, d = inside_w - STOPPER_CLEARANCE_MM, inside_d - STOPPER_CLEARANCE_MM
     length = mm(pipe.stopper.length_m)
     if length <= 0 or w <= 0 or d <= 0:
-        raise _fail(pipe, "the stopper has no size", "check the stopper length and the scale")
+        raise pipe_error(pipe, "the stopper has no size", "check the stopper length and the scale")
     layers = max(1, math.ceil(d / t - 1e-9))
     stopper = _board(pipe, "stopper", t, length, w, rect("cut-outer", 0, 0, length, w),
                      quantity=layers,
@@ -104,15 +99,15 @@ def board_drafts(pipe: Pipe, thickness_m: float) -> list[Draft]:
     """All board parts of one wooden pipe, in a fixed order (front, back, sides, block,
     cap, stopper, handle)."""
     if pipe.inside_width_m is None or pipe.inside_depth_m is None:
-        raise _fail(pipe, "a wooden pipe needs an inside width and depth",
+        raise pipe_error(pipe, "a wooden pipe needs an inside width and depth",
                     "give a rectangular scale (width and depth)")
     t = mm(thickness_m)
     w, d, length = mm(pipe.inside_width_m), mm(pipe.inside_depth_m), mm(pipe.cut_length_m)
     block = mm(pipe.block.length_m) if pipe.block is not None else 0.0
     if t <= 0 or w <= 0 or d <= 0:
-        raise _fail(pipe, "the boards or the pipe have no size", "check the stock and scale")
+        raise pipe_error(pipe, "the boards or the pipe have no size", "check the stock and scale")
     if block >= length:
-        raise _fail(pipe, f"the block ({block:.1f} mm) is as long as the pipe "
+        raise pipe_error(pipe, f"the block ({block:.1f} mm) is as long as the pipe "
                     f"({length:.1f} mm)", "give a shorter block")
     outer = w + 2.0 * t
     side_marks: list[Entity] = []

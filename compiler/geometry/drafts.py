@@ -16,6 +16,7 @@ from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.kerf import OffsetError, compensate
 from compiler.geometry.model import Circle, Entity, Part, Point, Polyline, Text
 from compiler.geometry.paths import area, snapped, text_width
+from compiler.resolve.model import Pipe
 
 LABEL_MAX_MM = 5.0
 LABEL_MIN_MM = 1.5
@@ -55,6 +56,11 @@ class Draft:
     def area_mm2(self) -> float:
         """Material area of one piece: the outline less its openings."""
         return area(self.outline) - sum(area(o) for o in self.openings)
+
+
+def pipe_error(pipe: Pipe, message: str, hint: str) -> GeometryError:
+    """A geometry error at the pipe's spec position, naming the pipe."""
+    return GeometryError(Problem(pipe.source, f"pipe `{pipe.id}`: {message}", hint, "geometry"))
 
 
 def label(text: str, center: Point, box_w: float, box_h: float,

@@ -18,11 +18,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from shapely.geometry import Polygon
+from shapely.geometry import Polygon  # type: ignore[import-untyped]
 
 from compiler.geometry.model import Circle, Point, Polyline
 from compiler.geometry.paths import arc_of, signed_area, to_polygon
-from compiler.geometry.units import snap
+from compiler.geometry.units import snap, snap_bulge
 
 _EPS = 1e-9
 
@@ -146,7 +146,7 @@ def _exact(poly: Polyline, d: float) -> Polyline:
             raise OffsetError("an arc vanishes")
         new_bulges.append(math.tan(turn / 4.0))
     out = Polyline(poly.operation, tuple((snap(x), snap(y)) for x, y in corners), True,
-                   tuple(snap(k) for k in new_bulges))
+                   tuple(snap_bulge(k) for k in new_bulges))
     if not to_polygon(out).is_valid:
         raise OffsetError("the offset path crosses itself")
     return out

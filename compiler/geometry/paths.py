@@ -13,10 +13,10 @@ import math
 from collections.abc import Iterator
 from dataclasses import dataclass
 
-from shapely.geometry import Polygon
+from shapely.geometry import Polygon  # type: ignore[import-untyped]
 
 from compiler.geometry.model import Circle, Entity, Placement, Point, Polyline, Text
-from compiler.geometry.units import snap
+from compiler.geometry.units import snap, snap_bulge
 
 SAG_MM = 0.01
 """Largest distance between an arc and the chords that stand for it in polygon checks."""
@@ -217,7 +217,7 @@ def moved(entity: Entity, dx: float, dy: float, rotated: bool = False) -> Entity
         angle = (entity.rotation_deg + (90.0 if rotated else 0.0)) % 360.0
         return Text(entity.operation, tf(entity.insert), entity.height, entity.text, angle)
     return Polyline(entity.operation, tuple(tf(p) for p in entity.points), entity.closed,
-                    tuple(snap(k) for k in entity.bulges))
+                    tuple(snap_bulge(k) for k in entity.bulges))
 
 
 def placed(entities: tuple[Entity, ...], placement: Placement) -> tuple[Entity, ...]:

@@ -21,8 +21,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from compiler.errors import GeometryError, Problem
-from compiler.geometry.drafts import Draft, label, labels
+from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline
 from compiler.geometry.paths import bounds, bulge_for, closed, line, moved
 from compiler.geometry.units import mm
@@ -70,10 +69,6 @@ def frustum_pattern(small_d: float, large_d: float, height: float) -> SectorPatt
     return SectorPattern(outer - slant, outer, 180.0 * large_d / outer, slant)
 
 
-def _fail(pipe: Pipe, message: str, hint: str) -> GeometryError:
-    return GeometryError(Problem(pipe.source, f"pipe `{pipe.id}`: {message}", hint, "geometry"))
-
-
 def _draft(pipe: Pipe, name: str, width: float, height: float, outline: Polyline | Circle,
            marks: tuple[Entity, ...], note: str) -> Draft:
     return Draft(id=f"{pipe.id}-{name}", pipe_id=pipe.id, group=pipe.group, name=name,
@@ -94,10 +89,10 @@ def body(pipe: Pipe, fab: FabricationReport) -> Draft:
     if pipe.mouth is not None:
         mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
         if mw >= circ - 2.0 * TICK_MM:
-            raise _fail(pipe, f"the mouth ({mw:.1f} mm) is as wide as the body's "
+            raise pipe_error(pipe, f"the mouth ({mw:.1f} mm) is as wide as the body's "
                         f"circumference ({circ:.1f} mm)", "give a smaller mouth width")
         if cu >= height - TICK_MM:
-            raise _fail(pipe, f"the cut-up ({cu:.1f} mm) reaches the top of the body",
+            raise pipe_error(pipe, f"the cut-up ({cu:.1f} mm) reaches the top of the body",
                         "give a smaller cut-up")
         pts += [(front - mw / 2, 0.0), (front - mw / 2, cu), (front + mw / 2, cu),
                 (front + mw / 2, 0.0)]
@@ -144,18 +139,20 @@ def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
     length = mm(pipe.foot.length_m)
     seam = mm(fab.seam_allowance_m)
     if length <= 0 or small <= t:
-        raise _fail(pipe, "the foot needs a length and a toe diameter",
+        raise pipe_error(pipe, "the foot needs a length and a toe diameter",
                     "check the foot's length and toe")
     if large <= small:
-        raise _fail(pipe, f"the toe ({small - t:.1f} mm) is not smaller than the foot's top "
+        raise pipe_error(pipe, f"the toe ({small - t:.1f} mm) is not smaller than the foot's top "
                     f"({large - t:.1f} mm)", "give a smaller `foot.toe` fraction")
     pattern = frustum_pattern(small, large, length)
     if pattern.angle_deg >= 330.0:
-        raise _fail(pipe, f"the foot is too flat to roll from one sheet "
+        raise pipe_error(pipe, f"the foot is too flat to roll from one sheet "
                     f"(its pattern spans {pattern.angle_deg:.0f}°)", "give a longer foot")
     outline, half = _sector(pattern, seam)
     mid = math.radians(90.0)
+    seam_line = outline.points[3], outline.points[0]
     marks: list[Entity] = [
+        line("mark", *seam_line),
         line("mark", (0.0, pattern.outer_radius), (0.0, pattern.outer_radius - TICK_MM)),
         line("mark", (0.0, pattern.inner_radius), (0.0, pattern.inner_radius + TICK_MM)),
     ]
@@ -170,8 +167,10 @@ def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
             f"{mm(pipe.foot.top_diameter_m):.1f} mm inside; pattern radii "
             f"{pattern.inner_radius:.1f}/{pattern.outer_radius:.1f} mm, "
             f"{pattern.angle_deg:.2f}°")
-    if abs(toe_hole - mm(pipe.foot.toe_diameter_m)) > 0.05:
-        note += f"; open the toe hole to {toe_hole:.1f} mm"
+    toe = mm(pipe.foot.toe_diameter_m)
+    if abs(toe_hole - toe) > 0.05:
+        verb = "close the toe hole down" if toe_hole < toe else "open the toe hole"
+        note += f"; {verb} to {toe_hole:.1f} mm"
     first = shifted[0]
     assert isinstance(first, Polyline)
     return _draft(pipe, "foot", box[2] - box[0], box[3] - box[1], first, tuple(shifted[1:]),
@@ -207,7 +206,7 @@ def cap(pipe: Pipe) -> Draft:
 def rolled_drafts(pipe: Pipe, fab: FabricationReport) -> list[Draft]:
     """All sheet parts of one rolled pipe, in a fixed order."""
     if pipe.inside_diameter_m is None:
-        raise _fail(pipe, "a rolled pipe needs an inside diameter", "give a round scale")
+        raise pipe_error(pipe, "a rolled pipe needs an inside diameter", "give a round scale")
     drafts = [body(pipe, fab)]
     if pipe.foot is not None:
         drafts.append(foot(pipe, fab))

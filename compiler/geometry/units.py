@@ -28,3 +28,10 @@ def snap(value_mm: float) -> float:
     """Round a coordinate to 1e-6 mm; ``-0.0`` becomes ``0.0`` for stable text output."""
     value = round(float(value_mm), ROUND_DIGITS)
     return 0.0 if value == 0 else value
+
+
+def snap_bulge(bulge: float) -> float:
+    """Round a DXF bulge (tan of a quarter of the arc's angle) to 1e-12: coarser rounding
+    would move a large arc's radius by more than the coordinates' 1e-6 mm."""
+    value = round(float(bulge), 12)
+    return 0.0 if value == 0 else value

@@ -1,12 +1,185 @@
-"""Flutes (duct and side-blown): wired to the transfer-matrix engine (in progress)."""
+"""Flutes (duct flutes and side-blown flutes): holes placed and sized by the transfer-matrix
+model (``compiler.acoustics.solve``), or only predicted where the spec fixes them.
+
+Head defaults (common practice, from memory): a duct flute's labium sits two bore diameters
+plus the window length below the top end (the block fills the tube above the window); a
+side-blown flute's cork sits one bore diameter above the embouchure centre, with 15 mm of
+tube above the cork. The tube is cut to the solved length: a flute is tuned by the holes and
+the length together, so no tuning allowance is added.
+"""
 
 from __future__ import annotations
 
-from compiler.errors import PhysicsError
-from compiler.resolve.model import Group, Note, Pipe
+import numpy as np
+
+from compiler.acoustics import playing, solve
+from compiler.acoustics.air import Air
+from compiler.acoustics.impedance import Bore, Instrument
+from compiler.acoustics.impedance import Head as EngineHead
+from compiler.acoustics.tuning import cents
+from compiler.errors import PhysicsError, Position
+from compiler.resolve import calibration
+from compiler.resolve.environment import group_air
+from compiler.resolve.model import Curve, Fingering, Group, Head, Hole, Note, Pipe
+from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
+from compiler.spec.notes import note_name
+
+ABOVE_CORK_M = 0.015
+SENSITIVITY_STEP_M = 1e-4
+SENSITIVITY_STEP_K = 0.5
+CURVE_POINTS = 400
+
+
+def _head(flute: spec_model.Flute, bore_d: float, wall: float) -> tuple[EngineHead, Head]:
+    h = flute.head
+    if flute.family == "duct-flute":
+        assert h.window_length_m is not None and h.window_width_m is not None
+        labium = h.window_from_top_m or (2 * bore_d + h.window_length_m)
+        mouth = labium - h.window_length_m / 2
+        engine = EngineHead("duct", mouth_position_m=mouth, window_length_m=h.window_length_m,
+                            window_width_m=h.window_width_m, window_thickness_m=wall)
+        report = Head("duct", h.window_length_m, h.window_width_m, h.duct_height_m, labium,
+                      None, None, None)
+        return engine, report
+    assert h.embouchure_diameter_m is not None
+    cork = h.cork_m or bore_d
+    mouth = h.embouchure_from_top_m or (cork + ABOVE_CORK_M)
+    engine = EngineHead("embouchure", mouth_position_m=mouth,
+                        embouchure_radius_m=h.embouchure_diameter_m / 2,
+                        embouchure_chimney_m=wall, cavity_length_m=cork,
+                        lip_coverage=h.lip_cover if h.lip_cover is not None else 0.25)
+    report = Head("embouchure", None, None, None, None, h.embouchure_diameter_m, mouth, cork)
+    return engine, report
+
+
+def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
+        list[tuple[bool, ...]], list[float], list[int], list[str]]:
+    """Fingering table rows: every fingering in register 1, then again in register 2."""
+    table, targets, registers, names = [], [], [], []
+    for f in flute.fingerings:
+        table.append(f.closed)
+        targets.append(target_hz(spec.tuning, f.note, f.frequency_hz))
+        registers.append(1)
+        names.append(note_name(f.note))
+    for f in flute.fingerings:
+        second = f.second_register if f.second_register is not None else f.note + 12
+        table.append(f.closed)
+        targets.append(target_hz(spec.tuning, second) if second <= 127 else
+                       2 * targets[len(registers) - len(flute.fingerings)])
+        registers.append(2)
+        names.append(note_name(min(second, 127)))
+    return table, targets, registers, names
+
+
+def _where(flute: spec_model.Flute, subject: str) -> Position:
+    words = subject.split()
+    if len(words) == 2 and words[0] == "hole" and words[1].isdigit():
+        index = int(words[1]) - 1
+        if 0 <= index < len(flute.holes):
+            return flute.holes[index].position
+    if len(words) == 2 and words[0] == "note":
+        for f in flute.fingerings:
+            if note_name(f.note) == words[1]:
+                return f.position
+    if words and words[0] == "fingering" and len(words) == 2 and words[1].isdigit():
+        index = int(words[1]) - 1
+        if 0 <= index < len(flute.fingerings):
+            return flute.fingerings[index].position
+    key = {"holes": "holes", "fingerings": "fingerings"}.get(subject, "")
+    return flute.where.get(key, flute.position)
+
+
+def _first_register(instrument: Instrument, air: Air, closed: np.ndarray) -> float:
+    return float(playing.resonances(instrument, air, closed[None, :]).frequencies_hz[0, 0])
 
 
 def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         Group, list[Pipe], list[Note]]:
-    raise PhysicsError.at(flute.position, "flutes are not resolved yet", "")
+    """Place and size the holes (or predict fixed ones) and report every fingering."""
+    air = group_air(flute.family, spec.environment, flute.environment)
+    stock = spec.stock_named(flute.stock)
+    assert stock is not None and stock.inside_diameter_m is not None
+    bore_d, wall = stock.inside_diameter_m, stock.thickness_m
+    engine_head, head = _head(flute, bore_d, wall)
+    table, targets, registers, names = _rows(flute, spec)
+    c = flute.constraints
+    defaults = solve.HoleConstraints()
+    limits = solve.HoleConstraints(
+        min_diameter_m=c.min_diameter_m or defaults.min_diameter_m,
+        max_diameter_m=c.max_diameter_m or defaults.max_diameter_m,
+        max_ratio=c.max_ratio or defaults.max_ratio,
+        min_web_m=c.min_web_m if c.min_web_m is not None else defaults.min_web_m,
+        max_span_m=c.max_span_m)
+    fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
+    try:
+        design = solve.design_holes(
+            Bore.cylinder(bore_d / 2), wall, engine_head, np.array(table, dtype=bool),
+            np.array(targets), air.state, registers=np.array(registers), constraints=limits,
+            fixed=fixed, drills_m=spec.fabrication.drills_m, length_m=flute.length_m,
+            radiation=flute.radiation, hole_radiation="unflanged", losses=flute.losses,
+            note_names=tuple(names))
+    except solve.DesignError as exc:
+        raise PhysicsError.at(_where(flute, exc.subject), f"flute `{flute.id}`: {exc.message}",
+                              exc.hint) from None
+    instrument = design.instrument
+    length = design.length_m
+    holes = tuple(
+        Hole(number=i + 1, label=spec_hole.label or ("T" if abs(spec_hole.angle_deg) >= 90
+                                                   else str(i + 1)),
+             position_from_top_m=x, position_from_bottom_m=length - x, diameter_m=d,
+             angle_deg=spec_hole.angle_deg, chimney_m=wall, undercut_m=spec_hole.undercut_m,
+             fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None)
+        for i, (spec_hole, x, d) in enumerate(zip(flute.holes, design.hole_positions_m,
+                                                  design.hole_diameters_m, strict=True)))
+    fingerings = tuple(
+        Fingering(note=names[i], closed=tuple(table[i]), register=registers[i],
+                  target_hz=targets[i], predicted_hz=design.predicted_hz[i][registers[i] - 1],
+                  error_cents=design.residual_cents[i])
+        for i in range(len(table)))
+    lowest = int(np.argmin([t if r == 1 else np.inf for t, r in zip(targets, registers,
+                                                                    strict=True)]))
+    closed = np.array(table[lowest], dtype=bool)
+    base = _first_register(instrument, air.state, closed)
+    longer = _first_register(_with_length(instrument, length + SENSITIVITY_STEP_M),
+                             air.state, closed)
+    shorter = _first_register(_with_length(instrument, length - SENSITIVITY_STEP_M),
+                              air.state, closed)
+    t = air.state.temperature_k
+    warm = _first_register(instrument, air.at_temperature(t + SENSITIVITY_STEP_K), closed)
+    cool = _first_register(instrument, air.at_temperature(t - SENSITIVITY_STEP_K), closed)
+    picks = sorted({lowest, len(flute.fingerings) // 2, len(flute.fingerings) - 1})
+    top = max(max(p) for p in design.predicted_hz) * 1.3
+    freqs, magnitude = playing.spectrum(instrument, air.state,
+                                        np.array([table[i] for i in picks], dtype=bool),
+                                        f_min_hz=50.0, f_max_hz=top, n=CURVE_POINTS)
+    curves = tuple(Curve(f"{names[i]} {''.join('x' if v else 'o' for v in table[i])}",
+                         tuple(float(f) for f in freqs), tuple(float(v) for v in magnitude[k]))
+                   for k, i in enumerate(picks))
+    pipe = Pipe(
+        id=flute.id, group=flute.id, family=flute.family, construction="stock-tube",
+        note=names[lowest], harmonic=1, stock=stock.name, material=stock.material,
+        target_hz=targets[lowest], predicted_hz=base, error_cents=cents(base, targets[lowest]),
+        harmonics_hz=tuple(float(f) for f in design.predicted_hz[lowest]),
+        cents_per_mm=cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000),
+        cents_per_c=cents(warm, cool) / (2 * SENSITIVITY_STEP_K),
+        section="round", inside_diameter_m=bore_d, outside_diameter_m=stock.outside_diameter_m,
+        inside_width_m=None, inside_depth_m=None, wall_m=wall,
+        acoustic_length_m=length, end_correction_m=0.0, speaking_length_m=length,
+        cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
+        holes=holes, fingerings=fingerings, curves=curves, source=flute.position)
+    group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
+                  air=air.report, end_correction_model=flute.radiation,
+                  calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))
+    warnings = list(air.warnings)
+    if flute.measured:
+        warnings.append(Note(flute.where.get("measured", flute.position),
+                             f"flute `{flute.id}`: measured pitches are not fitted for flutes "
+                             "yet; the prediction is uncalibrated"))
+    return group, [pipe], warnings
+
+
+def _with_length(instrument: Instrument, length_m: float) -> Instrument:
+    from dataclasses import replace
+
+    return replace(instrument, length_m=length_m)

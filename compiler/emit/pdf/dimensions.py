@@ -25,7 +25,7 @@ TOE = "toe diameter"
 TOE_HOLE = "toe hole"
 BLOCK = "block length"
 FLUE = "flue (windway)"
-STOPPER = "stopper face"
+STOPPER = "stopper face from lower lip"
 STOPPER_LENGTH = "stopper length"
 TRAVEL = "stopper travel"
 PLUG = "plug face from top"
@@ -59,11 +59,11 @@ def dimensions(pipe: Pipe) -> tuple[Dim, ...]:
         rows += [(OUTSIDE_DIAMETER, pipe.outside_diameter_m, True),
                  (INSIDE_DIAMETER, pipe.inside_diameter_m, True), (WALL, pipe.wall_m, False)]
     else:
-        rows += [(INSIDE_DIAMETER, pipe.inside_diameter_m, True), (WALL, pipe.wall_m, False)]
+        rows += [(INSIDE_DIAMETER, pipe.inside_diameter_m, True),
+                 (OUTSIDE_DIAMETER, pipe.outside_diameter_m, False), (WALL, pipe.wall_m, False)]
     if pipe.block is not None:
         rows += [(BLOCK, pipe.block.length_m, True), (FLUE, pipe.block.flue_m, False)]
-    if pipe.head is None:
-        rows.append((SPEAKING, pipe.speaking_length_m, True))
+    rows.append((SPEAKING, pipe.speaking_length_m, pipe.head is None))
     rows.append((CUT, pipe.cut_length_m, True))
     if pipe.mouth is not None:
         rows += [(MOUTH_WIDTH, pipe.mouth.width_m, True), (CUTUP, pipe.mouth.cutup_m, True),
@@ -95,6 +95,14 @@ def dimensions(pipe: Pipe) -> tuple[Dim, ...]:
         out.append(Dim(name, value, chr(ord("A") + letter) if key else ""))
         letter += 1 if key else 0
     return tuple(out)
+
+
+SHORT = {
+    INSIDE_DIAMETER: "ø", OUTSIDE_DIAMETER: "ø", INSIDE_WIDTH: "width", SPEAKING: "speaking",
+    CUT: "cut", FOOT: "foot", TOE: "toe ø", BLOCK: "block", LABIUM: "labium",
+    EMBOUCHURE_FROM_TOP: "embouchure",
+}
+"""Words beside a value on a drawing's dimension line."""
 
 
 def by_name(dims: tuple[Dim, ...]) -> dict[str, Dim]:

@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 
+from reportlab.lib.colors import Color
 from reportlab.lib.utils import simpleSplit
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
@@ -92,12 +93,15 @@ class Heading(Block):
     """Room the heading wants below it, so it is not left alone at the foot of a page."""
 
     def height(self, width: float) -> float:
-        return self.size * 1.7
+        return self.size * (1.7 + 1.2 * (len(wrap(self.text, FONT_BOLD, self.size, width)) - 1))
 
     def draw(self, c: Canvas, x: float, y_top: float, width: float) -> None:
         c.setFont(FONT_BOLD, self.size)
         c.setFillColor(INK)
-        c.drawString(x, y_top - self.size * 1.15, fit_text(self.text, FONT_BOLD, self.size, width))
+        y = y_top - self.size * 1.15
+        for line in wrap(self.text, FONT_BOLD, self.size, width):
+            c.drawString(x, y, line)
+            y -= self.size * 1.2
 
 
 @dataclass(frozen=True)
@@ -105,7 +109,7 @@ class Paragraph(Block):
     text: str
     size: float = 9.5
     bold: bool = False
-    colour: object = INK
+    colour: Color = INK
     indent: float = 0.0
     bullet: str = ""
     boxed: bool = False
@@ -128,7 +132,7 @@ class Paragraph(Block):
             c.setLineWidth(1.5)
             c.rect(x, y_top - self.height(width) + self.size * 0.3, width,
                    self.height(width) - self.size * 0.3)
-        c.setFillColor(self.colour)  # type: ignore[arg-type]
+        c.setFillColor(self.colour)
         font = FONT_BOLD if self.bold else FONT
         c.setFont(font, self.size)
         y = y_top - pad - self.size * 1.1
@@ -204,7 +208,11 @@ class Table(Block):
             parts = col.title.split("\n")
             for k, part in enumerate(parts):
                 ty = y_top - self.size * 1.15 - k * self.size * 1.25
-                _cell(c, part, col.align, cx, w, pad, ty, FONT_BOLD, self.size)
+                fitted = self.size
+                while fitted > self.size * 0.75 and \
+                        stringWidth(safe(part), FONT_BOLD, fitted) > w - 2 * pad:
+                    fitted -= 0.25
+                _cell(c, part, col.align, cx, w, pad, ty, FONT_BOLD, fitted)
             cx += w
         y = y_top - hh
         for i, row in enumerate(self.rows):
@@ -277,9 +285,9 @@ def flow(blocks: Sequence[Block], width: float, height: float) -> list[list[Bloc
         block = queue.pop(0)
         h = block.height(width)
         want = h + (block.keep_with if isinstance(block, Heading) else 0.0)
-        if used + want <= height or not pages[-1]:
-            if isinstance(block, Spacer) and not pages[-1]:
-                continue
+        if isinstance(block, Spacer) and not pages[-1]:
+            continue
+        if used + want <= height:
             pages[-1].append(block)
             used += h
             continue
@@ -287,6 +295,8 @@ def flow(blocks: Sequence[Block], width: float, height: float) -> list[list[Bloc
         if parts is not None:
             pages[-1].append(parts[0])
             queue.insert(0, parts[1])
+        elif not pages[-1]:
+            pages[-1].append(block)  # taller than a page and cannot split: it overflows
         else:
             queue.insert(0, block)
         pages.append([])

@@ -9,6 +9,7 @@ the labels are the dimensions' letters, for the drawing at the head of a rank's 
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from reportlab.pdfbase.pdfmetrics import stringWidth
@@ -31,6 +32,8 @@ from compiler.emit.pdf.style import (
 from compiler.resolve.model import Head, Pipe
 
 Point = tuple[float, float]
+ToPage = Callable[[float, float], Point]
+"""Maps the pipe's millimetres to page points."""
 
 
 @dataclass(frozen=True)
@@ -138,7 +141,8 @@ def build_view(pipe: Pipe, inches: bool) -> View:
                    _line("hidden", (inner, 0.0), (inner, top))]
     shapes.append(_line("centre", (0.0, -3.0), (0.0, top + 3.0)))
     width_name = D.INSIDE_WIDTH if pipe.section == "rect" else (
-        D.OUTSIDE_DIAMETER if D.OUTSIDE_DIAMETER in dims else D.INSIDE_DIAMETER)
+        D.OUTSIDE_DIAMETER if pipe.construction == "stock-tube" and D.OUTSIDE_DIAMETER in dims
+        else D.INSIDE_DIAMETER)
     wv = outer if width_name == D.OUTSIDE_DIAMETER else inner
     hdims.append(HDim(-wv, wv, top, dims[width_name], above=True))
 
@@ -173,7 +177,7 @@ def build_view(pipe: Pipe, inches: bool) -> View:
         shapes.append(_rect("solid", -inner, face, inner, end))
         if end < top:
             shapes.append(_rect("tint", -inner, end, inner, top))
-        calls.append(Callout(0.0, face, f"stopper face {size(D.STOPPER)} above the lower lip",
+        calls.append(Callout(0.0, face, f"stopper face {size(D.STOPPER)}",
                              f"stopper face {_k(dims, D.STOPPER)}"))
 
     head = pipe.head
@@ -184,11 +188,9 @@ def build_view(pipe: Pipe, inches: bool) -> View:
         hidden = 90.0 < abs(hole.angle_deg) % 360.0 < 270.0
         holes.append(HoleMark(0.0, y, hole.diameter_m * 500.0, hidden))
         where = "back" if hidden else ""
-        calls.append(Callout(0.0, y, f"{hole.label} ø {mm(hole.diameter_m)}  at "
+        calls.append(Callout(0.0, y, f"{hole.label}  ø {mm(hole.diameter_m)}  at "
                              f"{mm(hole.position_from_top_m)} from top"
-                             + (f" ({where})" if where else "")
-                             + (f" = {inch(hole.position_from_top_m)} in" if inches else ""),
-                             ""))
+                             + (f" ({where})" if where else ""), ""))
     return View(max(outer, inner), top, tuple(shapes), tuple(holes), tuple(vdims),
                 tuple(hdims), tuple(calls))
 
@@ -219,7 +221,7 @@ def _head(head: Head, top: float, inner: float, dims: dict[str, D.Dim],
         if head.cork_m is not None:
             cy = y + head.cork_m * 1000.0
             shapes.append(_rect("solid", -inner, cy, inner, min(top, cy + 4.0)))
-            calls.append(Callout(0.0, cy, f"cork face {mm(head.cork_m)} above the embouchure",
+            calls.append(Callout(0.0, cy, f"cork {mm(head.cork_m)} above the embouchure",
                                  ""))
 
 
@@ -232,7 +234,7 @@ MIN_WIDTH = 10.0 * MM
 def _dim_label(dim: D.Dim, inches: bool, key: bool) -> str:
     if key:
         return dim.key
-    text = mm(dim.value_m)
+    text = f"{D.SHORT.get(dim.name, dim.name)} {mm(dim.value_m)}"
     return text + (f" ({inch(dim.value_m)} in)" if inches else "")
 
 
@@ -259,7 +261,7 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
         right = 5 * MM + LEVEL * max(levels, 1)
         sy = min((h - top_res - bottom_res) / view.height,
                  (w - left - right) / (2.0 * view.half_width), MM)
-        assigned = _levels(vdims, labels, sy, font, size)
+        assigned = _levels(vdims, labels, sy, font, size, view.height)
         levels = max(assigned, default=-1) + 1
     sx = sy
     note = f"drawn at 1:{1.0 / (sy / MM):.1f}" if sy < MM * 0.999 else "drawn at 1:1"
@@ -280,7 +282,7 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
         c.setLineWidth(0.8)
         c.setStrokeColor(INK)
         c.setFillColor(LIGHT if hole.hidden else FAINT)
-        c.setDash(2, 1.5) if hole.hidden else c.setDash()
+        c.setDash([2, 1.5] if hole.hidden else [], 0)
         c.ellipse(hx - hole.radius * sx, hy - hole.radius * sy, hx + hole.radius * sx,
                   hy + hole.radius * sy, stroke=1, fill=1)
         c.setDash()
@@ -289,7 +291,8 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
     right_x = cx + view.half_width * sx
     for v, label, level in zip(vdims, labels, assigned, strict=True):
         lx = right_x + 5 * MM + level * LEVEL
-        _vdim(c, lx, right_x + 1.0, at(0, v.y0)[1], at(0, v.y1)[1], label, font, size)
+        _vdim(c, lx, right_x + 1.0, at(0, v.y0)[1], at(0, v.y1)[1], label, font, size,
+              _below(v, view.height))
     up = down = 0
     for d in hdims:
         x0, fy = at(d.x0, d.y)
@@ -301,21 +304,29 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
             ly = by - 4 * MM - down * LEVEL
             down += 1
         _hdim(c, x0, x1, fy, ly, _dim_label(d.dim, inches, key), font, size)
-    _callouts(c, calls, texts, at, cx - view.half_width * sx - 4 * MM, y, y + h, key)
+    _callouts(c, calls, texts, at, x, cx - view.half_width * sx - 4 * MM, y, y + h)
     c.setStrokeColor(INK)
     c.setFillColor(INK)
     return note
 
 
-def _levels(vdims: list[VDim], labels: list[str], sy: float, font: str, size: float
-            ) -> list[int]:
+def _below(v: VDim, height: float) -> bool:
+    """A label that does not fit between the arrows goes outside, away from the nearer end."""
+    return v.y0 + v.y1 > height
+
+
+def _levels(vdims: list[VDim], labels: list[str], sy: float, font: str, size: float,
+            height: float) -> list[int]:
     """Stack the length dimensions in columns so that no two labels overlap."""
     spans: list[tuple[float, float]] = []
     for v, label in zip(vdims, labels, strict=True):
         length = abs(v.y1 - v.y0) * sy
         need = stringWidth(label, font, size) + 4 * MM
         lo, hi = min(v.y0, v.y1) * sy, max(v.y0, v.y1) * sy
-        spans.append((lo, hi if length >= need else hi + need))
+        if length >= need:
+            spans.append((lo, hi))
+        else:
+            spans.append((lo - need, hi) if _below(v, height) else (lo, hi + need))
     order = sorted(range(len(vdims)), key=lambda i: (spans[i][1] - spans[i][0], i))
     taken: list[list[tuple[float, float]]] = []
     out = [0] * len(vdims)
@@ -332,8 +343,8 @@ def _levels(vdims: list[VDim], labels: list[str], sy: float, font: str, size: fl
     return out
 
 
-def _shape(c: Canvas, shape: Shape, at: object) -> None:
-    pts = [at(px, py) for px, py in shape.points]  # type: ignore[operator]
+def _shape(c: Canvas, shape: Shape, at: ToPage) -> None:
+    pts = [at(px, py) for px, py in shape.points]
     path = c.beginPath()
     path.moveTo(*pts[0])
     for p in pts[1:]:
@@ -353,7 +364,7 @@ def _shape(c: Canvas, shape: Shape, at: object) -> None:
     elif style == "centre":
         c.setLineWidth(0.3)
         c.setStrokeColor(GREY)
-        c.setDash(8, 2, 1.5, 2)
+        c.setDash([8, 2, 1.5, 2], 0)
         c.drawPath(path, stroke=1, fill=0)
     elif style == "opening":
         c.setFillColor(GREY)
@@ -382,7 +393,7 @@ def _arrow(c: Canvas, x: float, y: float, dx: float, dy: float) -> None:
 
 
 def _vdim(c: Canvas, lx: float, ext_from: float, y0: float, y1: float, label: str,
-          font: str, size: float) -> None:
+          font: str, size: float, below: bool) -> None:
     lo, hi = min(y0, y1), max(y0, y1)
     c.setLineWidth(0.35)
     c.line(ext_from, lo, lx + 1.5 * MM, lo)
@@ -394,6 +405,11 @@ def _vdim(c: Canvas, lx: float, ext_from: float, y0: float, y1: float, label: st
         _arrow(c, lx, lo, 0.0, -1.0)
         _arrow(c, lx, hi, 0.0, 1.0)
         mid = (lo + hi) / 2.0
+    elif below:
+        c.line(lx, lo - tw - 3 * MM, lx, hi + 3 * MM)
+        _arrow(c, lx, lo, 0.0, 1.0)
+        _arrow(c, lx, hi, 0.0, -1.0)
+        mid = lo - 2.5 * MM - tw / 2.0
     else:
         c.line(lx, lo - 3 * MM, lx, hi + tw + 3 * MM)
         _arrow(c, lx, lo, 0.0, 1.0)
@@ -432,14 +448,14 @@ def _hdim(c: Canvas, x0: float, x1: float, fy: float, ly: float, label: str, fon
     c.setFillColor(ACCENT)
 
 
-def _callouts(c: Canvas, calls: list[Callout], texts: list[str], at: object, text_right: float,
-              y_min: float, y_max: float, key: bool) -> None:
+def _callouts(c: Canvas, calls: list[Callout], texts: list[str], at: ToPage, x_min: float,
+              text_right: float, y_min: float, y_max: float) -> None:
     """Leader callouts on the left, spread apart so that no two labels touch."""
     if not calls:
         return
     size = 7.5
     gap = size * 1.35
-    targets = [at(co.x, co.y) for co in calls]  # type: ignore[operator]
+    targets = [at(co.x, co.y) for co in calls]
     order = sorted(range(len(calls)), key=lambda i: (-targets[i][1], i))
     ys: dict[int, float] = {}
     last = y_max - size
@@ -456,7 +472,7 @@ def _callouts(c: Canvas, calls: list[Callout], texts: list[str], at: object, tex
         tx, ty = targets[i]
         ly = ys[i]
         c.setFillColor(INK)
-        c.drawRightString(text_right, ly, fit_text(texts[i], FONT, size, text_right))
+        c.drawRightString(text_right, ly, fit_text(texts[i], FONT, size, text_right - x_min))
         c.setStrokeColor(GREY)
         c.setLineWidth(0.35)
         c.line(text_right + 1.0 * MM, ly + size * 0.35, tx, ty)

@@ -1,13 +1,15 @@
 """Look and numbers of the build sheet: page sizes, fonts, colours and the number formatters.
 
-Every number the PDF prints goes through one of the formatters here, so the build sheet
-shows exactly what ``resolved.json`` shows (the JSON writer rounds the same way):
+Every number the PDF prints goes through one of the formatters here, rounded exactly as
+``compiler/emit/resolved_json.py`` rounds it (``round(value * factor, decimals)``, with
+negative zero shown as zero), so a value in ``resolved.json`` appears digit for digit:
 
-- lengths: millimetres to 0.01 mm, ``f"{metres * 1000:.2f}"`` (:func:`mm`);
-- inches beside them (specs written in ``in`` or ``ft``): ``f"{metres / 0.0254:.3f}"``;
-- frequencies: ``f"{hz:.2f}"`` (:func:`hz`);
-- cents: ``f"{cents:+.2f}"`` (:func:`cents`): the sign shows sharp or flat; without it the
-  digits are those of the JSON value.
+- lengths: millimetres to 0.01 mm (:func:`mm`, ``92.50``); inches beside them for specs
+  written in ``in`` or ``ft`` (:func:`inch`, 0.001 in);
+- frequencies: 0.01 Hz (:func:`hz`);
+- cents: 0.01 cent, signed (:func:`cents`, ``+1.25`` sharp, ``-0.40`` flat);
+- sensitivities (cents per mm, cents per °C): 0.001, signed (:func:`sensitivity`);
+- speed of sound 0.001 m/s, temperature 0.01 °C, angles 0.01° (:func:`fixed`).
 """
 
 from __future__ import annotations
@@ -74,19 +76,32 @@ def frame_for(paper: str) -> Frame:
                  (h_mm - MARGIN_MM - HEADER_MM) * MM, (MARGIN_MM + FOOTER_MM) * MM)
 
 
+def fixed(value: float, decimals: int, signed: bool = False) -> str:
+    """``value`` rounded as ``resolved.json`` rounds it, shown with ``decimals`` places."""
+    rounded = round(value, decimals)
+    if rounded == 0:
+        rounded = 0.0
+    return f"{rounded:+.{decimals}f}" if signed else f"{rounded:.{decimals}f}"
+
+
 def mm(length_m: float) -> str:
     """A length in metres as millimetres to 0.01 mm, the resolution of ``resolved.json``."""
-    return f"{length_m * 1000.0:.2f}"
+    return fixed(length_m * 1000.0, 2)
 
 
 def mm_of(value_mm: float) -> str:
     """A length already in millimetres (Parts), to 0.01 mm."""
-    return f"{value_mm:.2f}"
+    return fixed(value_mm, 2)
 
 
 def inch(length_m: float) -> str:
     """A length in metres as decimal inches to 0.001 in."""
-    return f"{length_m / INCH_M:.3f}"
+    return fixed(length_m / INCH_M, 3)
+
+
+def inch_of(value_mm: float) -> str:
+    """A length in millimetres (Parts) as decimal inches to 0.001 in."""
+    return fixed(value_mm / 25.4, 3)
 
 
 def length(length_m: float, inches: bool, unit: bool = True) -> str:
@@ -99,12 +114,17 @@ def length(length_m: float, inches: bool, unit: bool = True) -> str:
 
 def hz(frequency_hz: float) -> str:
     """A frequency to 0.01 Hz."""
-    return f"{frequency_hz:.2f}"
+    return fixed(frequency_hz, 2)
 
 
 def cents(value: float) -> str:
     """Cents to 0.01, signed (``+1.25`` sharp, ``-0.40`` flat)."""
-    return f"{value:+.2f}"
+    return fixed(value, 2, signed=True)
+
+
+def sensitivity(value: float) -> str:
+    """Cents per mm or per °C, to 0.001, signed."""
+    return fixed(value, 3, signed=True)
 
 
 def percent(fraction: float) -> str:
@@ -113,7 +133,11 @@ def percent(fraction: float) -> str:
 
 
 def celsius(value_c: float) -> str:
-    return f"{value_c:.1f} °C"
+    return f"{fixed(value_c, 2)} °C"
+
+
+def speed(value_m_s: float) -> str:
+    return f"{fixed(value_m_s, 3)} m/s"
 
 
 def uses_inches(units: str) -> bool:

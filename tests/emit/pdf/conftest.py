@@ -9,6 +9,7 @@ the resolver will produce; nothing here is a check value.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import pytest
 
@@ -24,11 +25,12 @@ from compiler.resolve.model import (
     Foot,
     Group,
     Head,
-    Hole,
     Holder,
+    Hole,
     Mouth,
     Note,
     Pipe,
+    Residual,
     Resolved,
     StockItem,
     Stopper,
@@ -129,7 +131,8 @@ def wood_pipe() -> tuple[Group, Pipe]:
         fingerings=(), curves=(), source=_where(52))
     group = Group("bourdon-8", "rank", "stopped-flue", "boards", room(), "unflanged",
                   Calibration(True, "mouth correction scale", 1.042,
-                              (("A2", 0.81), ("C3", -0.63)), 0.72), None, (pipe.id,))
+                              (Residual("A2", 0.81), Residual("C3", -0.63)), 0.72), None,
+                  (pipe.id,))
     return group, pipe
 
 
@@ -276,7 +279,7 @@ def flue_parts(pipe: Pipe) -> tuple[Part, ...]:
     languid = Part(f"{pipe.id}-languid", pipe.id, pipe.group, "languid", "spotted-metal",
                    "spotted-08", 0.8, "sheet", d, r + chord,
                    (Polyline("cut-outer", ((r - half, r + chord), (r + half, r + chord)), True,
-                             (0.0, bulge)),
+                             (bulge, 0.0)),
                     Text("engrave", (r - 8.0, r / 2), 4.0, pipe.note)))
     return body, foot, languid
 
@@ -364,3 +367,47 @@ def small() -> tuple[Resolved, Parts]:
 def large() -> tuple[Resolved, Parts]:
     resolved = large_resolved()
     return resolved, large_parts(resolved)
+
+
+def render_pdf(resolved: Resolved, parts: Parts, paper: str | None = None) -> bytes:
+    from compiler.emit.pdf import render
+    from compiler.options import BuildOptions
+
+    return render(resolved, parts, BuildOptions(paper=paper))
+
+
+def page_texts(data: bytes) -> list[str]:
+    import io
+
+    from pypdf import PdfReader
+
+    return [page.extract_text() for page in PdfReader(io.BytesIO(data)).pages]
+
+
+@pytest.fixture(scope="session")
+def small_pdf(small: tuple[Resolved, Parts]) -> bytes:
+    return render_pdf(*small)
+
+
+@pytest.fixture(scope="session")
+def small_pages(small_pdf: bytes) -> list[str]:
+    return page_texts(small_pdf)
+
+
+@pytest.fixture(scope="session")
+def large_pdf(large: tuple[Resolved, Parts]) -> bytes:
+    return render_pdf(*large)
+
+
+@pytest.fixture(scope="session")
+def large_pages(large_pdf: bytes) -> list[str]:
+    return page_texts(large_pdf)
+
+
+@pytest.fixture(scope="session")
+def texts_of() -> Callable[..., list[str]]:
+    """Render a model and return the text of each page."""
+    def texts(resolved: Resolved, parts: Parts, paper: str | None = None) -> list[str]:
+        return page_texts(render_pdf(resolved, parts, paper))
+
+    return texts

@@ -1,0 +1,173 @@
+"""DXF backend: one drawing per nested sheet, and optionally one per part.
+
+Layers (one per operation; entity colours are BYLAYER):
+
+=============  ===========  =====================================================
+layer          ACI colour   what
+=============  ===========  =====================================================
+``cut-inner``  5 (blue)     openings, cut first (kerf-compensated, closed)
+``cut-outer``  1 (red)      part outlines (kerf-compensated, closed)
+``mark``       3 (green)    score and centre lines, ticks, templates' features
+``engrave``    6 (magenta)  labels (TEXT)
+=============  ===========  =====================================================
+
+Entities are written layer by layer in the order engrave, mark, cut-inner, cut-outer (the
+usual laser order: nothing moves until the outlines are cut). Closed paths are
+LWPOLYLINE with bulges (R2010) or closed POLYLINE with bulges (R12); circles are CIRCLE.
+
+Reproducible bytes: the drawing's timestamps are fixed (2000-01-01, zero editing time),
+its GUIDs derive from the spec's sha256 and the file name, handles are assigned in
+creation order, and coordinates are rounded to 1e-6 mm. ``$INSUNITS`` = 4 (millimetres)
+in R2010; R12 has no such header variable (it came with R2000), so R12 files are unitless
+and the cutter software must be told millimetres.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import io
+import pathlib
+from collections import OrderedDict
+
+from ezdxf.document import Drawing
+from ezdxf.lldxf.tagwriter import TagWriter
+
+from compiler.geometry.model import Circle, Entity, Part, Parts, Sheet, Text
+from compiler.geometry.paths import Box, bounds_of, placed
+from compiler.geometry.units import snap, snap_bulge
+from compiler.options import BuildOptions
+from compiler.resolve.model import Resolved
+
+NAME = "dxf"
+
+LAYER_COLOURS = {"cut-inner": 5, "cut-outer": 1, "mark": 3, "engrave": 6}
+"""AutoCAD Color Index of each operation's layer."""
+
+WRITE_ORDER = ("engrave", "mark", "cut-inner", "cut-outer")
+
+VERSIONS = {"r2010": "R2010", "r12": "R12"}
+
+FIXED_JULIAN_DATE = 2451544.5
+"""2000-01-01 00:00 as a Julian date: every file carries the same creation time."""
+
+MARKER = "boresmith"
+
+
+def _guid(seed: str) -> str:
+    h = hashlib.sha256(seed.encode("utf-8")).hexdigest().upper()
+    return "{" + f"{h[:8]}-{h[8:12]}-{h[12:16]}-{h[16:20]}-{h[20:32]}" + "}"
+
+
+def _new(version: str) -> Drawing:
+    doc = Drawing.new(version)
+    # R12 has no $INSUNITS (setting it makes ezdxf log a warning).
+    if version != "R12":
+        doc.units = 4
+        doc.header["$MEASUREMENT"] = 1
+    return doc
+
+
+def _add(doc: Drawing, entity: Entity) -> None:
+    msp = doc.modelspace()
+    attribs = {"layer": entity.operation}
+    if isinstance(entity, Circle):
+        msp.add_circle((snap(entity.center[0]), snap(entity.center[1])), snap(entity.radius),
+                       dxfattribs=attribs)
+    elif isinstance(entity, Text):
+        text = msp.add_text(entity.text, height=entity.height,
+                            rotation=snap(entity.rotation_deg), dxfattribs=attribs)
+        text.dxf.insert = (snap(entity.insert[0]), snap(entity.insert[1]))
+    else:
+        bulges = list(entity.bulges) + [0.0] * (len(entity.points) - len(entity.bulges))
+        points = [(snap(x), snap(y), snap_bulge(b)) for (x, y), b in zip(entity.points, bulges,
+                                                                   strict=True)]
+        if doc.dxfversion == "AC1009":
+            msp.add_polyline2d(points, format="xyb", close=entity.closed, dxfattribs=attribs)
+        else:
+            msp.add_lwpolyline(points, format="xyb", close=entity.closed, dxfattribs=attribs)
+
+
+def _serialise(doc: Drawing, seed: str) -> bytes:
+    """``doc`` as DXF bytes with fixed times and seeded GUIDs (``Drawing.write`` would
+    stamp the current time and random GUIDs into the header and ezdxf's metadata)."""
+    doc.commit_pending_changes()
+    doc.update_all()
+    for var in ("$TDCREATE", "$TDUCREATE", "$TDUPDATE", "$TDUUPDATE"):
+        doc.header[var] = FIXED_JULIAN_DATE
+    doc.header["$TDINDWG"] = 0.0
+    doc.header["$TDUSRTIMER"] = 0.0
+    if doc.dxfversion != "AC1009":
+        doc.header["$FINGERPRINTGUID"] = _guid("fingerprint:" + seed)
+        doc.header["$VERSIONGUID"] = _guid("version:" + seed)
+    meta = doc.ezdxf_metadata()
+    meta["CREATED_BY_EZDXF"] = MARKER
+    meta["WRITTEN_BY_EZDXF"] = MARKER
+    # ezdxf registers the CLASS entries of the entity types in use from a set, whose order
+    # changes with Python's string hashing from run to run: put them in a fixed order.
+    doc.classes.classes = OrderedDict(sorted(doc.classes.classes.items()))
+    stream = io.StringIO()
+    handles = doc.dxfversion != "AC1009" or bool(doc.header.get("$HANDLING", 0))
+    doc.export_sections(TagWriter(stream, write_handles=handles, dxfversion=doc.dxfversion))
+    return doc.encode(stream.getvalue())
+
+
+def render(entities: tuple[Entity, ...], version: str, seed: str, limits: Box) -> bytes:
+    """One DXF drawing of ``entities`` (mm) as bytes.
+
+    ``version``: ``r2010`` or ``r12``; ``seed``: the text the GUIDs derive from (the spec's
+    sha256 and the file name); ``limits``: the drawing limits (the sheet, or the part).
+    """
+    doc = _new(VERSIONS[version])
+    for name, colour in LAYER_COLOURS.items():
+        doc.layers.add(name, color=colour)
+    # The drawing limits (the sheet, or the part); ezdxf copies them into the header.
+    msp = doc.modelspace()
+    msp.dxf.limmin = (snap(limits[0]), snap(limits[1]))
+    msp.dxf.limmax = (snap(limits[2]), snap(limits[3]))
+    for operation in WRITE_ORDER:
+        for entity in entities:
+            if entity.operation == operation:
+                _add(doc, entity)
+    return _serialise(doc, seed)
+
+
+def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
+    """Every placed part's entities, moved (and turned) to their place on the sheet."""
+    out: list[Entity] = []
+    for placement in sheet.placements:
+        out += placed(parts[placement.part_id].entities, placement)
+    return tuple(out)
+
+
+def write(resolved: Resolved, parts: Parts, options: BuildOptions,
+          out_dir: pathlib.Path) -> list[pathlib.Path]:
+    """Write ``sheet-<n>-<material>.dxf`` for every nested sheet into ``out_dir``, and
+    ``parts/<part id>.dxf`` for every part when part files are on (``options.part_files``,
+    else the spec's ``fabrication.part_files``). Returns the paths written, sorted."""
+    version = (options.dxf_version or resolved.fabrication.dxf_version).lower()
+    if version not in VERSIONS:
+        raise ValueError(f"unknown DXF version {version!r}; use one of {sorted(VERSIONS)}")
+    part_files = (resolved.fabrication.part_files if options.part_files is None
+                  else options.part_files)
+    by_id = {p.id: p for p in parts.parts}
+    out_dir.mkdir(parents=True, exist_ok=True)
+    written: list[pathlib.Path] = []
+    for sheet in parts.sheets:
+        name = f"{sheet.id}.dxf"
+        data = render(sheet_entities(sheet, by_id), version,
+                      f"{resolved.spec_sha256}:{name}",
+                      (0.0, 0.0, sheet.length_mm, sheet.width_mm))
+        path = out_dir / name
+        path.write_bytes(data)
+        written.append(path)
+    if part_files:
+        folder = out_dir / "parts"
+        folder.mkdir(exist_ok=True)
+        for part in parts.parts:
+            name = f"{part.id}.dxf"
+            data = render(part.entities, version, f"{resolved.spec_sha256}:parts/{name}",
+                          bounds_of(part.entities))
+            path = folder / name
+            path.write_bytes(data)
+            written.append(path)
+    return sorted(written)

@@ -1,0 +1,146 @@
+"""The cover: what is built, from which spec, in what air and tuning, and a summary."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from compiler.emit.pdf.document import (
+    Block,
+    Column,
+    Heading,
+    KeyValues,
+    Page,
+    Paragraph,
+    Spacer,
+    Table,
+    flow_pages,
+)
+from compiler.emit.pdf.style import (
+    GREY,
+    MM,
+    Frame,
+    celsius,
+    cents,
+    fixed,
+    hz,
+    length,
+    speed,
+    uses_inches,
+)
+from compiler.resolve.model import AirReport, Resolved
+
+SECTION = "Cover"
+WARNINGS_SHOWN = 12
+
+
+def _title_blocks(resolved: Resolved) -> list[Block]:
+    fab = resolved.fabrication
+    inches = uses_inches(fab.units)
+    return [
+        Paragraph(resolved.instrument, 20, bold=True),
+        Paragraph("Build sheet: cut list, pipe drawings, predicted tuning, full-size "
+                  "templates and safety notes", 10.5, colour=GREY),
+        Spacer(3 * MM),
+        KeyValues((
+            ("spec file", resolved.spec_file),
+            ("spec sha256", resolved.spec_sha256),
+            ("lengths", "millimetres" + (", inches beside them" if inches else "")
+             + f" (spec written in {fab.units})"),
+            ("work to", f"{length(fab.precision_m, inches)} (fabrication precision)"),
+            ("sheet size", f"{length(fab.sheet_length_m, inches)} × "
+                           f"{length(fab.sheet_width_m, inches)}"),
+            ("kerf, spacing", f"{length(fab.kerf_m, inches)}, {length(fab.spacing_m, inches)}"),
+            ("seam allowance", length(fab.seam_allowance_m, inches)),
+            ("tuning allowance", fab.tuning_allowance),
+            ("tuning", f"A4 = {hz(resolved.tuning.a4_hz)} Hz, {resolved.tuning.temperament} "
+                       f"temperament, tonic {resolved.tuning.tonic}"),
+        ), 9.5, 0.22),
+    ]
+
+
+def _names(ids: Sequence[str]) -> str:
+    """Group ids for one table row: all of them, or the first and last of a long run."""
+    if len(ids) <= 3:
+        return ", ".join(ids)
+    return f"{ids[0]} to {ids[-1]} ({len(ids)})"
+
+
+def _air_blocks(resolved: Resolved) -> list[Block]:
+    cols = (Column("groups", 2.1), Column("air", 0.7), Column("temperature", 1.0, "right"),
+            Column("humidity", 0.9, "right"), Column("pressure", 1.1, "right"),
+            Column("CO2", 1.1, "right"), Column("speed of sound", 1.3, "right"),
+            Column("model", 1.1))
+    alike: dict[object, list[str]] = {}
+    for g in resolved.groups:
+        alike.setdefault(g.air, []).append(g.id)
+    rows = tuple((_names(ids), air.preset, celsius(air.temperature_c),
+                  f"{fixed(air.humidity_percent, 2)} %", f"{fixed(air.pressure_pa, 1)} Pa",
+                  f"{fixed(air.co2_ppm, 1)} ppm", speed(air.speed_m_s), air.sound_speed_model)
+                 for air, ids in ((a, i) for a, i in alike.items() if isinstance(a, AirReport)))
+    out: list[Block] = [Table(cols, rows, size=8)]
+    defaults = sorted({name for g in resolved.groups for name in g.air.defaults})
+    if defaults:
+        out.append(Paragraph("Not given in the spec, so taken from the defaults for room air "
+                             "or breath: " + ", ".join(defaults) + ".", 8, colour=GREY))
+    return out
+
+
+def _calibration_table(resolved: Resolved) -> Table:
+    cols = (Column("groups", 2.1), Column("status", 1.1), Column("fitted", 1.7),
+            Column("value", 0.8, "right"), Column("rms cents", 0.9, "right"),
+            Column("measured minus predicted (cents)", 3.0))
+    rows = []
+    plain = [g.id for g in resolved.groups if not g.calibration.calibrated]
+    if plain:
+        rows.append((_names(plain), "not calibrated", "-", "-", "-",
+                     "no measured pipes in the spec"))
+    for g in resolved.groups:
+        cal = g.calibration
+        if cal.calibrated:
+            rows.append((g.id, "calibrated", cal.parameter, f"{cal.value:.4f}",
+                         fixed(cal.rms_cents, 2),
+                         ", ".join(f"{r.note} {cents(r.error_cents)}" for r in cal.residuals)))
+    return Table(cols, tuple(rows), size=8)
+
+
+def _summary_table(resolved: Resolved) -> Table:
+    by_id = {p.id: p for p in resolved.pipes}
+    cols = (Column("group", 1.6), Column("kind", 0.9), Column("family", 1.2),
+            Column("construction", 1.1), Column("pipes", 0.6, "right"),
+            Column("notes", 1.1), Column("stock", 1.1), Column("largest\nerror cents", 1.0,
+                                                               "right"))
+    rows = []
+    for g in resolved.groups:
+        pipes = [by_id[i] for i in g.pipe_ids if i in by_id]
+        notes = f"{pipes[0].note} to {pipes[-1].note}" if len(pipes) > 1 else (
+            pipes[0].note if pipes else "-")
+        errors = [p.error_cents for p in pipes] + [f.error_cents for p in pipes
+                                                  for f in p.fingerings]
+        worst = max(errors, key=abs) if errors else 0.0
+        stock = ", ".join(sorted({p.stock for p in pipes}))
+        rows.append((g.id, g.kind, g.family, g.construction, str(len(pipes)), notes, stock,
+                     cents(worst)))
+    return Table(cols, tuple(rows), size=8, title_rows=2)
+
+
+def _contents(contents: Sequence[tuple[str, int]]) -> Table:
+    return Table((Column("section", 4.0), Column("page", 1.0, "right")),
+                 tuple((title, str(page)) for title, page in contents), size=9, min_rows=1)
+
+
+def pages(resolved: Resolved, frame: Frame, contents: Sequence[tuple[str, int]]) -> list[Page]:
+    """The cover page(s); ``contents`` lists (section, first page) for the rest."""
+    blocks = _title_blocks(resolved)
+    blocks += [Spacer(2 * MM), Heading("Summary", 12), _summary_table(resolved),
+               Spacer(2 * MM), Heading("Air and speed of sound", 12), *_air_blocks(resolved),
+               Spacer(2 * MM), Heading("Calibration", 12), _calibration_table(resolved)]
+    if resolved.warnings:
+        blocks += [Spacer(2 * MM), Heading("Notes from the resolver", 12)]
+        for note in resolved.warnings[:WARNINGS_SHOWN]:
+            blocks.append(Paragraph(f"{note.position}: {note.message}", 8.5))
+        extra = len(resolved.warnings) - WARNINGS_SHOWN
+        if extra > 0:
+            blocks.append(Paragraph(f"... and {extra} more (boresmith resolve lists them "
+                                    "all).", 8.5, colour=GREY))
+    blocks += [Spacer(2 * MM), Heading("Contents", 12), _contents(contents)]
+    return flow_pages(SECTION, blocks, frame, "Cover")

@@ -1,0 +1,179 @@
+"""The cut list, by stock: what to cut from each sheet, board and tube, and the sheets used.
+
+Sheet and board parts are listed one row per pipe with a column per part name (body,
+foot, languid...), so a large rank stays compact; a stock with many different part names
+falls back to one row per part. Tubes list one length per pipe. Each stock ends with its
+sheets and their utilisation.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from compiler.emit.pdf.document import Block, Column, Heading, Page, Paragraph, Spacer, Table
+from compiler.emit.pdf.document import flow_pages as _flow_pages
+from compiler.emit.pdf.style import (
+    GREY,
+    MM,
+    Frame,
+    inch_of,
+    length,
+    mm_of,
+    percent,
+    uses_inches,
+)
+from compiler.geometry.model import Part, Parts, Sheet, TubeCut
+from compiler.resolve.model import Resolved, StockItem
+
+SECTION = "Cut list"
+PIVOT_LIMIT = 6
+"""More part names than this in one stock: one row per part instead of one per pipe."""
+
+
+def _stock_line(name: str, item: StockItem | None, inches: bool, material: str) -> str:
+    if item is None:
+        return f"{name}: {material}"
+    text = f"{name}: {item.material}, {item.kind}, {length(item.thickness_m, inches)} thick"
+    if item.outside_diameter_m is not None:
+        text = (f"{name}: {item.material} tube, {length(item.outside_diameter_m, inches)} "
+                f"outside, {length(item.thickness_m, inches)} wall")
+        if item.inside_diameter_m is not None:
+            text += f" ({length(item.inside_diameter_m, inches)} inside)"
+    if item.length_m is not None and item.width_m is not None:
+        text += f", {length(item.length_m, inches)} × {length(item.width_m, inches)}"
+    elif item.length_m is not None:
+        text += f", lengths of {length(item.length_m, inches)}"
+    return text
+
+
+def _inches(part: Part) -> str:
+    return f"{inch_of(part.width_mm)} × {inch_of(part.height_mm)} in"
+
+
+def _size(part: Part) -> str:
+    text = f"{mm_of(part.width_mm)} × {mm_of(part.height_mm)}"
+    return f"{part.quantity}× {text}" if part.quantity > 1 else text
+
+
+def _sheet_names(parts: Sequence[Part], sheets: Sequence[Sheet], stock: str) -> dict[str, str]:
+    """Part id → the sheet(s) it is nested on (``1``, ``2, 3``)."""
+    where: dict[str, list[str]] = {}
+    for sheet in sheets:
+        short = sheet.id[len(stock) + 1:] if sheet.id.startswith(stock + "-") else sheet.id
+        for pl in sheet.placements:
+            names = where.setdefault(pl.part_id, [])
+            if short not in names:
+                names.append(short)
+    return {p.id: ", ".join(where.get(p.id, [])) or "-" for p in parts}
+
+
+def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Table | None:
+    names: list[str] = []
+    for p in parts:
+        if p.name not in names:
+            names.append(p.name)
+    if len(names) > PIVOT_LIMIT:
+        return None
+    rows_by: dict[str, dict[str, Part]] = {}
+    order: list[str] = []
+    for p in parts:
+        key = p.pipe_id or p.id
+        if key not in rows_by:
+            rows_by[key] = {}
+            order.append(key)
+        if p.name in rows_by[key]:
+            return None  # two parts of one name for a pipe: the pivot would hide one
+        rows_by[key][p.name] = p
+    cols = (Column("pipe", 1.5),) + tuple(Column(f"{n}\nW × H mm", 1.7) for n in names) + (
+        Column("on sheet", 0.9),)
+    rows, sub = [], []
+    for key in order:
+        found = rows_by[key]
+        row = [key] + [_size(found[n]) if n in found else "" for n in names]
+        sheets = sorted({s for p in found.values() for s in sheet_of[p.id].split(", ")},
+                        key=lambda s: (len(s), s))
+        row.append(", ".join(s for s in sheets if s != "-") or "-")
+        rows.append(tuple(row))
+        sub.append(("",) + tuple(_second_line(found.get(n), inches) for n in names) + ("",))
+    has_notes = any(any(cell for cell in s) for s in sub)
+    return Table(cols, tuple(rows), tuple(sub) if has_notes else (), size=8, title_rows=2)
+
+
+def _second_line(part: Part | None, inches: bool) -> str:
+    """Under a size: the inches (spec in inches) and the part's note."""
+    if part is None:
+        return ""
+    return " · ".join(t for t in ((_inches(part) if inches else ""), part.note) if t)
+
+
+def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Table:
+    cols = (Column("part", 2.2), Column("pipe", 1.4), Column("qty", 0.5, "right"),
+            Column("W × H mm", 1.6), Column("on sheet", 0.9), Column("note", 2.2))
+    rows = tuple((p.id, p.pipe_id or "-", str(p.quantity),
+                  f"{mm_of(p.width_mm)} × {mm_of(p.height_mm)}", sheet_of[p.id], p.note)
+                 for p in parts)
+    sub = tuple(("", "", "", _inches(p), "", "") for p in parts) if inches else ()
+    return Table(cols, rows, sub, size=8)
+
+
+def _sheets_table(sheets: Sequence[Sheet]) -> Table:
+    cols = (Column("sheet", 1.6), Column("size mm", 1.6), Column("parts", 0.7, "right"),
+            Column("utilisation", 1.0, "right"))
+    rows = tuple((s.id, f"{mm_of(s.length_mm)} × {mm_of(s.width_mm)}", str(len(s.placements)),
+                  percent(s.utilisation)) for s in sheets)
+    return Table(cols, rows, size=8)
+
+
+def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool) -> Table:
+    cols = (Column("pipe", 1.8), Column("length mm", 1.0, "right"),
+            Column("outside ø mm", 1.0, "right"), Column("note", 2.6))
+    rows = [(t.pipe_id, mm_of(t.length_mm), mm_of(t.outside_diameter_mm),
+             notes.get(t.pipe_id, "")) for t in cuts]
+    total = sum(t.length_mm for t in cuts)
+    rows.append((f"total ({len(cuts)} pieces, kerf not included)", mm_of(total), "", ""))
+    sub: tuple[tuple[str, ...], ...] = ()
+    if inches:
+        sub = tuple(("", f"{inch_of(t.length_mm)} in", f"{inch_of(t.outside_diameter_mm)} in",
+                     "") for t in cuts) + (("", f"{inch_of(total)} in", "", ""),)
+    return Table(cols, tuple(rows), sub, size=8, shade=(len(rows) - 1,))
+
+
+def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
+    """Headings and tables for every stock the parts use, in the order of the stock names."""
+    inches = uses_inches(resolved.fabrication.units)
+    items = {s.name: s for s in resolved.stock}
+    cut_parts = [p for p in parts.parts if p.kind in ("sheet", "board")]
+    tube_notes = {p.pipe_id: p.note for p in parts.parts if p.kind == "tube" and p.pipe_id}
+    stocks = sorted({p.stock for p in cut_parts} | {t.stock for t in parts.tube_cuts})
+    out: list[Block] = [Heading("Cut list", 15),
+                        Paragraph("Sizes are the bounding box of each flat part in mm (W "
+                                  "across, H along the pipe); \"2×\" means cut two. Sheet "
+                                  "numbers refer to the sheets' DXF files.", 8.5, colour=GREY)]
+    for stock in stocks:
+        mine = [p for p in cut_parts if p.stock == stock]
+        tubes = [t for t in parts.tube_cuts if t.stock == stock]
+        material = (mine[0].material if mine else tubes[0].material)
+        out += [Spacer(2 * MM), Heading(_stock_line(stock, items.get(stock), inches, material),
+                                        11)]
+        if mine:
+            sheets = [s for s in parts.sheets if s.stock == stock]
+            sheet_of = _sheet_names(mine, sheets, stock)
+            out.append(_pivot(mine, sheet_of, inches) or _per_part(mine, sheet_of, inches))
+            if sheets:
+                out += [Spacer(1.5 * MM), _sheets_table(sheets)]
+        if tubes:
+            out.append(_tubes_table(tubes, tube_notes, inches))
+    templates = [p for p in parts.parts if p.kind == "template"]
+    if templates:
+        out += [Spacer(2 * MM), Heading("Paper templates (printed in the Templates section)",
+                                        11),
+                Table((Column("template", 2.0), Column("for", 1.5), Column("W × H mm", 1.4)),
+                      tuple((p.id, p.pipe_id or p.group, f"{mm_of(p.width_mm)} × "
+                             f"{mm_of(p.height_mm)}") for p in templates), size=8)]
+    if len(out) == 2:
+        out.append(Paragraph("Nothing to cut: the parts list is empty.", 9.5))
+    return out
+
+
+def pages(resolved: Resolved, parts: Parts, frame: Frame) -> list[Page]:
+    return _flow_pages(SECTION, blocks(resolved, parts), frame, "Cut list")

@@ -1,0 +1,175 @@
+"""Fingering pages of a holed pipe: the chart, the tuning error per note and admittance curves.
+
+The chart is a table with a row per fingering, grouped by register: the holes drawn as a
+row of circles (hole 1, nearest the head, on the left; filled = closed; a dashed ring is a
+hole on the back), then the target and predicted pitch and the error in cents.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+from reportlab.pdfgen.canvas import Canvas
+
+from compiler.emit.pdf.document import (
+    Block,
+    Heading,
+    Page,
+    Paragraph,
+    Spacer,
+    fit_text,
+    flow_pages,
+)
+from compiler.emit.pdf.plots import CurvePlot, ErrorPlot
+from compiler.emit.pdf.style import (
+    FAINT,
+    FONT,
+    FONT_BOLD,
+    GREY,
+    INK,
+    LIGHT,
+    MM,
+    Frame,
+    cents,
+    hz,
+    safe,
+)
+from compiler.resolve.model import Fingering, Hole, Pipe
+
+SECTION = "Fingerings"
+ROW = 5.3 * MM
+PITCH = 6.0 * MM
+"""Distance between hole circles in the chart."""
+
+
+@dataclass(frozen=True)
+class ChartRow:
+    heading: str
+    fingering: Fingering | None
+
+
+def register_words(register: int) -> str:
+    names = {1: "first register", 2: "second register (overblown)",
+             3: "third register"}
+    return f"Register {register}: " + names.get(register, f"register {register}")
+
+
+@dataclass(frozen=True)
+class Chart(Block):
+    """The fingering table; splits between rows like a table, repeating its header."""
+
+    holes: tuple[Hole, ...]
+    rows: tuple[ChartRow, ...]
+    size: float = 9.0
+
+    def _diagram_width(self) -> float:
+        return max(len(self.holes), 1) * PITCH + 4 * MM
+
+    def height(self, width: float) -> float:
+        return 8 * MM + len(self.rows) * ROW + 1.0
+
+    def split(self, width: float, available: float) -> tuple[Block, Block] | None:
+        n = int((available - 8 * MM - 1.0) // ROW)
+        if n < 3 or n >= len(self.rows):
+            return None
+        return replace(self, rows=self.rows[:n]), replace(self, rows=self.rows[n:])
+
+    def draw(self, c: Canvas, x: float, y_top: float, width: float) -> None:
+        dw = self._diagram_width()
+        note_w = 22 * MM
+        num_w = (width - note_w - dw) / 3.0
+        cols = [x + note_w + dw + k * num_w for k in range(4)]
+        c.setFillColor(LIGHT)
+        c.rect(x, y_top - 8 * MM, width, 8 * MM, stroke=0, fill=1)
+        c.setFillColor(INK)
+        c.setFont(FONT_BOLD, self.size)
+        base = y_top - 5.5 * MM
+        c.drawString(x + 1.5 * MM, base, "note")
+        c.setFont(FONT_BOLD, 7)
+        for i, hole in enumerate(self.holes):
+            c.drawCentredString(x + note_w + 2 * MM + (i + 0.5) * PITCH, base,
+                                fit_text(hole.label, FONT_BOLD, 7, PITCH))
+        c.setFont(FONT_BOLD, self.size)
+        for k, title in enumerate(("target Hz", "predicted Hz", "error cents")):
+            c.drawRightString(cols[k + 1] - 1.5 * MM, base, title)
+        y = y_top - 8 * MM
+        for row in self.rows:
+            if row.fingering is None:
+                c.setFillColor(FAINT)
+                c.rect(x, y - ROW, width, ROW, stroke=0, fill=1)
+                c.setFillColor(INK)
+                c.setFont(FONT_BOLD, self.size)
+                c.drawString(x + 1.5 * MM, y - ROW + 2 * MM, safe(row.heading))
+                y -= ROW
+                continue
+            f = row.fingering
+            c.setStrokeColor(LIGHT)
+            c.setLineWidth(0.4)
+            c.line(x, y - ROW, x + width, y - ROW)
+            c.setFillColor(INK)
+            c.setFont(FONT_BOLD, self.size + 1)
+            c.drawString(x + 1.5 * MM, y - ROW + 2 * MM, safe(f.note))
+            for h, hole in enumerate(self.holes):
+                closed = f.closed[h] if h < len(f.closed) else False
+                _hole(c, x + note_w + 2 * MM + (h + 0.5) * PITCH, y - ROW / 2, closed,
+                      90.0 < abs(hole.angle_deg) % 360.0 < 270.0)
+            c.setFont(FONT, self.size)
+            c.setFillColor(INK)
+            for k, text in enumerate((hz(f.target_hz), hz(f.predicted_hz),
+                                      cents(f.error_cents))):
+                c.drawRightString(cols[k + 1] - 1.5 * MM, y - ROW + 2 * MM, text)
+            y -= ROW
+        c.setStrokeColor(GREY)
+        c.line(x, y, x + width, y)
+
+
+def _hole(c: Canvas, x: float, y: float, closed: bool, back: bool) -> None:
+    c.setStrokeColor(INK)
+    c.setLineWidth(0.9)
+    c.setDash([1.5, 1.0] if back else [], 0)
+    c.setFillColor(INK)
+    c.circle(x, y, 2.1 * MM, stroke=1, fill=1 if closed else 0)
+    c.setDash([], 0)
+
+
+def chart_rows(pipe: Pipe) -> tuple[ChartRow, ...]:
+    """Fingerings grouped by register (in the resolved order within each register)."""
+    rows: list[ChartRow] = []
+    for register in sorted({f.register for f in pipe.fingerings}):
+        rows.append(ChartRow(register_words(register), None))
+        rows += [ChartRow("", f) for f in pipe.fingerings if f.register == register]
+    return tuple(rows)
+
+
+def blocks(pipe: Pipe) -> list[Block]:
+    """Chart, error plot and admittance plot of one holed pipe."""
+    out: list[Block] = [
+        Heading(f"Fingering chart: {pipe.id}", 13),
+        Paragraph("Filled circle: hole closed. Open circle: hole open. Hole 1 (nearest the "
+                  "head) is on the left; a dashed ring is a hole on the back (thumb hole). "
+                  "Error: predicted minus target, in cents.", 8.5, colour=GREY),
+        Chart(tuple(sorted(pipe.holes, key=lambda h: h.number)), chart_rows(pipe)),
+        Spacer(4 * MM),
+    ]
+    ordered = [f for reg in sorted({f.register for f in pipe.fingerings})
+               for f in pipe.fingerings if f.register == reg]
+    if ordered:
+        out.append(ErrorPlot(f"Tuning error per note: {pipe.id}",
+                             tuple(f.note for f in ordered),
+                             tuple(f.error_cents for f in ordered),
+                             tuple(f.register for f in ordered)))
+        out.append(Spacer(3 * MM))
+    if pipe.curves:
+        marks = tuple((f.note, f.predicted_hz) for f in ordered
+                      if any(cu.label.split(" ")[0] == f.note for cu in pipe.curves))
+        out.append(CurvePlot(f"Input admittance magnitude: {pipe.id}", pipe.curves[:4],
+                             "|Y| (admittance magnitude)", marks))
+    return out
+
+
+def pages(pipe: Pipe, frame: Frame) -> list[Page]:
+    """The fingering pages of a pipe (none when it has no fingerings)."""
+    if not pipe.fingerings:
+        return []
+    found = flow_pages(SECTION, blocks(pipe), frame)
+    return [replace(p, label=pipe.id) for p in found]

@@ -1,0 +1,299 @@
+"""Pipe pages: a dimensioned drawing and tables for each pipe, or a table per page for ranks.
+
+A group of up to ``PER_PIPE_LIMIT`` pipes (and every pipe with holes) gets a page per pipe:
+the side view on the left; pitch, dimensions, sensitivities and acoustic lengths on the
+right; the holes below. A larger rank gets pages of a table, one row per pipe, under a key
+drawing whose letters head the table's columns, so a 600-pipe organ stays at tens of pages.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from reportlab.pdfgen.canvas import Canvas
+
+from compiler.emit.pdf import dimensions as D
+from compiler.emit.pdf import fingering
+from compiler.emit.pdf.document import (
+    Block,
+    Column,
+    Draw,
+    Heading,
+    Page,
+    Spacer,
+    Table,
+    fit_text,
+    flow,
+    wrap,
+)
+from compiler.emit.pdf.sideview import build_view, draw_view
+from compiler.emit.pdf.style import (
+    FONT,
+    FONT_BOLD,
+    GREY,
+    INK,
+    MM,
+    Frame,
+    celsius,
+    cents,
+    fixed,
+    hz,
+    inch,
+    mm,
+    safe,
+    sensitivity,
+    speed,
+    strip_prefix,
+    uses_inches,
+)
+from compiler.resolve.model import Group, Pipe, Resolved
+
+SECTION = "Pipes"
+PER_PIPE_LIMIT = 12
+"""Groups with more pipes than this are shown as tables (a page per group of rows)."""
+VIEW_WIDTH = 88 * MM
+TITLE_BAND = 15 * MM
+KEY_BAND = 78 * MM
+
+
+def pages(resolved: Resolved, frame: Frame) -> list[Page]:
+    """The pipe pages of every group, in the order of the resolved model."""
+    inches = uses_inches(resolved.fabrication.units)
+    by_id = {p.id: p for p in resolved.pipes}
+    out: list[Page] = []
+    for group in resolved.groups:
+        pipes = [by_id[i] for i in group.pipe_ids if i in by_id]
+        if not pipes:
+            continue
+        if len(pipes) <= PER_PIPE_LIMIT or any(p.holes or p.fingerings for p in pipes):
+            for pipe in pipes:
+                out.append(Page(SECTION, _pipe_page(pipe, group, inches), label=pipe.id))
+                out += fingering.pages(pipe, frame)
+        else:
+            out += _group_pages(group, pipes, frame, inches)
+    if out:
+        out[0] = Page(out[0].section, out[0].draw, "Pipes", out[0].label)
+    return out
+
+
+def describe(pipe: Pipe) -> str:
+    """One line: note, kind, construction, stock and material."""
+    return (f"{pipe.note} · {D.family_words(pipe.family)} · "
+            f"{D.construction_words(pipe.construction)} · stock {pipe.stock} ({pipe.material})")
+
+
+def _two_col(name: str, inches: bool) -> tuple[Column, ...]:
+    cols = (Column(name, 2.2), Column("mm", 1.0, "right"))
+    return cols + ((Column("in", 0.9, "right"),) if inches else ())
+
+
+def _length_row(name: str, value_m: float, inches: bool) -> tuple[str, ...]:
+    return (name, mm(value_m)) + ((inch(value_m),) if inches else ())
+
+
+def pipe_blocks(pipe: Pipe, inches: bool) -> list[Block]:
+    """The tables beside a pipe's drawing: pitch, dimensions, sensitivity, acoustic lengths."""
+    harmonics = ", ".join(hz(f) for f in pipe.harmonics_hz[:4])
+    pitch = Table((Column("pitch", 1.5), Column("", 2.1, "right")), (
+        ("target", f"{hz(pipe.target_hz)} Hz"),
+        ("predicted", f"{hz(pipe.predicted_hz)} Hz"),
+        ("error", f"{cents(pipe.error_cents)} cents"),
+        ("sounds on harmonic", str(pipe.harmonic)),
+    ), min_rows=1)
+    blocks: list[Block] = [pitch]
+    if harmonics:
+        blocks.append(Table((Column("predicted harmonics (Hz)", 1.0),), ((harmonics,),),
+                            min_rows=1))
+    dims = D.dimensions(pipe)
+    blocks += [Spacer(2 * MM), Table(_two_col("dimension", inches),
+                                     tuple(_length_row(d.name, d.value_m, inches)
+                                           for d in dims), min_rows=1)]
+    acoustic = [_length_row("acoustic length", pipe.acoustic_length_m, inches),
+                _length_row("end correction", pipe.end_correction_m, inches)]
+    if pipe.mouth is not None:
+        acoustic.append(_length_row("mouth correction", pipe.mouth.correction_m, inches))
+    blocks += [Spacer(2 * MM), Table(_two_col("acoustic lengths", inches), tuple(acoustic),
+                                     min_rows=1)]
+    if pipe.mouth is not None:
+        across = "width" if pipe.section == "rect" else "circumference"
+        blocks += [Spacer(2 * MM), Table((Column("mouth proportions", 2.4),
+                                          Column("", 1.0, "right")), (
+            (f"mouth width / {across}", fixed(pipe.mouth.width_fraction, 4)),
+            ("cut-up / mouth width", fixed(pipe.mouth.cutup_fraction, 4)),
+        ), min_rows=1)]
+    blocks += [Spacer(2 * MM), Table((Column("sensitivity", 2.4), Column("", 1.0, "right")), (
+        ("cents per mm longer", sensitivity(pipe.cents_per_mm)),
+        ("cents per °C warmer", sensitivity(pipe.cents_per_c)),
+    ), min_rows=1)]
+    return blocks
+
+
+def holes_table(pipe: Pipe, inches: bool) -> Table:
+    """The holes of a pipe: positions from both ends, diameters, angles, chimneys."""
+    cols = (Column("hole", 0.8), Column("label", 1.0), Column("from top\nmm", 1.3, "right"),
+            Column("from bottom\nmm", 1.4, "right"), Column("diameter\nmm", 1.2, "right"),
+            Column("angle\n°", 0.9, "right"), Column("chimney\nmm", 1.1, "right"),
+            Column("undercut\nmm", 1.1, "right"), Column("fixed\nin spec", 1.0, "centre"))
+    rows = tuple((str(h.number), h.label, mm(h.position_from_top_m), mm(h.position_from_bottom_m),
+                  mm(h.diameter_m), fixed(h.angle_deg, 2), mm(h.chimney_m), mm(h.undercut_m),
+                  "yes" if h.fixed else "") for h in pipe.holes)
+    sub: tuple[tuple[str, ...], ...] = ()
+    if inches:
+        sub = tuple(("", "", f"{inch(h.position_from_top_m)} in",
+                     f"{inch(h.position_from_bottom_m)} in", f"{inch(h.diameter_m)} in", "",
+                     "", "", "") for h in pipe.holes)
+    return Table(cols, rows, sub, title_rows=2, min_rows=1)
+
+
+def _title(c: Canvas, frame: Frame, title: str, line: str) -> None:
+    c.setFillColor(INK)
+    c.setFont(FONT_BOLD, 14)
+    c.drawString(frame.left, frame.top - 6 * MM, fit_text(title, FONT_BOLD, 14,
+                                                        frame.content_width))
+    c.setFont(FONT, 9)
+    c.setFillColor(GREY)
+    c.drawString(frame.left, frame.top - 11 * MM, fit_text(line, FONT, 9, frame.content_width))
+    c.setFillColor(INK)
+
+
+def _pipe_page(pipe: Pipe, group: Group, inches: bool) -> Draw:
+    def draw(c: Canvas, frame: Frame) -> None:
+        _title(c, frame, pipe.id, describe(pipe) + f" · spec {pipe.source}")
+        top = frame.top - TITLE_BAND
+        width = frame.content_width
+        holes = holes_table(pipe, inches) if pipe.holes else None
+        holes_h = holes.height(width) + 10 * MM if holes else 0.0
+        view = build_view(pipe, inches)
+        view_h = top - frame.bottom - holes_h - 6 * MM
+        note = draw_view(c, view, frame.left, frame.bottom + holes_h + 6 * MM, VIEW_WIDTH,
+                         view_h, inches)
+        c.setFont(FONT, 7.5)
+        c.setFillColor(GREY)
+        c.drawString(frame.left, frame.bottom + holes_h + 1 * MM,
+                     f"Side view, dimensions in mm; {note}.")
+        c.setFillColor(INK)
+        x = frame.left + VIEW_WIDTH + 6 * MM
+        col_w = frame.right - x
+        y = top
+        for block in pipe_blocks(pipe, inches):
+            block.draw(c, x, y, col_w)
+            y -= block.height(col_w)
+        if holes is not None:
+            hy = frame.bottom + holes_h
+            Heading(f"Holes ({len(pipe.holes)}), positions of the hole centres", 10).draw(
+                c, frame.left, hy, width)
+            holes.draw(c, frame.left, hy - 6 * MM, width)
+
+    return draw
+
+
+def group_table(group: Group, pipes: Sequence[Pipe], inches: bool) -> Table:
+    """One row per pipe: pitch, the key dimensions (lettered) and the sensitivities."""
+    keyed = [d for d in D.dimensions(pipes[0]) if d.key]
+    named = any(strip_prefix(p.id, group.id) != p.note for p in pipes)
+    cols = [Column("pipe", 1.35)] if named else []
+    cols += [Column("note", 0.75), Column("target\nHz", 1.05, "right"),
+             Column("predicted\nHz", 1.1, "right"), Column("error\ncents", 0.9, "right")]
+    cols += [Column(f"{d.key}\nmm", 1.0, "right") for d in keyed]
+    cols += [Column("cents\n/ mm", 0.9, "right"), Column("cents\n/ °C", 0.9, "right")]
+    stocks = len({p.stock for p in pipes}) > 1
+    if stocks:
+        cols.append(Column("stock", 1.1))
+    rows, sub = [], []
+    for pipe in pipes:
+        values = {d.name: d.value_m for d in D.dimensions(pipe)}
+        row = [strip_prefix(pipe.id, group.id)] if named else []
+        row += [pipe.note, hz(pipe.target_hz), hz(pipe.predicted_hz), cents(pipe.error_cents)]
+        row += [mm(values[d.name]) if d.name in values else "-" for d in keyed]
+        row += [sensitivity(pipe.cents_per_mm), sensitivity(pipe.cents_per_c)]
+        row += [pipe.stock] if stocks else []
+        rows.append(tuple(row))
+        if inches:
+            lead = ("",) * (5 if named else 4)
+            sub.append(lead + tuple(inch(values[d.name]) if d.name in values else ""
+                                    for d in keyed) + ("", "") + (("",) if stocks else ()))
+    return Table(tuple(cols), tuple(rows), tuple(sub), size=7.5, title_rows=2)
+
+
+def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: bool
+                 ) -> list[Page]:
+    table = group_table(group, pipes, inches)
+    height = frame.content_height - TITLE_BAND - KEY_BAND
+    chunks = flow([table], frame.content_width, height)
+    out = []
+    for i, chunk in enumerate(chunks):
+        part = f"{i + 1} of {len(chunks)}"
+        out.append(Page(SECTION, _group_page(group, pipes, chunk[0], part, inches),
+                        label=f"{group.id} ({part})"))
+    return out
+
+
+def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str, inches: bool
+                ) -> Draw:
+    first = pipes[0]
+
+    def draw(c: Canvas, frame: Frame) -> None:
+        _title(c, frame, f"{group.id}: {len(pipes)} pipes, {pipes[0].note} to {pipes[-1].note}"
+               f" (table {part})", f"{D.family_words(group.family)} · "
+               f"{D.construction_words(group.construction)} · stock "
+               f"{', '.join(sorted({p.stock for p in pipes}))} ({first.material}) · one row "
+               "per pipe, lengths in mm")
+        top = frame.top - TITLE_BAND
+        key_w = 62 * MM
+        draw_view(c, build_view(first, inches), frame.left, top - KEY_BAND + 6 * MM, key_w,
+                  KEY_BAND - 8 * MM, inches, key=True)
+        c.setFont(FONT, 7)
+        c.setFillColor(GREY)
+        c.drawString(frame.left, top - KEY_BAND + 2 * MM,
+                     f"Key drawing: proportions of {first.note}.")
+        x = frame.left + key_w + 6 * MM
+        _legend(c, x, top - 2 * MM, frame.right - x, group, pipes)
+        table.draw(c, frame.left, top - KEY_BAND, frame.content_width)
+
+    return draw
+
+
+def common(pipes: Sequence[Pipe]) -> list[D.Dim]:
+    """The unlettered dimensions that are the same for every pipe of a group."""
+    first = [d for d in D.dimensions(pipes[0]) if not d.key]
+    rest = [{d.name: mm(d.value_m) for d in D.dimensions(p)} for p in pipes[1:]]
+    return [d for d in first if all(r.get(d.name) == mm(d.value_m) for r in rest)]
+
+
+def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
+            pipes: Sequence[Pipe]) -> None:
+    keyed = [d for d in D.dimensions(pipes[0]) if d.key]
+    c.setFillColor(INK)
+    c.setFont(FONT_BOLD, 9)
+    c.drawString(x, y - 3 * MM, "Letters on the drawing and in the table")
+    c.setFont(FONT, 8.5)
+    yy = y - 8 * MM
+    half = (len(keyed) + 1) // 2
+    for i, d in enumerate(keyed):
+        cx = x + (0 if i < half else width / 2)
+        cy = yy - (i % half) * 4.3 * MM
+        c.setFont(FONT_BOLD, 8.5)
+        c.drawString(cx, cy, d.key)
+        c.setFont(FONT, 8.5)
+        c.drawString(cx + 5 * MM, cy, safe(d.name))
+    yy -= half * 4.3 * MM + 3 * MM
+    air = group.air
+    lines = [f"Air: {celsius(air.temperature_c)}, speed of sound {speed(air.speed_m_s)} "
+             f"({air.sound_speed_model}); end correction: {group.end_correction_model}.",
+             "Error: predicted minus target, in cents. Sensitivity: cents for 1 mm more "
+             "speaking length, and for 1 °C warmer air."]
+    same = common(pipes)
+    if same:
+        lines.append("The same for every pipe: " + ", ".join(
+            f"{d.name} {mm(d.value_m)} mm" for d in same) + ".")
+    if group.calibration.calibrated:
+        lines.append(f"Calibrated: {group.calibration.parameter} = "
+                     f"{group.calibration.value:.4f}, rms {group.calibration.rms_cents:.2f} "
+                     "cents.")
+    c.setFillColor(GREY)
+    c.setFont(FONT, 7.5)
+    for text in lines:
+        for line in wrap(text, FONT, 7.5, width):
+            c.drawString(x, yy, line)
+            yy -= 3.4 * MM
+    c.setFillColor(INK)

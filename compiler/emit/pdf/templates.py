@@ -1,0 +1,445 @@
+"""Full-size templates: parts drawn at exactly 1:1, tiled over pages with overlap and marks.
+
+What is printed (the maker cuts everything else from the DXF files or measures it):
+
+- every part of kind ``template`` (drilling strips and other paper templates), whole;
+- the outline of each *distinct* sheet or board part that is not a plain rectangle (a
+  rectangle is quicker to measure than to trace) and fits on at most ``OUTLINE_TILES``
+  tiles, until the outlines have used ``OUTLINE_PAGES`` pages.
+
+Each template is split into tiles (windows of the part) that overlap their neighbours by
+``OVERLAP_MM``; crosshairs sit at the centres of the shared strips so that overlaid tiles
+line up. Each tile page carries its label "Tile r/c of R×C — part", and every page of the
+section a 100 mm bar and a 4 in bar with the note to print at actual size. A template of
+more than one tile gets an assembly map first.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from reportlab.pdfgen.canvas import Canvas
+from reportlab.pdfgen.pathobject import PDFPathObject
+
+from compiler.emit.pdf.document import Draw, Page, fit_text, wrap
+from compiler.emit.pdf.style import (
+    FAINT,
+    FONT,
+    FONT_BOLD,
+    GREY,
+    INK,
+    MM,
+    Frame,
+    mm_of,
+    safe,
+)
+from compiler.geometry.model import Circle, Part, Parts, Polyline, Text
+
+SECTION = "Templates"
+OVERLAP_MM = 10.0
+INSET_MM = 4.0
+"""Paper left around the part inside the tiled area."""
+OUTLINE_TILES = 4
+OUTLINE_PAGES = 24
+TITLE_BAND = 13 * MM
+BAR_BAND = 22 * MM
+BAR_MM = 100.0
+BAR_IN_MM = 4 * 25.4
+NOTE = "Print at 100 % (actual size); check this bar before cutting"
+
+
+@dataclass(frozen=True)
+class Tiling:
+    """How a part (plus an inset) is covered by overlapping windows; millimetres."""
+
+    rows: int
+    cols: int
+    window_w: float
+    window_h: float
+    x_start: float
+    y_top: float
+    overlap: float
+
+    @property
+    def step_x(self) -> float:
+        return self.window_w - self.overlap
+
+    @property
+    def step_y(self) -> float:
+        return self.window_h - self.overlap
+
+    def window(self, row: int, col: int) -> tuple[float, float, float, float]:
+        """(x0, y0, x1, y1) of tile (row, col), both from 0; row 0 is the top row."""
+        x0 = self.x_start + col * self.step_x
+        y1 = self.y_top - row * self.step_y
+        return x0, y1 - self.window_h, x0 + self.window_w, y1
+
+    def marks(self) -> tuple[list[float], list[float]]:
+        """Crosshair lines: the centres of the strips tiles share (and the outer strips)."""
+        xs = [self.x_start + k * self.step_x + self.overlap / 2 for k in range(self.cols + 1)]
+        ys = [self.y_top - k * self.step_y - self.overlap / 2 for k in range(self.rows + 1)]
+        return xs, ys
+
+
+def tiling(width_mm: float, height_mm: float, window_w: float, window_h: float,
+           overlap: float = OVERLAP_MM, inset: float = INSET_MM) -> Tiling:
+    """Fewest tiles of ``window_w`` × ``window_h`` mm, overlapping by ``overlap``, that cover
+    the part's box grown by ``inset``; the spare paper is shared equally on both sides."""
+    total_w, total_h = width_mm + 2 * inset, height_mm + 2 * inset
+    cols = max(1, math.ceil((total_w - overlap) / (window_w - overlap) - 1e-9))
+    rows = max(1, math.ceil((total_h - overlap) / (window_h - overlap) - 1e-9))
+    span_w = window_w + (cols - 1) * (window_w - overlap)
+    span_h = window_h + (rows - 1) * (window_h - overlap)
+    x_start = -inset - (span_w - total_w) / 2
+    y_top = height_mm + inset + (span_h - total_h) / 2
+    return Tiling(rows, cols, window_w, window_h, x_start, y_top, overlap)
+
+
+def window_size(frame: Frame) -> tuple[float, float]:
+    """The drawing window of a tile page, in millimetres."""
+    return frame.content_width / MM, (frame.content_height - TITLE_BAND - BAR_BAND) / MM
+
+
+def _signature(part: Part) -> tuple[object, ...]:
+    def r(v: float) -> float:
+        return round(v, 1)
+
+    ents: list[object] = []
+    for e in part.entities:
+        if isinstance(e, Circle):
+            ents.append(("c", e.operation, r(e.center[0]), r(e.center[1]), r(e.radius)))
+        elif isinstance(e, Polyline):
+            ents.append(("p", e.operation, e.closed, tuple((r(x), r(y)) for x, y in e.points),
+                         tuple(round(b, 4) for b in e.bulges)))
+    return (part.name, r(part.width_mm), r(part.height_mm), tuple(ents))
+
+
+def _plain_rectangle(part: Part) -> bool:
+    cuts = [e for e in part.entities if not isinstance(e, Text) and
+            e.operation.startswith("cut")]
+    if len(cuts) != 1 or not isinstance(cuts[0], Polyline):
+        return False
+    line = cuts[0]
+    return len(line.points) == 4 and not any(line.bulges) and all(
+        a[0] == b[0] or a[1] == b[1]
+        for a, b in zip(line.points, line.points[1:] + line.points[:1], strict=True))
+
+
+@dataclass(frozen=True)
+class Choice:
+    part: Part
+    tiles: Tiling
+    used_by: tuple[str, ...]
+
+
+def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], int]:
+    """The templates to print, and how many distinct outlines were left to the DXF files."""
+    ww, wh = window_size(frame)
+    chosen: list[Choice] = []
+    for part in parts.parts:
+        if part.kind == "template":
+            chosen.append(Choice(part, tiling(part.width_mm, part.height_mm, ww, wh),
+                                 (part.id,)))
+    seen: dict[tuple[object, ...], list[str]] = {}
+    order: list[Part] = []
+    for part in parts.parts:
+        if part.kind not in ("sheet", "board") or _plain_rectangle(part):
+            continue
+        sig = _signature(part)
+        if sig not in seen:
+            seen[sig] = []
+            order.append(part)
+        seen[sig].append(part.id)
+    pages, left_out = 0, 0
+    for part in order:
+        t = tiling(part.width_mm, part.height_mm, ww, wh)
+        need = t.rows * t.cols + (1 if t.rows * t.cols > 1 else 0)
+        if t.rows * t.cols > OUTLINE_TILES or pages + need > OUTLINE_PAGES:
+            left_out += 1
+            continue
+        pages += need
+        chosen.append(Choice(part, t, tuple(seen[_signature(part)])))
+    return chosen, left_out
+
+
+def pages(parts: Parts, frame: Frame) -> list[Page]:
+    """Index, assembly maps and tiles of every chosen template."""
+    chosen, left_out = choose(parts, frame)
+    if not chosen:
+        return []
+    out = [Page(SECTION, _index(chosen, left_out), "Templates")]
+    for ch in chosen:
+        t = ch.tiles
+        if t.rows * t.cols > 1:
+            out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map"))
+        for r in range(t.rows):
+            for c in range(t.cols):
+                out.append(Page(SECTION, _tile(ch, r, c),
+                                label=f"{ch.part.id} tile {r + 1}/{c + 1}"))
+    return out
+
+
+def tile_label(part: Part, tiles: Tiling, row: int, col: int) -> str:
+    return (f"Tile {row + 1}/{col + 1} of {tiles.rows}×{tiles.cols} — {part.id} "
+            f"({part.name})")
+
+
+def _index(chosen: list[Choice], left_out: int) -> Draw:
+    def draw(c: Canvas, frame: Frame) -> None:
+        y = frame.top - 6 * MM
+        c.setFont(FONT_BOLD, 14)
+        c.drawString(frame.left, y, "Full-size templates")
+        y -= 8 * MM
+        text = ("Each template is printed at 1:1 on as many pages (tiles) as it needs. Print "
+                "every page at 100 % (actual size, no 'fit to page') and measure the bars at "
+                f"the foot of the page first. Neighbouring tiles share a {OVERLAP_MM:.0f} mm "
+                "strip (shaded): trim one tile at the edge of its drawing window, lay it over "
+                "its neighbour so that the crosshairs coincide, and tape it. The assembly map "
+                "shows where each tile goes.")
+        c.setFont(FONT, 9.5)
+        for line in wrap(text, FONT, 9.5, frame.content_width):
+            c.drawString(frame.left, y, line)
+            y -= 4.6 * MM
+        y -= 3 * MM
+        c.setFont(FONT_BOLD, 9.5)
+        c.drawString(frame.left, y, "template")
+        c.drawString(frame.left + 95 * MM, y, "size (mm)")
+        c.drawString(frame.left + 135 * MM, y, "tiles")
+        y -= 5 * MM
+        c.setFont(FONT, 9.5)
+        for ch in chosen:
+            if y < frame.bottom + BAR_BAND + 12 * MM:
+                c.drawString(frame.left, y, "...")
+                break
+            extra = f" (+{len(ch.used_by) - 1} alike)" if len(ch.used_by) > 1 else ""
+            c.drawString(frame.left, y, fit_text(f"{ch.part.id} ({ch.part.name}){extra}",
+                                                 FONT, 9.5, 92 * MM))
+            c.drawString(frame.left + 95 * MM, y,
+                         f"{mm_of(ch.part.width_mm)} × {mm_of(ch.part.height_mm)}")
+            c.drawString(frame.left + 135 * MM, y, f"{ch.tiles.rows}×{ch.tiles.cols}")
+            y -= 4.8 * MM
+        if left_out:
+            y -= 2 * MM
+            c.setFillColor(GREY)
+            for line in wrap(f"{left_out} further part outline(s) are too large or too many "
+                             "to print here: cut them from the DXF files, or print those "
+                             "files at 1:1.", FONT, 9.5, frame.content_width):
+                c.drawString(frame.left, y, line)
+                y -= 4.6 * MM
+            c.setFillColor(INK)
+        calibration_bars(c, frame)
+
+    return draw
+
+
+def calibration_bars(c: Canvas, frame: Frame) -> None:
+    """A 100 mm bar and a 4 in bar, solid black, with the note to print at actual size."""
+    x = frame.left
+    y = frame.bottom + 1.5 * MM
+    for length, label, step in ((BAR_IN_MM, "4 in", 25.4), (BAR_MM, "100 mm", 10.0)):
+        c.setFillColor(INK)
+        c.rect(x, y, length * MM, 2.2 * MM, stroke=0, fill=1)
+        c.setStrokeColor(INK)
+        c.setLineWidth(0.4)
+        k = 1
+        while k * step < length - 1e-6:
+            tx = x + k * step * MM
+            c.line(tx, y + 2.2 * MM, tx, y + 3.6 * MM)
+            k += 1
+        c.setFont(FONT_BOLD, 8.5)
+        c.drawString(x + length * MM + 2.5 * MM, y + 0.3 * MM, label)
+        y += 7 * MM
+    c.setFont(FONT_BOLD, 9)
+    c.drawString(x, y + 1.2 * MM, NOTE + ".")
+
+
+def _entities(c: Canvas, part: Part) -> None:
+    """The part's paths in its own millimetres (the canvas is already scaled to mm)."""
+    for e in part.entities:
+        if isinstance(e, Text):
+            continue
+        c.setDash([], 0)
+        c.setStrokeColor(INK)
+        c.setLineWidth(0.3)
+        if e.operation == "mark":
+            c.setStrokeColor(GREY)
+            c.setLineWidth(0.2)
+            c.setDash([3, 1.5], 0)
+        if isinstance(e, Circle):
+            cx, cy = e.center
+            c.circle(cx, cy, e.radius, stroke=1, fill=0)
+            arm = min(e.radius * 0.6, 3.0)
+            c.setLineWidth(0.15)
+            c.line(cx - arm, cy, cx + arm, cy)
+            c.line(cx, cy - arm, cx, cy + arm)
+            continue
+        c.drawPath(polyline_path(c, e), stroke=1, fill=0)
+    c.setDash([], 0)
+    c.setFillColor(GREY)
+    for e in part.entities:
+        if isinstance(e, Text):
+            c.saveState()
+            c.translate(*e.insert)
+            c.rotate(e.rotation_deg)
+            c.setFont(FONT, e.height / 0.72)
+            c.drawString(0, 0, safe(e.text))
+            c.restoreState()
+    c.setFillColor(INK)
+
+
+def polyline_path(c: Canvas, line: Polyline) -> PDFPathObject:
+    """A canvas path of a polyline with DXF bulges (arcs) between its vertices."""
+    pts = list(line.points)
+    path = c.beginPath()
+    path.moveTo(*pts[0])
+    n = len(pts) if line.closed else len(pts) - 1
+    for i in range(n):
+        a, b = pts[i], pts[(i + 1) % len(pts)]
+        bulge = line.bulges[i] if i < len(line.bulges) else 0.0
+        if abs(bulge) < 1e-12:
+            path.lineTo(*b)
+            continue
+        theta = 4.0 * math.atan(bulge)
+        chord = math.hypot(b[0] - a[0], b[1] - a[1])
+        radius = chord / (2.0 * math.sin(abs(theta) / 2.0))
+        mx, my = (a[0] + b[0]) / 2.0, (a[1] + b[1]) / 2.0
+        sag = radius * math.cos(theta / 2.0)
+        ux, uy = -(b[1] - a[1]) / chord, (b[0] - a[0]) / chord
+        side = 1.0 if bulge > 0 else -1.0
+        cx, cy = mx + side * ux * sag, my + side * uy * sag
+        start = math.degrees(math.atan2(a[1] - cy, a[0] - cx))
+        path.arcTo(cx - radius, cy - radius, cx + radius, cy + radius, start,
+                   math.degrees(theta))
+    if line.closed:
+        path.close()
+    return path
+
+
+def _tile(ch: Choice, row: int, col: int) -> Draw:
+    part, t = ch.part, ch.tiles
+
+    def draw(c: Canvas, frame: Frame) -> None:
+        c.setFont(FONT_BOLD, 12)
+        c.drawString(frame.left, frame.top - 5.5 * MM,
+                     fit_text(tile_label(part, t, row, col), FONT_BOLD, 12,
+                              frame.content_width))
+        c.setFont(FONT, 8)
+        c.setFillColor(GREY)
+        info = (f"{mm_of(part.width_mm)} × {mm_of(part.height_mm)} mm at 1:1 · shaded strips "
+                f"overlap the next tile by {OVERLAP_MM:.0f} mm: match the crosshairs")
+        if part.note:
+            info += f" · {part.note}"
+        if len(ch.used_by) > 1:
+            info += f" · also for {len(ch.used_by) - 1} more part(s) alike"
+        c.drawString(frame.left, frame.top - 10 * MM, fit_text(info, FONT, 8,
+                                                               frame.content_width))
+        c.setFillColor(INK)
+        x0, y0, x1, y1 = t.window(row, col)
+        wx, wy = frame.left, frame.bottom + BAR_BAND
+        c.saveState()
+        clip = c.beginPath()
+        clip.rect(wx, wy, t.window_w * MM, t.window_h * MM)
+        c.clipPath(clip, stroke=0, fill=0)
+        c.translate(wx - x0 * MM, wy - y0 * MM)
+        c.scale(MM, MM)
+        c.setFillColor(FAINT)
+        ov = t.overlap
+        if col > 0:
+            c.rect(x0, y0, ov, y1 - y0, stroke=0, fill=1)
+        if col < t.cols - 1:
+            c.rect(x1 - ov, y0, ov, y1 - y0, stroke=0, fill=1)
+        if row > 0:
+            c.rect(x0, y1 - ov, x1 - x0, ov, stroke=0, fill=1)
+        if row < t.rows - 1:
+            c.rect(x0, y0, x1 - x0, ov, stroke=0, fill=1)
+        _entities(c, part)
+        if t.rows * t.cols > 1:
+            xs, ys = t.marks()
+            for mx in xs:
+                for my in ys:
+                    if x0 <= mx <= x1 and y0 <= my <= y1:
+                        _crosshair(c, mx, my)
+        c.restoreState()
+        c.setStrokeColor(GREY)
+        c.setLineWidth(0.5)
+        c.rect(wx, wy, t.window_w * MM, t.window_h * MM, stroke=1, fill=0)
+        _neighbours(c, frame, t, row, col, wx, wy)
+        calibration_bars(c, frame)
+
+    return draw
+
+
+def _crosshair(c: Canvas, x: float, y: float) -> None:
+    c.setDash([], 0)
+    c.setStrokeColor(INK)
+    c.setLineWidth(0.2)
+    c.circle(x, y, 2.5, stroke=1, fill=0)
+    c.line(x - 4.5, y, x + 4.5, y)
+    c.line(x, y - 4.5, x, y + 4.5)
+
+
+def _neighbours(c: Canvas, frame: Frame, t: Tiling, row: int, col: int, wx: float,
+                wy: float) -> None:
+    """Words outside the window naming the tile that continues on each side."""
+    c.setFont(FONT, 7.5)
+    c.setFillColor(GREY)
+    top = wy + t.window_h * MM
+    if row > 0:
+        c.drawRightString(frame.right, top + 1.2 * MM, f"above: tile {row}/{col + 1}")
+    if row < t.rows - 1:
+        c.drawRightString(frame.right, wy - 3.2 * MM, f"below: tile {row + 2}/{col + 1}")
+    for side, other, x in ((col > 0, col, wx - 2 * MM),
+                           (col < t.cols - 1, col + 2, wx + t.window_w * MM + 4.5 * MM)):
+        if side:
+            c.saveState()
+            c.translate(x, wy + t.window_h * MM / 2)
+            c.rotate(90)
+            c.drawCentredString(0, 0, f"{'left' if other == col else 'right'}: tile "
+                                f"{row + 1}/{other}")
+            c.restoreState()
+    c.setFillColor(INK)
+
+
+def _map(ch: Choice) -> Draw:
+    part, t = ch.part, ch.tiles
+
+    def draw(c: Canvas, frame: Frame) -> None:
+        c.setFont(FONT_BOLD, 12)
+        c.drawString(frame.left, frame.top - 5.5 * MM,
+                     fit_text(f"Assembly map — {part.id} ({part.name}): {t.rows}×{t.cols} "
+                              "tiles", FONT_BOLD, 12, frame.content_width))
+        c.setFont(FONT, 8)
+        c.setFillColor(GREY)
+        c.drawString(frame.left, frame.top - 10 * MM,
+                     f"Not to scale. Tiles overlap by {OVERLAP_MM:.0f} mm; row 1 is at the "
+                     "top, column 1 on the left.")
+        c.setFillColor(INK)
+        x0, _, _, y1 = t.window(0, 0)
+        _, y0, x1, _ = t.window(t.rows - 1, t.cols - 1)
+        box_w = frame.content_width
+        box_h = frame.content_height - TITLE_BAND - BAR_BAND - 4 * MM
+        s = min(box_w / (x1 - x0), box_h / (y1 - y0))
+        ox = frame.left + (box_w - (x1 - x0) * s) / 2 - x0 * s
+        oy = frame.bottom + BAR_BAND + (box_h - (y1 - y0) * s) / 2 - y0 * s
+        c.saveState()
+        c.translate(ox, oy)
+        c.scale(s, s)
+        _entities(c, part)
+        c.restoreState()
+        for r in range(t.rows):
+            for k in range(t.cols):
+                a, b, cc, d = t.window(r, k)
+                c.setStrokeColor(GREY)
+                c.setLineWidth(0.6)
+                c.setDash([4, 2], 0)
+                c.rect(ox + a * s, oy + b * s, (cc - a) * s, (d - b) * s, stroke=1, fill=0)
+                c.setDash([], 0)
+                c.setFont(FONT_BOLD, 14)
+                c.setFillColor(GREY)
+                c.drawCentredString(ox + (a + cc) / 2 * s, oy + (b + d) / 2 * s - 5,
+                                    f"{r + 1}/{k + 1}")
+        c.setFillColor(INK)
+        calibration_bars(c, frame)
+
+    return draw

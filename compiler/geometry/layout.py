@@ -1,0 +1,118 @@
+"""Stage 4's entry point: the resolved model in, the parts, sheets and tube cuts out.
+
+``layout`` is pure (no files, no clock): each pipe's construction picks its builder
+(rolled sheet, boards, stock tube), every cut part is checked (outline, webs), kerf
+compensated and nested on the sheets of its stock. All problems are collected and raised
+at once as one :class:`~compiler.errors.GeometryError`, each at the pipe's spec position.
+"""
+
+from __future__ import annotations
+
+from compiler.errors import GeometryError, Position, Problem
+from compiler.geometry.boards import board_drafts
+from compiler.geometry.drafts import Draft, finish
+from compiler.geometry.model import Part, Parts, TubeCut
+from compiler.geometry.nesting import SheetSize, nest
+from compiler.geometry.rolled import rolled_drafts
+from compiler.geometry.tube import duct_block, holder_drafts, template, tube_cut
+from compiler.geometry.units import mm
+from compiler.geometry.validation import check_draft
+from compiler.options import BuildOptions
+from compiler.resolve.model import Pipe, Resolved, StockItem
+
+
+def sheet_size(resolved: Resolved, stock_name: str) -> SheetSize:
+    """The sheet a stock's parts are nested on: the stock's own ``size``, else the
+    fabrication sheet (its longer side as the length). A board's size is taken as
+    written, length first: its grain runs along its length, and so along x."""
+    fab = resolved.fabrication
+    for item in resolved.stock:
+        if item.name != stock_name or not (item.length_m and item.width_m):
+            continue
+        if item.kind == "board":
+            return SheetSize(mm(item.length_m), mm(item.width_m))
+        if item.kind == "sheet":
+            return SheetSize(mm(max(item.length_m, item.width_m)),
+                             mm(min(item.length_m, item.width_m)))
+    return SheetSize(mm(max(fab.sheet_length_m, fab.sheet_width_m)),
+                     mm(min(fab.sheet_length_m, fab.sheet_width_m)))
+
+
+def _pipe_drafts(pipe: Pipe, resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:
+    if pipe.construction == "rolled-sheet":
+        return rolled_drafts(pipe, resolved.fabrication)
+    if pipe.construction == "boards":
+        thickness = pipe.wall_m or (stock[pipe.stock].thickness_m if pipe.stock in stock
+                                    else 0.0)
+        return board_drafts(pipe, thickness)
+    drafts: list[Draft] = []
+    if pipe.holes or pipe.head is not None or pipe.mouth is not None:
+        drafts.append(template(pipe))
+        block = duct_block(pipe)
+        if block is not None:
+            drafts.append(block)
+    return drafts
+
+
+def _holders(resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:
+    by_id = {p.id: p for p in resolved.pipes}
+    spacing = mm(resolved.fabrication.spacing_m)
+    kerf = mm(resolved.fabrication.kerf_m)
+    drafts: list[Draft] = []
+    for group in resolved.groups:
+        if group.holder is None or not group.pipe_ids:
+            continue
+        pipes = [by_id[i] for i in group.pipe_ids if i in by_id]
+        item = stock.get(group.holder.stock)
+        kind = item.kind if item is not None and item.kind == "board" else "sheet"
+        room = sheet_size(resolved, group.holder.stock).length_mm - 2.0 * spacing - kerf
+        source = pipes[0].source if pipes else Position("<spec>", 0, 0)
+        drafts += holder_drafts(group, pipes, kind, room, source)
+    return drafts
+
+
+def layout(resolved: Resolved, options: BuildOptions) -> Parts:
+    """Parts of every pipe and holder, nested on sheets, plus the stock-tube cuts.
+
+    Millimetres throughout (converted from the IR's metres in ``geometry.units``). Parts
+    come in the order of the pipes, then the holders; sheets are numbered across stocks
+    in the order (material, stock, thickness). ``options`` carries nothing the geometry
+    depends on today; it is taken so the stage signature matches the others.
+    """
+    del options
+    stock = {s.name: s for s in resolved.stock}
+    kerf = mm(resolved.fabrication.kerf_m)
+    problems: list[Problem] = []
+    drafts: list[Draft] = []
+    cuts: list[TubeCut] = []
+    for pipe in resolved.pipes:
+        try:
+            drafts += _pipe_drafts(pipe, resolved, stock)
+        except GeometryError as err:
+            problems += err.problems
+        if pipe.construction == "stock-tube":
+            cuts.append(tube_cut(pipe))
+    try:
+        drafts += _holders(resolved, stock)
+    except GeometryError as err:
+        problems += err.problems
+    parts: list[Part] = []
+    for draft in drafts:
+        found = check_draft(draft)
+        if found:
+            problems += found
+            continue
+        try:
+            parts.append(finish(draft, kerf))
+        except GeometryError as err:
+            problems += err.problems
+    sizes = {name: sheet_size(resolved, name) for name in sorted({p.stock for p in parts})}
+    areas = {d.id: d.area_mm2 for d in drafts}
+    sources = {d.id: d.source for d in drafts}
+    try:
+        sheets = nest(parts, areas, sizes, mm(resolved.fabrication.spacing_m), sources)
+    except GeometryError as err:
+        problems += err.problems
+    if problems:
+        raise GeometryError(problems)
+    return Parts(tuple(parts), sheets, tuple(cuts))

@@ -1,0 +1,106 @@
+"""Playing frequencies: peak finding and refinement.
+
+Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a, REFERENCES §11
+open-open check); scipy.optimize.brentq as the reference root finder for the refinement.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy.optimize import brentq
+
+from compiler.acoustics.air import Air
+from compiler.acoustics.impedance import Bore, Head, Hole, Instrument, input_impedance
+from compiler.acoustics.playing import default_range, log_grid, resonances, spectrum
+
+AIR = Air(
+    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
+)
+
+
+def cents(f: float, ref: float) -> float:
+    return float(1200 * np.log2(f / ref))
+
+
+def flute() -> Instrument:
+    holes = tuple(Hole(0.17 + 0.021 * i, 0.0036, 0.0013) for i in range(6))
+    head = Head(
+        "duct",
+        mouth_position_m=0.025,
+        window_length_m=0.006,
+        window_width_m=0.011,
+        window_thickness_m=0.0013,
+        cavity_length_m=0.003,
+    )
+    return Instrument(Bore.cylinder(0.0095), holes, head, 0.33)
+
+
+SCALE = np.array([[True] * (6 - i) + [False] * i for i in range(7)])
+
+
+def test_open_open_registers_and_octave() -> None:
+    # Lossless narrow tube: registers at c/2L' and 2c/2L', L' = L + 2·0.6133a (Levine &
+    # Schwinger 1948), within 0.2 cent; a perfect octave at this small ka.
+    a, L = 0.004, 0.7
+    pipe = Instrument(Bore.cylinder(a), (), Head("open"), L, losses="none")
+    res = resonances(pipe, AIR)
+    want = AIR.speed_m_s / (2 * (L + 2 * 0.6133 * a))
+    assert abs(cents(float(res.frequencies_hz[0, 0]), want)) < 0.2
+    assert abs(cents(float(res.frequencies_hz[0, 1]), 2 * want)) < 0.2
+    assert abs(float(res.octave_cents[0])) < 0.1
+
+
+def test_refinement_matches_brentq_to_a_hundredth_of_a_cent() -> None:
+    pipe = flute()
+    res = resonances(pipe, AIR, SCALE)
+    for i, row in enumerate(SCALE):
+        for r in range(2):
+            f = float(res.frequencies_hz[i, r])
+
+            def reactance(x: float, row: np.ndarray = row) -> float:
+                return float(input_impedance(pipe, AIR, [x], row)[0, 0].imag)
+
+            ref = brentq(reactance, f * 0.995, f * 1.005, xtol=1e-10)
+            assert abs(cents(f, ref)) < 0.01
+            # an upward crossing: reactance negative below, positive above (an impedance minimum)
+            assert reactance(f * 0.999) < 0 < reactance(f * 1.001)
+
+
+def test_scale_rises_and_registers_are_near_octaves() -> None:
+    res = resonances(flute(), AIR, SCALE)
+    f1 = res.frequencies_hz[:, 0]
+    assert np.all(np.diff(f1) > 0)  # opening holes from the foot up raises the pitch
+    assert np.all(np.abs(res.octave_cents[:3]) < 60)  # low notes overblow near the octave
+    np.testing.assert_allclose(
+        res.octave_cents, 1200 * np.log2(res.frequencies_hz[:, 1] / (2 * f1))
+    )
+
+
+def test_fingering_rows_are_independent() -> None:
+    pipe = flute()
+    together = resonances(pipe, AIR, SCALE).frequencies_hz
+    for i in (0, 3, 6):
+        alone = resonances(pipe, AIR, SCALE[i]).frequencies_hz[0]
+        np.testing.assert_allclose(alone, together[i], rtol=1e-8)
+
+
+def test_spectrum_peaks_at_the_first_register() -> None:
+    pipe = flute()
+    freqs, mag = spectrum(pipe, AIR, SCALE[:2], 100.0, 3000.0, 4000)
+    assert freqs.shape == (4000,) and mag.shape == (2, 4000)
+    f1 = resonances(pipe, AIR, SCALE[:2]).frequencies_hz[:, 0]
+    # the largest |Y| below 1.5 f1 sits within one grid step of the refined frequency
+    for i in range(2):
+        band = freqs < 1.5 * f1[i]
+        peak = freqs[band][np.argmax(mag[i, band])]
+        assert abs(peak - f1[i]) <= freqs[1] - freqs[0]
+
+
+def test_grid_and_range() -> None:
+    grid = log_grid(100.0, 200.0, 20.0)
+    assert grid[0] == pytest.approx(100.0) and grid[-1] == pytest.approx(200.0)
+    assert 1200 * np.log2(grid[1] / grid[0]) <= 20.0 + 1e-9
+    lo, hi = default_range(flute(), AIR)
+    f = resonances(flute(), AIR, SCALE).frequencies_hz
+    assert lo < f.min() and f.max() < hi

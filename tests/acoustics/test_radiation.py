@@ -1,0 +1,107 @@
+"""Open-end corrections and radiation impedance.
+
+Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a and the low-frequency
+resistance (ka)^2/4); J.-P. Dalmont, C. J. Nederveen & N. Joly, J. Sound Vib. 244(3), 505-534
+(2001) (0.8216a, and the frequency-dependent |R|, Δ(ka) approximations whose check values
+REFERENCES §4b computed from the formulas as transcribed).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from compiler.acoustics.radiation import (
+    END_CORRECTION_MODELS,
+    RADIATION_MODELS,
+    end_correction,
+    flanged_end_correction_ratio,
+    radiation_impedance,
+    unflanged_end_correction_ratio,
+    unflanged_reflection_magnitude,
+)
+
+A = 0.0095  # a 19 mm bore, metres
+
+
+def test_model_names_are_the_published_set() -> None:
+    assert END_CORRECTION_MODELS == ("rule-of-thumb", "unflanged", "flanged", "frequency-dependent")
+    assert set(END_CORRECTION_MODELS) < set(RADIATION_MODELS)
+
+
+def test_low_frequency_limits() -> None:
+    # Levine & Schwinger (1948): "the exact value of the end correction turns out to be 0.6133".
+    assert end_correction("unflanged", A) == pytest.approx(0.6133 * A, rel=1e-12)
+    # Infinite flange: 0.8216a (Norris & Sheng 1989, quoted by Dalmont et al. 2001).
+    assert end_correction("flanged", A) == pytest.approx(0.8216 * A, rel=1e-12)
+    # Rule of thumb k·d, k = 0.3 per open end (common practice).
+    assert end_correction("rule-of-thumb", A) == pytest.approx(0.3 * 2 * A, rel=1e-12)
+    assert end_correction("rule-of-thumb", A, k=0.4) == pytest.approx(0.4 * 2 * A, rel=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("ka", "r_mag", "delta_ratio"),
+    # REFERENCES §4b check table, computed from the Dalmont, Nederveen & Joly (2001) formulas.
+    [
+        (0.01, 1.0000, 0.6133),
+        (0.1, 0.9951, 0.6119),
+        (0.5, 0.8962, 0.5832),
+        (1.0, 0.6906, 0.5279),
+        (1.5, 0.4969, 0.4719),
+    ],
+)
+def test_dalmont_2001_unflanged_table(ka: float, r_mag: float, delta_ratio: float) -> None:
+    assert float(unflanged_reflection_magnitude(ka)) == pytest.approx(r_mag, abs=6e-5)
+    assert float(unflanged_end_correction_ratio(ka)) == pytest.approx(delta_ratio, abs=6e-5)
+    got = end_correction("frequency-dependent", A, ka=ka)
+    assert got == pytest.approx(delta_ratio * A, abs=6e-5 * A)
+
+
+def test_frequency_dependent_models_tend_to_their_limits() -> None:
+    # ka → 0: 0.6133 (Levine & Schwinger 1948) and 0.8216 (flanged), REFERENCES §4b.
+    assert end_correction("frequency-dependent", A) == pytest.approx(0.6133 * A)
+    assert float(unflanged_end_correction_ratio(1e-6)) == pytest.approx(0.6133, abs=1e-9)
+    assert float(flanged_end_correction_ratio(1e-9)) == pytest.approx(0.8216, abs=1e-7)
+    # The flanged form (not verified, REFERENCES §4b) decreases with ka, as the unflanged one does.
+    ratios = flanged_end_correction_ratio(np.array([0.1, 0.5, 1.0]))
+    assert np.all(np.diff(ratios) < 0)
+
+
+def test_frequency_dependent_impedance_low_frequency_limit() -> None:
+    # REFERENCES §4b: Zr/Zc ≈ 0.25 (ka)^2 + j 0.6133 ka as ka → 0 (Levine & Schwinger 1948).
+    ka = np.array([0.005, 0.01, 0.02])
+    k = ka / A
+    zr = radiation_impedance("frequency-dependent", A, k, 1.0)
+    np.testing.assert_allclose(zr.imag, 0.6133 * ka, rtol=1e-3)
+    np.testing.assert_allclose(zr.real, 0.25 * ka**2, rtol=2e-2)
+
+
+def test_frequency_dependent_impedance_reproduces_reflection_magnitude() -> None:
+    # Zr = Zc (1+R)/(1-R) inverts to R = (Zr - Zc)/(Zr + Zc); |R| must be Dalmont's (2001).
+    ka = np.array([0.3, 1.0, 2.0])
+    zc = 4.2e6
+    zr = radiation_impedance("frequency-dependent", A, ka / A, zc)
+    refl = (zr - zc) / (zr + zc)
+    np.testing.assert_allclose(np.abs(refl), unflanged_reflection_magnitude(ka), rtol=1e-12)
+    # phase: R = -|R| exp(-2jkΔ) with Δ from the same paper
+    np.testing.assert_allclose(
+        np.angle(-refl), -2 * ka * unflanged_end_correction_ratio(ka), rtol=1e-12
+    )
+
+
+@pytest.mark.parametrize("model", RADIATION_MODELS)
+def test_radiation_is_a_mass_with_positive_resistance(model: str) -> None:
+    # e^{+jωt}: an open end is inertive (positive reactance) and absorbs power (Re > 0).
+    k = np.linspace(1.0, 60.0, 20)
+    zr = radiation_impedance(model, A, k, 1.0)
+    assert np.all(zr.imag > 0)
+    assert np.all(zr.real > 0)
+    # low-frequency reactance kΔ with the model's own end correction
+    np.testing.assert_allclose(zr.imag[0], 1.0 * end_correction(model, A, ka=k[0] * A), rtol=2e-3)
+
+
+def test_unknown_model_and_bad_radius_are_refused() -> None:
+    with pytest.raises(ValueError, match="unknown end-correction model"):
+        end_correction("baffled", A)
+    with pytest.raises(ValueError, match="positive radius"):
+        end_correction("unflanged", 0.0)

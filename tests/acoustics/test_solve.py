@@ -1,0 +1,310 @@
+"""Inverse design: hole positions, diameters and tube length for a fingering table.
+
+The instruments are invented. Targets are 12-TET from A4 = 440 Hz (ISO 16:1975). Every design is
+checked independently: the returned geometry is rebuilt as an Instrument and its playing
+frequencies recomputed, rather than trusting the solver's own report. The least-squares check
+uses the definition of cents (1200 log2): the best single pitch for two targets is their
+geometric mean.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from compiler.acoustics.air import Air
+from compiler.acoustics.impedance import Bore, Head, Hole, Instrument
+from compiler.acoustics.playing import resonances
+from compiler.acoustics.solve import (
+    Design,
+    DesignError,
+    FixedHole,
+    HoleConstraints,
+    design_holes,
+)
+
+AIR = Air(
+    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
+)
+DRILLS = tuple(np.round(np.arange(2.0, 13.01, 0.5), 1) / 1000)  # metric, 0.5 mm steps
+
+
+def et(midi: int) -> float:
+    return float(440.0 * 2 ** ((midi - 69) / 12))  # ISO 16 A4, 12-TET (REFERENCES §9)
+
+
+def scale_table(n_holes: int) -> np.ndarray:
+    """xxx xxx, xxx xxo, xxx xoo, ... ooo ooo: holes opened from the foot up."""
+    return np.array([[True] * (n_holes - i) + [False] * i for i in range(n_holes + 1)])
+
+
+# Six-hole duct flute in D, aluminium tube 22 mm × 1 mm wall: D5..C#6, and D6 overblown.
+DUCT_HEAD = Head(
+    "duct",
+    mouth_position_m=0.025,
+    window_length_m=0.006,
+    window_width_m=0.012,
+    window_thickness_m=0.001,
+    cavity_length_m=0.003,
+)
+DUCT_TABLE = np.vstack([scale_table(6), scale_table(6)[:1]])
+DUCT_TARGETS = [et(m) for m in (74, 76, 78, 79, 81, 83, 85)] + [et(86)]
+DUCT_REGISTERS = [1] * 7 + [2]
+
+# Eight-hole side-blown flute in C, tube 19.05 mm × 1.24 mm wall: C5..D6, both registers.
+FLUTE_HEAD = Head(
+    "embouchure",
+    mouth_position_m=0.03,
+    embouchure_radius_m=0.0045,
+    embouchure_chimney_m=0.0035,
+    cavity_length_m=0.017,
+)
+FLUTE_BORE = Bore.cylinder(0.01905 / 2 - 0.00124)
+FLUTE_NOTES = (72, 74, 76, 77, 79, 81, 83, 84, 86)
+FLUTE_TABLE = np.vstack([scale_table(8), scale_table(8)])
+FLUTE_TARGETS = [et(m) for m in FLUTE_NOTES] + [et(m + 12) for m in FLUTE_NOTES]
+FLUTE_REGISTERS = [1] * 9 + [2] * 9
+FLUTE_LIMITS = HoleConstraints(max_diameter_m=0.010, min_web_m=0.003)
+
+
+def rebuild(d: Design, wall: float) -> Instrument:
+    holes = tuple(
+        Hole(x, di / 2, wall) for x, di in zip(d.hole_positions_m, d.hole_diameters_m, strict=True)
+    )
+    return Instrument(d.instrument.bore, holes, d.instrument.head, d.length_m)
+
+
+def check_design(
+    d: Design,
+    table: np.ndarray,
+    targets: list[float],
+    regs: list[int],
+    wall: float,
+    limits: HoleConstraints,
+) -> None:
+    first = np.array(regs) == 1
+    # the model before snapping meets every first-register target within 0.1 cent
+    assert np.nanmax(np.abs(np.array(d.unsnapped_residual_cents)[first])) <= 0.1
+    # after snapping to the drill set and re-solving positions, within 1 cent
+    pred = resonances(rebuild(d, wall), AIR, table).frequencies_hz
+    got = pred[np.arange(len(targets)), np.array(regs) - 1]
+    resid = 1200 * np.log2(got / np.array(targets))
+    assert np.max(np.abs(resid[first])) <= 1.0
+    np.testing.assert_allclose(np.array(d.predicted_hz), pred, rtol=1e-7)
+    np.testing.assert_allclose(np.array(d.residual_cents), resid, atol=1e-4)
+    # every diameter is a drill, every constraint holds
+    x = np.array(d.hole_positions_m)
+    dia = np.array(d.hole_diameters_m)
+    for di in dia:
+        assert np.min(np.abs(np.array(DRILLS) - di)) < 1e-12
+    assert np.all(dia >= limits.min_diameter_m) and np.all(dia <= limits.max_diameter_m)
+    web = np.diff(x) - 0.5 * (dia[1:] + dia[:-1])
+    assert np.all(web >= limits.min_web_m - 2e-5)
+    assert x[-1] < d.length_m
+
+
+def test_six_hole_duct_flute() -> None:
+    d = design_holes(
+        Bore.cylinder(0.010),
+        0.001,
+        DUCT_HEAD,
+        DUCT_TABLE,
+        DUCT_TARGETS,
+        AIR,
+        registers=DUCT_REGISTERS,
+        drills_m=DRILLS,
+        note_names=("D5", "E5", "F#5", "G5", "A5", "B5", "C#6", "D6"),
+    )
+    check_design(d, DUCT_TABLE, DUCT_TARGETS, DUCT_REGISTERS, 0.001, HoleConstraints())
+    assert 0.2 < d.length_m < 0.35  # a D5 flute is about a foot long
+    assert d.iterations > 0
+    # the second register of the all-closed fingering is reported against D6
+    assert np.isfinite(d.residual_cents[-1]) and abs(d.residual_cents[-1]) < 50
+
+
+def test_eight_hole_side_blown_flute_two_registers() -> None:
+    d = design_holes(
+        FLUTE_BORE,
+        0.00124,
+        FLUTE_HEAD,
+        FLUTE_TABLE,
+        FLUTE_TARGETS,
+        AIR,
+        registers=FLUTE_REGISTERS,
+        drills_m=DRILLS,
+        constraints=FLUTE_LIMITS,
+    )
+    check_design(d, FLUTE_TABLE, FLUTE_TARGETS, FLUTE_REGISTERS, 0.00124, FLUTE_LIMITS)
+    assert len(d.predicted_hz) == 18 and len(d.octave_cents) == 18
+
+
+def test_hand_span_is_respected() -> None:
+    limits = HoleConstraints(max_diameter_m=0.010, min_web_m=0.003, max_span_m=0.026)
+    d = design_holes(
+        FLUTE_BORE,
+        0.00124,
+        FLUTE_HEAD,
+        FLUTE_TABLE[:9],
+        FLUTE_TARGETS[:9],
+        AIR,
+        drills_m=DRILLS,
+        constraints=limits,
+    )
+    check_design(d, FLUTE_TABLE[:9], FLUTE_TARGETS[:9], [1] * 9, 0.00124, limits)
+    assert np.max(np.diff(d.hole_positions_m)) <= 0.026 + 2e-5
+    # without the limit some gaps are wider: the constraint really bound
+    free = design_holes(
+        FLUTE_BORE,
+        0.00124,
+        FLUTE_HEAD,
+        FLUTE_TABLE[:9],
+        FLUTE_TARGETS[:9],
+        AIR,
+        drills_m=DRILLS,
+        constraints=FLUTE_LIMITS,
+    )
+    assert np.max(np.diff(free.hole_positions_m)) > 0.027
+
+
+def test_least_squares_when_targets_outnumber_unknowns() -> None:
+    # A plain tube (no holes) asked for two pitches at once: the length that minimises the sum of
+    # squared cents errors sounds their geometric mean.
+    head = Head("open")
+    d = design_holes(
+        Bore.cylinder(0.006), 0.001, head, np.ones((2, 0), bool), [440.0, 446.0], AIR, losses="none"
+    )
+    f = d.predicted_hz[0][0]
+    assert 1200 * np.log2(f / np.sqrt(440.0 * 446.0)) == pytest.approx(0.0, abs=0.01)
+    assert d.residual_cents[0] == pytest.approx(-d.residual_cents[1], abs=0.01)
+
+
+def test_all_fixed_is_analysis_only() -> None:
+    holes = (FixedHole(0.15, 0.008), FixedHole(0.18, 0.009))
+    table = np.array([[True, True], [True, False], [False, False]])
+    d = design_holes(
+        Bore.cylinder(0.0095),
+        0.0015,
+        DUCT_HEAD,
+        table,
+        [600.0, 700.0, 800.0],
+        AIR,
+        fixed=holes,
+        length_m=0.3,
+    )
+    inst = Instrument(
+        Bore.cylinder(0.0095),
+        (Hole(0.15, 0.004, 0.0015), Hole(0.18, 0.0045, 0.0015)),
+        DUCT_HEAD,
+        0.3,
+    )
+    np.testing.assert_allclose(
+        np.array(d.predicted_hz), resonances(inst, AIR, table).frequencies_hz, rtol=1e-9
+    )
+    assert d.hole_positions_m == (0.15, 0.18) and d.length_m == 0.3
+
+
+def test_fixed_position_frees_the_diameter() -> None:
+    free = design_holes(
+        Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], DUCT_TARGETS[:7], AIR
+    )
+    moved = free.hole_positions_m[2] - 0.002  # two millimetres higher: the hole must shrink
+    fixed = (None, None, FixedHole(position_m=moved), None, None, None)
+    d = design_holes(
+        Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], DUCT_TARGETS[:7], AIR, fixed=fixed
+    )
+    assert d.hole_positions_m[2] == moved
+    assert d.hole_diameters_m[2] < free.hole_diameters_m[2]
+    assert np.max(np.abs(d.residual_cents)) <= 0.1
+
+
+def test_note_below_the_all_closed_note() -> None:
+    targets = list(DUCT_TARGETS[:7])
+    targets[3] = et(72)  # a C5 asked of "xxx ooo", below the all-closed D5
+    names = ("D5", "E5", "F#5", "C5", "A5", "B5", "C#6")
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], targets, AIR, note_names=names
+        )
+    assert err.value.subject == "note C5"
+    assert "all-closed" in err.value.message and err.value.hint
+
+
+def test_fixed_length_too_short_for_the_lowest_note() -> None:
+    names = ("D5", "E5", "F#5", "G5", "A5", "B5", "C#6")
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            Bore.cylinder(0.010),
+            0.001,
+            DUCT_HEAD,
+            DUCT_TABLE[:7],
+            DUCT_TARGETS[:7],
+            AIR,
+            length_m=0.2,
+            note_names=names,
+        )
+    assert err.value.subject == "note D5"
+    assert "length" in err.value.message and "length" in err.value.hint
+
+
+def test_note_beyond_reach() -> None:
+    # A7 with every hole open: above the shortest configuration the tube allows.
+    targets = list(DUCT_TARGETS[:7])
+    targets[6] = et(105)
+    names = ("D5", "E5", "F#5", "G5", "A5", "B5", "A7")
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], targets, AIR, note_names=names
+        )
+    assert err.value.subject == "note A7"
+    assert "reach" in err.value.message and "larger holes" in err.value.hint
+
+
+def test_note_that_cannot_be_tuned() -> None:
+    # E7 after C#6: within the bound above, but the model finds no layout that plays it.
+    targets = list(DUCT_TARGETS[:7])
+    targets[6] = et(100)
+    names = ("D5", "E5", "F#5", "G5", "A5", "B5", "E7")
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], targets, AIR, note_names=names
+        )
+    assert err.value.subject == "note E7"
+    assert "flat" in err.value.message and err.value.hint
+
+
+def test_span_beyond_the_hand() -> None:
+    limits = HoleConstraints(max_diameter_m=0.010, max_span_m=0.012)
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            FLUTE_BORE,
+            0.00124,
+            FLUTE_HEAD,
+            FLUTE_TABLE[:9],
+            FLUTE_TARGETS[:9],
+            AIR,
+            constraints=limits,
+        )
+    assert err.value.subject.startswith("hole ")
+    assert "span" in err.value.message and "span" in err.value.hint
+
+
+def test_hole_larger_than_allowed() -> None:
+    fixed = (None, FixedHole(diameter_m=0.015), None, None, None, None)
+    with pytest.raises(DesignError) as err:
+        design_holes(
+            Bore.cylinder(0.010),
+            0.001,
+            DUCT_HEAD,
+            DUCT_TABLE[:7],
+            DUCT_TARGETS[:7],
+            AIR,
+            fixed=fixed,
+        )
+    assert err.value.subject == "hole 2"
+    assert isinstance(err.value, ValueError)
+
+
+def test_mismatched_table_is_refused() -> None:
+    with pytest.raises(DesignError) as err:
+        design_holes(Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], DUCT_TARGETS, AIR)
+    assert err.value.subject == "fingerings"
