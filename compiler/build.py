@@ -107,6 +107,9 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
             os.replace(previous, target)
         shutil.rmtree(stale, ignore_errors=True)
     work = Path(tempfile.mkdtemp(prefix=f".{compiled.resolved.slug}.building-", dir=out_root))
+    umask = os.umask(0)
+    os.umask(umask)
+    os.chmod(work, 0o777 & ~umask)  # mkdtemp makes it private; the output is the user's
     try:
         written = emit_all(compiled, options, work, progress)
         for path in written:

@@ -282,10 +282,16 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
              f"({air.sound_speed_model}); end correction: {group.end_correction_model}.",
              "Error: predicted minus target, in cents. Sensitivity: cents for 1 mm more "
              "speaking length, and for 1 °C warmer air."]
-    same = common(pipes)
+    same = [f"{d.name} {mm(d.value_m)} mm" for d in common(pipes)]
+    mouths = [p.mouth for p in pipes if p.mouth is not None]
+    if len(mouths) == len(pipes) and mouths:
+        across = "width" if pipes[0].section == "rect" else "circumference"
+        for text, values in ((f"mouth width / {across}", [m.width_fraction for m in mouths]),
+                             ("cut-up / mouth width", [m.cutup_fraction for m in mouths])):
+            if len({fixed(v, 4) for v in values}) == 1:
+                same.append(f"{text} {fixed(values[0], 4)}")
     if same:
-        lines.append("The same for every pipe: " + ", ".join(
-            f"{d.name} {mm(d.value_m)} mm" for d in same) + ".")
+        lines.append("The same for every pipe: " + ", ".join(same) + ".")
     if group.calibration.calibrated:
         lines.append(f"Calibrated: {group.calibration.parameter} = "
                      f"{group.calibration.value:.4f}, rms {group.calibration.rms_cents:.2f} "

@@ -188,7 +188,8 @@ def build_view(pipe: Pipe, inches: bool) -> View:
         hidden = 90.0 < abs(hole.angle_deg) % 360.0 < 270.0
         holes.append(HoleMark(0.0, y, hole.diameter_m * 500.0, hidden))
         where = "back" if hidden else ""
-        calls.append(Callout(0.0, y, f"{hole.label}  ø {mm(hole.diameter_m)}  at "
+        name = f"hole {hole.label}" if hole.label.isdigit() else hole.label
+        calls.append(Callout(0.0, y, f"{name}  ø {mm(hole.diameter_m)}  at "
                              f"{mm(hole.position_from_top_m)} from top"
                              + (f" ({where})" if where else ""), ""))
     return View(max(outer, inner), top, tuple(shapes), tuple(holes), tuple(vdims),
