@@ -45,9 +45,9 @@ def test_python_dash_m_is_the_same_program() -> None:
 
 
 def test_check_imports_no_heavy_modules() -> None:
-    code = ("import sys; from compiler.cli import main; main(['check', %r]); "
+    code = (f"import sys; from compiler.cli import main; main(['check', {str(EXAMPLE)!r}]); "
             "print(sorted(m for m in ('numpy', 'ezdxf', 'reportlab', 'shapely') "
-            "if m in sys.modules))" % str(EXAMPLE))
+            "if m in sys.modules))")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           cwd=ROOT, check=True)
     assert done.stdout.strip() == "[]"

@@ -57,3 +57,9 @@ def test_wheel_in_a_fresh_venv_checks_a_spec(tmp_path: Path) -> None:
                           capture_output=True, text=True, cwd=spec.parent, check=False)
     assert done.returncode == 1
     assert f"{bad}:2:1: error: unknown key `instrumnet`" in done.stderr
+    # every backend is in the wheel: a full build works from the installed package
+    done = subprocess.run([str(python), "-m", "compiler", "build", str(spec), "-o", "built"],
+                          capture_output=True, text=True, cwd=spec.parent, check=False)
+    assert done.returncode == 0, done.stderr
+    made = sorted(p.name for p in (spec.parent / "built" / "wheel-test").iterdir())
+    assert made == ["build-sheet.pdf", "cut-list.csv", "manifest.json", "resolved.json"]
