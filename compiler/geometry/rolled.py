@@ -88,8 +88,8 @@ def body(pipe: Pipe, fab: FabricationReport) -> Draft:
     pts = [(0.0, 0.0)]
     if pipe.mouth is not None:
         mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
-        if mw >= circ - 2.0 * TICK_MM:
-            raise pipe_error(pipe, f"the mouth ({mw:.1f} mm) is as wide as the body's "
+        if mw >= circ / 2.0:
+            raise pipe_error(pipe, f"the mouth ({mw:.1f} mm) takes half or more of the body's "
                         f"circumference ({circ:.1f} mm)", "give a smaller mouth width")
         if cu >= height - TICK_MM:
             raise pipe_error(pipe, f"the cut-up ({cu:.1f} mm) reaches the top of the body",

@@ -204,10 +204,14 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
     t = stock.thickness_m
     inner = section.diameter_m if section.round else min(section.width_m or 0,
                                                          section.depth_m or 0)
-    if inner is None or inner <= 2 * t:
+    # A rolled body narrower than two walls cannot be rolled; a wooden pipe narrower than
+    # its board is thick cannot be glued up with a block and cap (common practice).
+    least = 2 * t if section.round else t
+    if inner is None or inner <= least:
+        walls = "two walls" if section.round else "one board"
         raise PhysicsError.at(rank.where.get("scale", rank.position),
                               f"{label}: the scale gives {1000 * (inner or 0):.1f} mm inside, "
-                              f"no wider than two walls of {1000 * t:.1f} mm",
+                              f"no wider than {walls} of {1000 * t:.1f} mm",
                               "use a wider scale or a larger halving interval, or thinner stock")
     wf, cf, width, cutup, lip = _mouth_numbers(rank, note, section, t)
     limit = section.diameter_m if section.round else section.width_m

@@ -127,7 +127,7 @@ def scale_notes(tonic: int, pattern: str | Sequence[int], count: int) -> list[in
     notes = notes[:count]
     if notes and not (0 <= notes[0] and notes[-1] <= 127):
         raise NoteError(
-            f"the scale from {tonic} leaves the MIDI range 0..127",
+            f"the scale from {note_name(tonic)} runs past G9, the highest note",
             "start lower or ask for fewer notes",
         )
     return notes

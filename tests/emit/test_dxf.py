@@ -122,7 +122,8 @@ def test_sheet_coordinates_read_back(model: Resolved, parts: Parts,
     assert len(written) == len(outlines)
     for ours, theirs in zip(outlines, written, strict=True):
         pts = theirs.get_points("xyb")
-        assert [(x, y) for x, y, _ in pts] == pytest.approx(list(ours.points), abs=1e-9)
+        assert [v for x, y, _ in pts for v in (x, y)] == pytest.approx(
+            [v for point in ours.points for v in point], abs=1e-9)
         assert [b for _, _, b in pts] == pytest.approx(list(ours.bulges), abs=1e-12)
     # The languid's outline is a CIRCLE where the part says.
     (circle,) = doc.modelspace().query("CIRCLE[layer=='cut-outer']")
@@ -249,7 +250,8 @@ def test_gdal_reads_the_same_coordinates(model: Resolved, parts: Parts,
              if f["properties"]["Layer"] == "cut-outer"  # type: ignore[index]
              and len(f["geometry"]["coordinates"]) == len(body.points) + 1]  # type: ignore[index]
     (coords,) = lines
-    assert [tuple(c[:2]) for c in coords[:-1]] == pytest.approx(list(body.points), abs=1e-6)
+    assert [v for c in coords[:-1] for v in c[:2]] == pytest.approx(
+        [v for point in body.points for v in point], abs=1e-6)
     assert coords[0] == coords[-1]
 
 

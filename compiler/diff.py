@@ -1,0 +1,412 @@
+"""``boresmith diff OLD NEW``: what changed between two specs, in resolved dimensions.
+
+Both specs are resolved, turned into the ``resolved.json`` contract (``to_dict``: lengths in
+mm, rounded as in the file), and compared field by field:
+
+- pipes are matched by id; every scalar field that differs is a change, nested ones included
+  (``mouth.cutup_mm``, ``stopper.position_mm``); holes are matched by hole number
+  (``holes[3]`` is hole number 3, counted from the head, not a list index), fingerings by note
+  and register (``fingerings[E6 r2]``), plain number lists by index (``harmonics_hz[1]``);
+- pipes only in one spec are added or removed;
+- groups (ranks, tube sets, flutes) are matched by id: their air (speed of sound,
+  temperature...), calibration and holder;
+- instrument-wide settings: the name, tuning, fabrication and stock (by name).
+
+Not compared: positions in the spec file (any edit moves them), the spec's file name and
+hash, plot samples and warnings. Differences below the JSON rounding vanish in the rounding.
+A length's change is given in mm, a frequency's in cents: 1200·log2(new/old) (A. J. Ellis,
+1885, the definition of the cent).
+
+The comparison and the report are pure; ``read_spec_arg`` reads a file or, for
+``FILE@REV``, the file as it was at a git revision.
+"""
+
+from __future__ import annotations
+
+import math
+import subprocess
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from compiler.emit.resolved_json import to_dict
+from compiler.resolve.model import Resolved
+
+Value = float | int | str | bool | None
+
+EXIT_SAME, EXIT_CHANGED = 0, 1
+
+_IGNORED = frozenset({"id", "source", "curves", "pipe_ids"})
+_INSTRUMENT_KEYS = ("instrument", "tuning", "fabrication", "stock")
+
+
+class DiffInputError(Exception):
+    """An OLD or NEW argument cannot be read: no such file, not in git, unknown revision."""
+
+
+@dataclass(frozen=True)
+class Change:
+    """One difference between the old and the new resolved model.
+
+    ``scope`` is ``pipe``, ``group`` or ``instrument``; ``owner`` the pipe or group id (empty
+    for the instrument). ``status`` is ``changed``, ``added`` or ``removed``; a whole pipe or
+    group added or removed has an empty ``field`` and a one-line summary as its value.
+    ``delta`` is new − old in ``unit`` for numbers: mm for lengths, cents for frequencies
+    (1200·log2(new/old)) and for cents; the field's own unit otherwise.
+    """
+
+    scope: str
+    owner: str
+    status: str
+    field: str
+    old: Value
+    new: Value
+    delta: float | None = None
+    unit: str = ""
+
+    @property
+    def delta_mm(self) -> float | None:
+        return self.delta if self.unit == "mm" else None
+
+    @property
+    def delta_cents(self) -> float | None:
+        return self.delta if self.unit == "cents" else None
+
+
+# ---------------------------------------------------------------------------------------------
+# Reading OLD and NEW
+
+
+def read_spec_arg(arg: str, cwd: Path) -> tuple[bytes, str]:
+    """The bytes of a spec and the name to report it by.
+
+    ``arg`` is a path (relative to ``cwd``) or ``PATH@REV``: the file as committed at git
+    revision ``REV`` (anything ``git rev-parse`` accepts: ``HEAD``, ``HEAD~2``, a tag, a
+    hash). A path that exists as a file is read as it is, even if it contains ``@``.
+    Raises ``DiffInputError`` with a message for the maker.
+    """
+    if not arg:
+        raise DiffInputError("an empty file name")
+    plain = cwd / arg
+    if plain.is_file() or "@" not in arg:
+        return _read_file(plain, arg), arg
+    path, rev = _split_revision(arg, cwd)
+    return _git_show(cwd / path, rev, arg), arg
+
+
+def _read_file(path: Path, shown: str) -> bytes:
+    try:
+        return path.read_bytes()
+    except FileNotFoundError:
+        raise DiffInputError(f"{shown}: no such file") from None
+    except IsADirectoryError:
+        raise DiffInputError(f"{shown}: is a folder, not a spec file") from None
+    except OSError as exc:
+        raise DiffInputError(f"{shown}: cannot read ({exc.strerror})") from None
+
+
+def _split_revision(arg: str, cwd: Path) -> tuple[str, str]:
+    """``PATH@REV`` -> (PATH, REV); the first ``@`` after an existing file wins, else the first.
+
+    Revisions may contain ``@`` themselves (``HEAD@{1}``), paths rarely do.
+    """
+    cuts = [i for i, ch in enumerate(arg) if ch == "@"]
+    cut = next((i for i in cuts if (cwd / arg[:i]).is_file()), cuts[0])
+    path, rev = arg[:cut], arg[cut + 1:]
+    if not path:
+        raise DiffInputError(f"{arg}: write the file before the revision, as `FILE@REV`")
+    if not rev:
+        raise DiffInputError(f"{arg}: no revision after `@` (for example `{path}@HEAD`)")
+    return path, rev
+
+
+def _git(args: list[str], where: Path) -> subprocess.CompletedProcess[bytes]:
+    try:
+        return subprocess.run(["git", "-C", str(where), *args], capture_output=True,
+                              check=False)
+    except FileNotFoundError:
+        raise DiffInputError("`FILE@REV` needs git, and git was not found") from None
+
+
+def _git_show(path: Path, rev: str, shown: str) -> bytes:
+    folder = path.parent
+    while not folder.is_dir() and folder != folder.parent:
+        folder = folder.parent
+    top = _git(["rev-parse", "--show-toplevel"], folder)
+    if top.returncode != 0:
+        raise DiffInputError(f"{shown}: {folder} is not in a git repository")
+    root = Path(top.stdout.decode("utf-8", "replace").strip()).resolve()
+    full = path.parent.resolve() / path.name
+    try:
+        inside = full.relative_to(root).as_posix()
+    except ValueError:
+        raise DiffInputError(f"{shown}: the file is outside the repository {root}") from None
+    if rev.startswith("-") or _git(["rev-parse", "--verify", "--quiet", "--end-of-options",
+                                    f"{rev}^{{commit}}"], root).returncode != 0:
+        raise DiffInputError(f"{shown}: unknown revision `{rev}`")
+    kind = _git(["cat-file", "-t", f"{rev}:{inside}"], root)
+    if kind.returncode != 0:
+        raise DiffInputError(f"{shown}: `{inside}` does not exist at revision `{rev}`")
+    if kind.stdout.strip() != b"blob":
+        raise DiffInputError(f"{shown}: `{inside}` is not a file at revision `{rev}`")
+    shown_file = _git(["show", f"{rev}:{inside}"], root)
+    if shown_file.returncode != 0:
+        message = shown_file.stderr.decode("utf-8", "replace").strip()
+        raise DiffInputError(f"{shown}: git could not read it ({message})")
+    return shown_file.stdout
+
+
+# ---------------------------------------------------------------------------------------------
+# Comparing
+
+
+def _unit(name: str) -> str:
+    """The unit a field's change is reported in, from its JSON name."""
+    if name.startswith("cents_per_"):
+        return ""
+    for suffix, unit in (("_mm", "mm"), ("_hz", "cents"), ("_cents", "cents"),
+                         ("_m_s", "m/s"), ("_kg_m3", "kg/m3"), ("_c", "C"), ("_pa", "Pa"),
+                         ("_percent", "%"), ("_ppm", "ppm"), ("_deg", "deg")):
+        if name.endswith(suffix):
+            return unit
+    return ""
+
+
+def _is_number(value: object) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool)
+
+
+def _delta(name: str, old: Value, new: Value) -> tuple[float | None, str]:
+    if not (_is_number(old) and _is_number(new)):
+        return None, ""
+    assert isinstance(old, int | float) and isinstance(new, int | float)
+    unit = _unit(name)
+    if name.endswith("_hz"):
+        if old <= 0 or new <= 0:
+            return None, ""
+        return round(1200.0 * math.log2(new / old), 6), unit
+    return round(new - old, 6), unit
+
+
+def _scalar(key: str, value: Any) -> Value:
+    """A list of strings or flags compared as one value (``closed`` as ``xxo``)."""
+    if isinstance(value, list):
+        if key == "closed":
+            return "".join("x" if v else "o" for v in value)
+        return ", ".join(str(v) for v in value)
+    if value is None or isinstance(value, str | bool | int | float):
+        return value
+    return str(value)
+
+
+_Key = Callable[[dict[str, Any]], str]
+_KEYED: dict[str, _Key] = {
+    "holes": lambda h: str(h["number"]),
+    "fingerings": lambda f: f"{f['note']} r{f['register']}",
+    "residuals": lambda r: str(r["note"]),
+    "stock": lambda s: str(s["name"]),
+}
+
+
+def _leaves(old: Any, new: Any, path: str, name: str) -> Iterator[tuple[str, str, Value, Value]]:
+    """(field path, field name, old, new) for every scalar that differs."""
+    if isinstance(old, dict) or isinstance(new, dict):
+        o = old if isinstance(old, dict) else {}
+        n = new if isinstance(new, dict) else {}
+        for key in sorted(set(o) | set(n)):
+            if key not in _IGNORED:
+                yield from _leaves(o.get(key), n.get(key), f"{path}.{key}" if path else key, key)
+        return
+    lists = [v for v in (old, new) if isinstance(v, list)]
+    items = [item for v in lists for item in v]
+    if lists and name in _KEYED and all(isinstance(i, dict) for i in items):
+        key = _KEYED[name]
+        o_map = {key(i): i for i in (old or [])}
+        n_map = {key(i): i for i in (new or [])}
+        order = list(o_map) + [k for k in n_map if k not in o_map]
+        for k in order:
+            yield from _leaves(o_map.get(k), n_map.get(k), f"{path}[{k}]", name)
+        return
+    if lists and items and all(_is_number(i) for i in items):
+        o_list, n_list = old or [], new or []
+        for i in range(max(len(o_list), len(n_list))):
+            a = o_list[i] if i < len(o_list) else None
+            b = n_list[i] if i < len(n_list) else None
+            if a != b:
+                yield f"{path}[{i}]", name, a, b
+        return
+    a, b = _scalar(name, old), _scalar(name, new)
+    if a != b:
+        yield path, name, a, b
+
+
+_FIRST = ("cut_length_mm", "speaking_length_mm", "predicted_hz", "target_hz", "error_cents")
+"""What a maker looks for first; the other fields follow in alphabetical order."""
+
+
+def _field_order(change: Change) -> tuple[int, str]:
+    first = change.field in _FIRST
+    return (_FIRST.index(change.field) if first else len(_FIRST)), change.field
+
+
+def _changes(scope: str, owner: str, old: Any, new: Any) -> list[Change]:
+    found = []
+    for path, name, a, b in _leaves(old, new, "", ""):
+        delta, unit = _delta(name, a, b)
+        found.append(Change(scope, owner, "changed", path, a, b, delta, unit))
+    return sorted(found, key=_field_order)
+
+
+def _pipe_summary(pipe: dict[str, Any]) -> str:
+    return (f"{pipe['note']}, {_number(pipe['target_hz'])} Hz, "
+            f"cut length {_number(pipe['cut_length_mm'])} mm")
+
+
+def _group_summary(group: dict[str, Any]) -> str:
+    return f"{group['kind']}, {group['family']}, {len(group['pipe_ids'])} pipes"
+
+
+def _matched(scope: str, old: list[dict[str, Any]], new: list[dict[str, Any]],
+             summary: Callable[[dict[str, Any]], str]) -> list[Change]:
+    old_by_id = {item["id"]: item for item in old}
+    new_by_id = {item["id"]: item for item in new}
+    found: list[Change] = []
+    for ident, item in new_by_id.items():
+        if ident in old_by_id:
+            found.extend(_changes(scope, ident, old_by_id[ident], item))
+        else:
+            found.append(Change(scope, ident, "added", "", None, summary(item)))
+    for ident, item in old_by_id.items():
+        if ident not in new_by_id:
+            found.append(Change(scope, ident, "removed", "", summary(item), None))
+    return found
+
+
+def compare(old: Resolved, new: Resolved) -> list[Change]:
+    """Every difference from ``old`` to ``new``: instrument settings, groups, then pipes.
+
+    Pipes keep the new spec's order (removed ones follow); within a pipe, cut length,
+    speaking length, pitch and error come first, then the other fields by path.
+    """
+    a, b = to_dict(old), to_dict(new)
+    found = _changes("instrument", "", {k: a[k] for k in _INSTRUMENT_KEYS},
+                     {k: b[k] for k in _INSTRUMENT_KEYS})
+    found.extend(_matched("group", a["groups"], b["groups"], _group_summary))
+    found.extend(_matched("pipe", a["pipes"], b["pipes"], _pipe_summary))
+    return found
+
+
+# ---------------------------------------------------------------------------------------------
+# Reporting
+
+
+def _decimals(*values: Value) -> int:
+    """Decimals to show: at least two, as many as the JSON values carry (they are rounded)."""
+    found = 2
+    for value in values:
+        if isinstance(value, float):
+            text = repr(value)
+            found = max(found, 6 if "e" in text else len(text.partition(".")[2]))
+    return min(found, 6)
+
+
+def _number(value: float | int, decimals: int | None = None) -> str:
+    if isinstance(value, int):
+        return str(value)
+    return f"{value:.{decimals or _decimals(value)}f}"
+
+
+def _value(value: Value, decimals: int) -> str:
+    if value is None:
+        return "none"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int | float):
+        return _number(value, decimals)
+    return value if value else '""'
+
+
+def _label(change: Change) -> str:
+    if change.scope == "pipe":
+        return change.owner
+    if change.scope == "group":
+        return f"group {change.owner}"
+    return "instrument"
+
+
+def _row(change: Change) -> tuple[str, str, str, str]:
+    if change.status == "added":
+        return _label(change), "added", str(change.new), ""
+    if change.status == "removed":
+        return _label(change), "removed", str(change.old), ""
+    decimals = _decimals(change.old, change.new)
+    values = f"{_value(change.old, decimals)} -> {_value(change.new, decimals)}"
+    delta = ""
+    if change.delta is not None:
+        digits = 2 if change.unit in ("mm", "cents") else decimals
+        amount = f"{change.delta:+.{digits}f}"
+        delta = f"({amount} {change.unit})" if change.unit else f"({amount})"
+    return _label(change), change.field, values, delta
+
+
+def _plural(count: int, word: str) -> str:
+    return f"{count} {word}" + ("" if count == 1 else "s")
+
+
+def summary(changes: list[Change]) -> str:
+    """One line: ``3 pipes changed, 1 added, 0 removed`` (and groups or settings, if any)."""
+
+    def owners(scope: str, status: str) -> int:
+        return len({c.owner for c in changes if c.scope == scope and c.status == status})
+
+    text = (f"{_plural(owners('pipe', 'changed'), 'pipe')} changed, "
+            f"{owners('pipe', 'added')} added, {owners('pipe', 'removed')} removed")
+    for status in ("changed", "added", "removed"):
+        count = owners("group", status)
+        if count:
+            text += f"; {_plural(count, 'group')} {status}"
+    if any(c.scope == "instrument" for c in changes):
+        text += "; instrument settings changed"
+    return text
+
+
+def render(changes: list[Change]) -> str:
+    """The report: one line a change in aligned columns, a blank line between pipes, then the
+    summary; ``no changes`` when the list is empty."""
+    if not changes:
+        return "no changes\n"
+    rows = [_row(c) for c in changes]
+    # Added and removed lines carry a summary in the values column: they set no width.
+    aligned = [row for row, c in zip(rows, changes, strict=True) if c.status == "changed"]
+    widths = [max(len(row[i]) for row in rows) for i in range(2)]
+    widths.append(max((len(row[2]) for row in aligned), default=0))
+    lines: list[str] = []
+    previous: tuple[str, str] | None = None
+    for change, row in zip(changes, rows, strict=True):
+        owner = (change.scope, change.owner)
+        if previous is not None and owner != previous:
+            lines.append("")
+        previous = owner
+        cells = [row[i].ljust(widths[i]) for i in range(3)] + [row[3]]
+        lines.append("  ".join(cells).rstrip())
+    lines.append("")
+    lines.append(summary(changes))
+    return "\n".join(lines) + "\n"
+
+
+def run_diff(old_arg: str, new_arg: str, cwd: Path) -> tuple[int, str]:
+    """Resolve both specs and report: (0, "no changes") or (1, the report).
+
+    Raises ``DiffInputError`` when an argument cannot be read and ``SpecError`` when a spec
+    is wrong; the command line turns both into exit code 2, as ``diff`` does on trouble.
+    """
+    from compiler.resolve.resolver import resolve
+    from compiler.spec import load_spec
+
+    old_bytes, old_name = read_spec_arg(old_arg, cwd)
+    new_bytes, new_name = read_spec_arg(new_arg, cwd)
+    old = resolve(load_spec(old_bytes, old_name))
+    new = resolve(load_spec(new_bytes, new_name))
+    changes = compare(old, new)
+    return (EXIT_CHANGED if changes else EXIT_SAME), render(changes)

@@ -1,0 +1,278 @@
+"""`boresmith diff`: resolved changes between two specs, read from files or git revisions."""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from compiler.diff import Change, DiffInputError, compare, read_spec_arg, render, run_diff
+from compiler.resolve.model import Resolved
+from compiler.resolve.resolver import resolve
+from compiler.spec import load_spec
+
+ROOT = Path(__file__).resolve().parents[1]
+ORGAN = ROOT / "specs_examples" / "house-organ-principal.yaml"
+WHISTLE = ROOT / "specs_examples" / "duct-flute-d.yaml"
+
+needs_git = pytest.mark.skipif(shutil.which("git") is None, reason="git is not installed")
+
+
+def _edit(path: Path, old: str, new: str) -> str:
+    text = path.read_text(encoding="utf-8")
+    assert text.count(old) == 1, f"{path.name} no longer has exactly one `{old}`"
+    return text.replace(old, new)
+
+
+def _resolve(text: str, name: str = "spec.yaml") -> Resolved:
+    return resolve(load_spec(text, name))
+
+
+def _by(changes: list[Change], scope: str, field: str) -> dict[str, Change]:
+    return {c.owner: c for c in changes if c.scope == scope and c.field == field}
+
+
+def _number(value: object) -> float:
+    assert isinstance(value, int | float) and not isinstance(value, bool)
+    return float(value)
+
+
+# --- a warmer room -----------------------------------------------------------------------------
+
+
+def test_warmer_room_lengthens_every_pipe_in_proportion_to_the_speed_of_sound() -> None:
+    old = _resolve(ORGAN.read_text(encoding="utf-8"))
+    new = _resolve(_edit(ORGAN, "temperature: 18 C", "temperature: 25 C"))
+    changes = compare(old, new)
+
+    air = _by(changes, "group", "air.temperature_c")["principal-4"]
+    assert (air.old, air.new, air.delta, air.unit) == (18.0, 25.0, 7.0, "C")
+    speed = _by(changes, "group", "air.speed_m_s")["principal-4"]
+    ratio = _number(speed.new) / _number(speed.old)
+    # Ideal gas: c ∝ sqrt(T) (REFERENCES §1b; Kinsler et al., Fundamentals of Acoustics, 2000,
+    # §5.6). Moist air warms a little faster (more water vapour at the same 55 % RH, Cramer
+    # 1993), so the ratio sits just above the ideal-gas one.
+    ideal = math.sqrt((25 + 273.15) / (18 + 273.15))
+    assert ideal < ratio < ideal + 0.002
+
+    cut = _by(changes, "pipe", "cut_length_mm")
+    speaking = _by(changes, "pipe", "speaking_length_mm")
+    acoustic = _by(changes, "pipe", "acoustic_length_mm")
+    pitch = _by(changes, "pipe", "predicted_hz")
+    assert set(cut) == {p.id for p in old.pipes}, "every pipe must be cut longer"
+    assert not _by(changes, "pipe", "target_hz"), "the targets do not depend on the air"
+    assert not _by(changes, "pipe", "end_correction_mm"), "end corrections are geometry only"
+    for pipe_id, change in cut.items():
+        assert change.delta_mm is not None and change.delta_mm > 0
+        # Open pipe: f = c / (2 L_eff) (Fletcher & Rossing, The Physics of Musical
+        # Instruments, 1998, §8.2), so L_eff scales with c at the same pitch.
+        old_l, new_l = _number(acoustic[pipe_id].old), _number(acoustic[pipe_id].new)
+        f_old = _number(pitch[pipe_id].old) if pipe_id in pitch else 1.0
+        f_new = _number(pitch[pipe_id].new) if pipe_id in pitch else 1.0
+        assert new_l / old_l == pytest.approx(ratio * f_old / f_new, rel=3e-4)
+        assert 0.011 < new_l / old_l - 1 < 0.015
+        # The end corrections stay, so the speaking length takes all of the growth and the
+        # 3 % tuning allowance grows with it (each rounded to the spec's 0.1 mm precision).
+        grown = speaking[pipe_id].delta_mm
+        assert grown is not None
+        assert grown == pytest.approx(acoustic[pipe_id].delta_mm, abs=0.011)
+        assert change.delta_mm == pytest.approx(1.03 * grown, abs=0.11)
+    # Lengths are re-solved for the new air: pitch moves only by the 0.1 mm rounding.
+    slope = {p.id: abs(p.cents_per_mm) for p in old.pipes}
+    for pipe_id, change in pitch.items():
+        assert change.delta_cents is not None
+        assert abs(change.delta_cents) <= 0.1 * slope[pipe_id] + 0.05
+
+    text = render(changes)
+    c3 = cut["principal-4-C3"]
+    line = (rf"^principal-4-C3 +cut_length_mm +{_number(c3.old):.2f} -> {_number(c3.new):.2f}"
+            rf" +\(\+{c3.delta_mm:.2f} mm\)$")
+    assert re.search(line, text, re.MULTILINE), text[:400]
+    assert text.rstrip().endswith(f"{len(old.pipes)} pipes changed, 0 added, 0 removed; "
+                                  "1 group changed")
+
+
+def test_air_change_is_reported_with_cramers_speeds() -> None:
+    base = _edit(ORGAN, "humidity: 55 %", "humidity: 50 %")
+    old = _resolve(base.replace("temperature: 18 C", "temperature: 20 C"))
+    new = _resolve(base.replace("temperature: 18 C", "temperature: 25 C"))
+    speed = _by(compare(old, new), "group", "air.speed_m_s")["principal-4"]
+    # Cramer (1993) at 101.325 kPa, 50 % RH, 400 ppm CO2 (REFERENCES §1c check values).
+    assert _number(speed.old) == pytest.approx(343.987, abs=2e-3)
+    assert _number(speed.new) == pytest.approx(347.127, abs=2e-3)
+    assert speed.unit == "m/s"
+
+
+def test_cooler_flute_moves_every_hole_toward_the_head() -> None:
+    old = _resolve(WHISTLE.read_text(encoding="utf-8"))
+    new = _resolve(_edit(WHISTLE, "temperature: 30 C", "temperature: 20 C"))
+    changes = compare(old, new)
+    speed = _by(changes, "group", "air.speed_m_s")["whistle-d"]
+    ratio = _number(speed.new) / _number(speed.old)
+    tube = _by(changes, "pipe", "cut_length_mm")["whistle-d"]
+    # Every wavelength scales with c at fixed pitches (Fletcher & Rossing 1998, §4.4); the
+    # fixed head, wall and drill sizes keep it from being exact.
+    assert _number(tube.new) / _number(tube.old) == pytest.approx(ratio, rel=0.01)
+    holes = {c.field: c for c in changes if c.field.startswith("holes[")}
+    for number in range(1, len(old.pipes[0].holes) + 1):
+        moved = holes[f"holes[{number}].position_from_top_mm"]
+        assert moved.delta_mm is not None and moved.delta_mm < 0
+
+
+# --- the comparison itself ---------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def organ() -> Resolved:
+    return _resolve(ORGAN.read_text(encoding="utf-8"))
+
+
+@pytest.fixture(scope="module")
+def whistle() -> Resolved:
+    return _resolve(WHISTLE.read_text(encoding="utf-8"))
+
+
+def _with_pipe(resolved: Resolved, index: int, **fields: object) -> Resolved:
+    pipes = list(resolved.pipes)
+    pipes[index] = dataclasses.replace(pipes[index], **fields)  # type: ignore[arg-type]
+    return dataclasses.replace(resolved, pipes=tuple(pipes))
+
+
+def test_identical_models_have_no_changes(organ: Resolved) -> None:
+    assert compare(organ, organ) == []
+    assert render([]) == "no changes\n"
+
+
+def test_differences_below_the_json_rounding_are_ignored(organ: Resolved) -> None:
+    pipe = organ.pipes[5]
+    shown = round(pipe.cut_length_m * 1000, 2)  # resolved.json keeps 0.01 mm
+    base = _with_pipe(organ, 5, cut_length_m=shown / 1000)
+    hidden = _with_pipe(organ, 5, cut_length_m=(shown + 0.001) / 1000)
+    assert compare(base, hidden) == []
+    visible = _with_pipe(organ, 5, cut_length_m=(shown + 0.01) / 1000)
+    [change] = compare(base, visible)
+    assert (change.owner, change.field, change.unit) == (pipe.id, "cut_length_mm", "mm")
+    assert change.delta_mm == pytest.approx(0.01, abs=1e-9)
+
+
+def test_pitch_changes_are_in_cents(organ: Resolved) -> None:
+    pipe = organ.pipes[0]
+    sharper = _with_pipe(organ, 0, predicted_hz=pipe.predicted_hz * 2 ** (5 / 1200))
+    [change] = [c for c in compare(organ, sharper) if c.field == "predicted_hz"]
+    # 1200·log2(f2/f1) (Ellis 1885); the rounding to 0.01 Hz costs up to 0.13 cent at 131 Hz.
+    assert change.delta_cents == pytest.approx(5.0, abs=0.15)
+    assert change.delta_mm is None
+    assert f"(+{change.delta_cents:.2f} cents)" in render([change])
+
+
+def test_pipes_added_and_removed(organ: Resolved) -> None:
+    fewer = dataclasses.replace(organ, pipes=organ.pipes[:-1])
+    [removed] = compare(organ, fewer)
+    assert (removed.status, removed.owner) == ("removed", organ.pipes[-1].id)
+    assert render([removed]).rstrip().endswith("0 pipes changed, 0 added, 1 removed")
+    [added] = compare(fewer, organ)
+    assert (added.status, added.owner) == ("added", organ.pipes[-1].id)
+    assert "1 added" in render([added])
+
+
+def test_holes_are_matched_by_number_and_fingerings_by_note_and_register(
+        whistle: Resolved) -> None:
+    pipe = whistle.pipes[0]
+    holes = list(pipe.holes)
+    third = next(i for i, h in enumerate(holes) if h.number == 3)
+    holes[third] = dataclasses.replace(holes[third], diameter_m=holes[third].diameter_m + 5e-4)
+    fingerings = list(pipe.fingerings)
+    last = len(fingerings) - 1
+    fingerings[last] = dataclasses.replace(fingerings[last],
+                                           predicted_hz=fingerings[last].predicted_hz * 1.01)
+    changed = _with_pipe(whistle, 0, holes=tuple(holes), fingerings=tuple(fingerings))
+    found = {c.field: c for c in compare(whistle, changed)}
+    f = fingerings[last]
+    assert set(found) == {"holes[3].diameter_mm", f"fingerings[{f.note} r{f.register}]"
+                          ".predicted_hz"}
+    assert found["holes[3].diameter_mm"].delta_mm == pytest.approx(0.5, abs=0.011)
+    # 1200·log2(1.01) = 17.23 cents (Ellis 1885 definition), less the 0.01 Hz rounding.
+    cents = found[f"fingerings[{f.note} r{f.register}].predicted_hz"].delta_cents
+    assert cents == pytest.approx(1200 * math.log2(1.01), abs=0.05)
+
+
+# --- reading files and revisions --------------------------------------------------------------
+
+
+def test_identical_files_exit_zero(tmp_path: Path) -> None:
+    (tmp_path / "a.yaml").write_bytes(ORGAN.read_bytes())
+    (tmp_path / "b.yaml").write_bytes(ORGAN.read_bytes())
+    assert run_diff("a.yaml", "b.yaml", tmp_path) == (0, "no changes\n")
+
+
+def test_changed_files_exit_one(tmp_path: Path) -> None:
+    (tmp_path / "a.yaml").write_bytes(ORGAN.read_bytes())
+    (tmp_path / "b.yaml").write_text(_edit(ORGAN, "a4: 440 Hz", "a4: 442 Hz"), encoding="utf-8")
+    code, text = run_diff("a.yaml", str(tmp_path / "b.yaml"), tmp_path)
+    assert code == 1
+    assert "tuning.a4_hz" in text and "target_hz" in text
+
+
+def test_a_path_with_an_at_sign_that_exists_is_a_plain_file(tmp_path: Path) -> None:
+    (tmp_path / "organ@2.yaml").write_bytes(b"boresmith: 1\n")
+    assert read_spec_arg("organ@2.yaml", tmp_path) == (b"boresmith: 1\n", "organ@2.yaml")
+
+
+def test_missing_file(tmp_path: Path) -> None:
+    with pytest.raises(DiffInputError, match="no such file"):
+        read_spec_arg("nothing.yaml", tmp_path)
+
+
+def _git(repo: Path, *args: str) -> None:
+    subprocess.run(["git", "-c", "user.name=Test", "-c", "user.email=test@example.invalid",
+                    "-c", "commit.gpgsign=false", "-C", str(repo), *args],
+                   check=True, capture_output=True)
+
+
+@pytest.fixture()
+def repo(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    monkeypatch.setenv("GIT_CEILING_DIRECTORIES", str(tmp_path.parent))
+    _git(tmp_path, "init", "-q")
+    (tmp_path / "organ").mkdir()
+    (tmp_path / "organ" / "spec.yaml").write_bytes(ORGAN.read_bytes())
+    _git(tmp_path, "add", "organ/spec.yaml")
+    _git(tmp_path, "commit", "-q", "-m", "first")
+    return tmp_path
+
+
+@needs_git
+def test_git_revision_against_the_working_file(repo: Path) -> None:
+    spec = repo / "organ" / "spec.yaml"
+    assert read_spec_arg("organ/spec.yaml@HEAD", repo) == (ORGAN.read_bytes(),
+                                                           "organ/spec.yaml@HEAD")
+    assert run_diff("organ/spec.yaml@HEAD", "organ/spec.yaml", repo) == (0, "no changes\n")
+    spec.write_text(_edit(ORGAN, "temperature: 18 C", "temperature: 25 C"), encoding="utf-8")
+    # From inside the folder: the path is relative to the working folder, not the repo root.
+    code, text = run_diff("spec.yaml@HEAD", "spec.yaml", repo / "organ")
+    assert code == 1
+    assert "air.temperature_c" in text and "cut_length_mm" in text
+    _git(repo, "commit", "-q", "-a", "-m", "warmer")
+    assert run_diff("spec.yaml@HEAD~1", "spec.yaml@HEAD", repo / "organ")[1] == text
+
+
+@needs_git
+def test_git_errors(repo: Path, tmp_path_factory: pytest.TempPathFactory) -> None:
+    with pytest.raises(DiffInputError, match="unknown revision `no-such-branch`"):
+        read_spec_arg("organ/spec.yaml@no-such-branch", repo)
+    with pytest.raises(DiffInputError, match="unknown revision"):
+        read_spec_arg("organ/spec.yaml@--output=x", repo)
+    with pytest.raises(DiffInputError, match="does not exist at revision"):
+        read_spec_arg("organ/other.yaml@HEAD", repo)
+    with pytest.raises(DiffInputError, match="not a file at revision"):
+        read_spec_arg("organ@HEAD", repo)
+    with pytest.raises(DiffInputError, match="no revision after"):
+        read_spec_arg("organ/spec.yaml@", repo)
+    elsewhere = tmp_path_factory.mktemp("plain")
+    (elsewhere / "spec.yaml").write_bytes(ORGAN.read_bytes())
+    with pytest.raises(DiffInputError, match="not in a git repository"):
+        read_spec_arg("spec.yaml@HEAD", elsewhere)
