@@ -4,12 +4,18 @@ load -> validate -> normalise (``compiler.spec``) -> resolve -> lay out -> emit.
 Every backend writes into a fresh temporary folder beside the target; only when all of
 them succeeded does that folder replace ``OUT/<instrument-slug>/``. A failed or killed
 build leaves the previous output as it was.
+
+Rebuilds are incremental: a build whose spec, options and program are unchanged, and
+whose output is intact, is skipped at once; otherwise groups, DXF files and the PDF whose
+inputs did not change come from the cache (``compiler.cache``). Large builds render the
+PDF in a second process while the main one writes the rest.
 """
 
 from __future__ import annotations
 
 import hashlib
 import json
+import multiprocessing
 import os
 import shutil
 import tempfile
@@ -17,17 +23,25 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 from types import ModuleType
+from typing import Any
 
+from compiler.cache import FOLDER as CACHE_FOLDER
+from compiler.cache import Cache, key_of, memo
 from compiler.errors import Problem, SpecError
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
+from compiler.spec.model import Spec
 
 Progress = Callable[[str], None]
+PARALLEL_MIN_PIPES = 100
+"""From this many pipes on, the PDF is rendered in a second process (2 cores)."""
+LAST_BUILDS = "last-builds.json"
 
 
 def backends() -> dict[str, ModuleType]:
-    """Backend name -> module with ``NAME`` and ``write(resolved, parts, options, out_dir)``."""
+    """Backend name -> module with ``NAME`` and ``write(resolved, parts, options, out_dir,
+    cache=None) -> list[Path]``."""
     from compiler.emit import cutlist_csv, dxf, pdf, resolved_json
 
     return {m.NAME: m for m in (resolved_json, dxf, pdf, cutlist_csv)}
@@ -39,17 +53,28 @@ class Compiled:
     parts: Parts
 
 
+def _quiet(_message: str) -> None:
+    return None
+
+
 def compile_text(text: str | bytes, filename: str, options: BuildOptions,
-                 progress: Progress | None = None) -> Compiled:
-    """Pure core: spec text -> resolved model and parts (no files written)."""
-    from compiler.geometry.layout import layout
-    from compiler.resolve.resolver import resolve
+                 progress: Progress | None = None, cache: Cache | None = None) -> Compiled:
+    """Pure core: spec text -> resolved model and parts (no files written but the cache)."""
     from compiler.spec import load_spec
 
-    say = progress or (lambda _msg: None)
-    spec = load_spec(text, filename)
-    say(f"resolving {sum(len(r.notes) for r in spec.ranks) + sum(len(t.notes) for t in spec.tube_sets) + len(spec.flutes)} pipes")  # noqa: E501
-    resolved = resolve(spec)
+    return compile_spec(load_spec(text, filename), options, progress, cache)
+
+
+def compile_spec(spec: Spec, options: BuildOptions, progress: Progress | None = None,
+                 cache: Cache | None = None) -> Compiled:
+    """Resolve and lay out a loaded spec."""
+    from compiler.geometry.layout import layout
+    from compiler.resolve.resolver import resolve
+
+    say = progress or _quiet
+    count = sum(len(r.notes) for r in spec.ranks) + sum(len(t.notes) for t in spec.tube_sets)
+    say(f"resolving {count + len(spec.flutes)} pipes")
+    resolved = resolve(spec, memo(cache, "group"))
     if options.strict and resolved.warnings:
         raise SpecError([Problem(n.position, n.message, "warnings are errors with --strict")
                          for n in resolved.warnings])
@@ -62,19 +87,74 @@ def _sha256(path: Path) -> str:
     return hashlib.sha256(path.read_bytes()).hexdigest()
 
 
+def _run_backend(name: str, compiled: Compiled, options: BuildOptions, folder: Path,
+                 cache_folder: Path | None) -> tuple[list[Path], set[str]]:
+    """One backend, in this process or a worker; returns its files and the cache keys used."""
+    cache = Cache(cache_folder)
+    written = backends()[name].write(compiled.resolved, compiled.parts, options, folder,
+                                     cache=cache)
+    return list(written), cache.used
+
+
+def _pdf_worker(send: Any, compiled: Compiled, options: BuildOptions, folder: Path,
+                cache_folder: Path | None) -> None:
+    try:
+        files, used = _run_backend("pdf", compiled, options, folder, cache_folder)
+        send.send(("ok", files, used))
+    except BaseException as exc:  # reported by the parent, which raises
+        send.send((f"{type(exc).__name__}: {exc}", [], set()))
+    finally:
+        send.close()
+
+
 def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
-             progress: Progress | None = None) -> list[Path]:
+             progress: Progress | None = None, cache: Cache | None = None,
+             build_key: str = "") -> list[Path]:
     """Run every backend into ``folder``, then write ``manifest.json``."""
-    say = progress or (lambda _msg: None)
+    say = progress or _quiet
+    store = cache or Cache(None)
+    names = list(backends())
     written: list[Path] = []
-    for name, backend in backends().items():
-        say(f"writing {name}")
-        written.extend(backend.write(compiled.resolved, compiled.parts, options, folder))
+    worker = None
+    parallel = (len(compiled.resolved.pipes) >= PARALLEL_MIN_PIPES and (os.cpu_count() or 1) > 1
+                and "fork" in multiprocessing.get_all_start_methods())
+    if parallel:
+        # A forked worker starts with the compiled model already in memory (nothing to
+        # pickle); it sends back only its file names and the cache entries it used.
+        context = multiprocessing.get_context("fork")
+        receive, send = context.Pipe(duplex=False)
+        worker = context.Process(target=_pdf_worker,
+                                 args=(send, compiled, options, folder, store.folder))
+        worker.start()
+        send.close()
+        names.remove("pdf")
+    try:
+        for name in names:
+            say(f"writing {name}")
+            files, used = _run_backend(name, compiled, options, folder, store.folder)
+            written += files
+            store.used |= used
+        if worker is not None:
+            say("waiting for the pdf")
+            try:
+                status, files, used = receive.recv()
+            except EOFError:
+                status, files, used = "died", [], set()
+            worker.join()
+            if status != "ok":
+                raise RuntimeError(f"the PDF worker failed: {status}")
+            written += files
+            store.used |= used
+    finally:
+        if worker is not None and worker.is_alive():
+            worker.kill()
+            worker.join()
     files = sorted(p.relative_to(folder).as_posix() for p in written)
     manifest = {
         "instrument": compiled.resolved.instrument,
         "spec_file": compiled.resolved.spec_file,
         "spec_sha256": compiled.resolved.spec_sha256,
+        "build_key": build_key,
         "files": [{"path": f, "sha256": _sha256(folder / f), "bytes": (folder / f).stat().st_size}
                   for f in files],
     }
@@ -91,33 +171,82 @@ def _inside(base: Path, target: Path) -> bool:
     return True
 
 
+def _up_to_date(out_root: Path, build_key: str) -> Path | None:
+    """The output folder of an identical earlier build, if it is still intact."""
+    try:
+        last = json.loads((out_root / CACHE_FOLDER / LAST_BUILDS).read_text(encoding="utf-8"))
+        target = out_root / str(last[build_key])
+        manifest = json.loads((target / "manifest.json").read_text(encoding="utf-8"))
+    except (OSError, ValueError, KeyError, TypeError):
+        return None
+    if manifest.get("build_key") != build_key or not _inside(out_root, target):
+        return None
+    listed = {f["path"] for f in manifest["files"]} | {"manifest.json"}
+    present = {p.relative_to(target).as_posix() for p in target.rglob("*") if p.is_file()}
+    if listed != present:
+        return None
+    for entry in manifest["files"]:
+        if _sha256(target / entry["path"]) != entry["sha256"]:
+            return None
+    return target
+
+
+def _remember(out_root: Path, build_key: str, slug: str) -> None:
+    path = out_root / CACHE_FOLDER / LAST_BUILDS
+    try:
+        last = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        last = {}
+    last = {k: v for k, v in last.items() if v != slug}
+    last[build_key] = slug
+    path.parent.mkdir(parents=True, exist_ok=True)
+    temp = path.with_suffix(".tmp")
+    temp.write_text(json.dumps(last, indent=2, sort_keys=True) + "\n", encoding="utf-8")
+    os.replace(temp, path)
+
+
 def build(text: str | bytes, filename: str, out_root: Path, options: BuildOptions,
-          progress: Progress | None = None) -> Path:
+          progress: Progress | None = None, use_cache: bool = True) -> Path:
     """Compile and write ``out_root/<slug>/`` atomically; return that folder."""
-    compiled = compile_text(text, filename, options, progress)
+    say = progress or _quiet
+    data = text.encode("utf-8") if isinstance(text, str) else text
+    build_key = key_of("build", data, Path(filename).name,
+                       options.paper, options.dxf_version, options.part_files, options.strict)
+    if use_cache:
+        done = _up_to_date(out_root, build_key)
+        if done is not None:
+            say("up to date")
+            return done
+    from compiler.resolve.resolver import slug
+    from compiler.spec import load_spec
+
+    spec = load_spec(data, filename)
+    slug_name = slug(spec.instrument)
+    cache = Cache(out_root / CACHE_FOLDER / slug_name if use_cache else None)
+    compiled = compile_spec(spec, options, progress, cache)
     out_root.mkdir(parents=True, exist_ok=True)
-    target = out_root / compiled.resolved.slug
+    target = out_root / slug_name
     if not _inside(out_root, target):
         raise RuntimeError(f"refusing to write outside {out_root}: {target}")
-    for stale in sorted(out_root.glob(f".{compiled.resolved.slug}.*")):
+    for stale in sorted(out_root.glob(f".{slug_name}.*")):
         # Left by a build that was killed; if it died while swapping folders, the previous
         # output sits in ``.<slug>.old-*/previous``: put it back before cleaning up.
         previous = stale / "previous"
         if previous.is_dir() and not target.exists():
             os.replace(previous, target)
         shutil.rmtree(stale, ignore_errors=True)
-    work = Path(tempfile.mkdtemp(prefix=f".{compiled.resolved.slug}.building-", dir=out_root))
+    work = Path(tempfile.mkdtemp(prefix=f".{slug_name}.building-", dir=out_root))
     umask = os.umask(0)
     os.umask(umask)
     os.chmod(work, 0o777 & ~umask)  # mkdtemp makes it private; the output is the user's
     try:
-        written = emit_all(compiled, options, work, progress)
+        written = emit_all(compiled, options, work, progress, cache, build_key)
         for path in written:
             if not _inside(work, path):
                 raise RuntimeError(f"a backend wrote outside the build folder: {path}")
         old = None
         if target.exists():
-            old = Path(tempfile.mkdtemp(prefix=f".{compiled.resolved.slug}.old-", dir=out_root))
+            old = Path(tempfile.mkdtemp(prefix=f".{slug_name}.old-", dir=out_root))
             os.replace(target, old / "previous")
         os.replace(work, target)
         if old is not None:
@@ -125,4 +254,7 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     except BaseException:
         shutil.rmtree(work, ignore_errors=True)
         raise
+    if use_cache:
+        cache.prune()
+        _remember(out_root, build_key, slug_name)
     return target

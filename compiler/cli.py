@@ -100,6 +100,31 @@ def cmd_build(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def cmd_diff(args: argparse.Namespace) -> int:
+    from compiler.diff import DiffInputError, run_diff
+
+    try:
+        code, text = run_diff(args.old, args.new, Path.cwd())
+    except DiffInputError as exc:
+        raise UsageError(str(exc)) from None
+    except SpecError as exc:  # as diff does: 1 means "they differ", so trouble is 2
+        _report(exc.problems)
+        return EXIT_USAGE
+    sys.stdout.write(text)
+    return code
+
+
+def cmd_new(args: argparse.Namespace) -> int:
+    from compiler.starters import run_new
+
+    code, text = run_new(args.family, Path(args.file) if args.file else None)
+    if code == EXIT_OK and args.file is None:
+        sys.stdout.write(text)
+    else:
+        print(f"boresmith: {'error: ' if code else ''}{text}", file=sys.stderr)
+    return code
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="boresmith",
@@ -135,6 +160,21 @@ def build_parser() -> argparse.ArgumentParser:
     build.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                        help="show progress (default: when stderr is a terminal)")
     build.set_defaults(run=cmd_build)
+
+    diff = sub.add_parser("diff", help="resolve two specs and show what changed, pipe by pipe, "
+                          "in mm and cents; FILE@REV reads a file as committed in git; "
+                          "exit 0 same, 1 changed, 2 trouble")
+    diff.add_argument("old", metavar="OLD", help="a spec file, or FILE@REV (e.g. rank.yaml@HEAD)")
+    diff.add_argument("new", metavar="NEW", help="a spec file, or FILE@REV")
+    diff.set_defaults(run=cmd_diff)
+
+    from compiler.starters import FAMILIES  # a light module: no numpy
+
+    new = sub.add_parser("new", help="print (or write to FILE) a commented starter spec")
+    new.add_argument("family", metavar="FAMILY", help="one of: " + ", ".join(FAMILIES))
+    new.add_argument("file", nargs="?", metavar="FILE",
+                     help="write the starter here (never over an existing file)")
+    new.set_defaults(run=cmd_new)
     return parser
 
 

@@ -242,12 +242,11 @@ def _leaves(old: Any, new: Any, path: str, name: str) -> Iterator[tuple[str, str
 
 
 _FIRST = ("cut_length_mm", "speaking_length_mm", "predicted_hz", "target_hz", "error_cents")
-"""What a maker looks for first; the other fields follow in alphabetical order."""
+"""What a maker looks for first; the other fields keep their order (a stable sort)."""
 
 
-def _field_order(change: Change) -> tuple[int, str]:
-    first = change.field in _FIRST
-    return (_FIRST.index(change.field) if first else len(_FIRST)), change.field
+def _field_order(change: Change) -> int:
+    return _FIRST.index(change.field) if change.field in _FIRST else len(_FIRST)
 
 
 def _changes(scope: str, owner: str, old: Any, new: Any) -> list[Change]:
@@ -287,7 +286,8 @@ def compare(old: Resolved, new: Resolved) -> list[Change]:
     """Every difference from ``old`` to ``new``: instrument settings, groups, then pipes.
 
     Pipes keep the new spec's order (removed ones follow); within a pipe, cut length,
-    speaking length, pitch and error come first, then the other fields by path.
+    speaking length, pitch and error come first, then the other fields: keys in
+    alphabetical order, holes by number, fingerings in the order of the old table.
     """
     a, b = to_dict(old), to_dict(new)
     found = _changes("instrument", "", {k: a[k] for k in _INSTRUMENT_KEYS},

@@ -55,8 +55,8 @@ def test_warmer_room_lengthens_every_pipe_in_proportion_to_the_speed_of_sound() 
     speed = _by(changes, "group", "air.speed_m_s")["principal-4"]
     ratio = _number(speed.new) / _number(speed.old)
     # Ideal gas: c ∝ sqrt(T) (REFERENCES §1b; Kinsler et al., Fundamentals of Acoustics, 2000,
-    # §5.6). Moist air warms a little faster (more water vapour at the same 55 % RH, Cramer
-    # 1993), so the ratio sits just above the ideal-gas one.
+    # ch. 5, section from memory). Moist air gains a little more (more water vapour at the
+    # same 55 % RH, Cramer 1993), so the ratio sits just above the ideal-gas one.
     ideal = math.sqrt((25 + 273.15) / (18 + 273.15))
     assert ideal < ratio < ideal + 0.002
 
@@ -70,7 +70,7 @@ def test_warmer_room_lengthens_every_pipe_in_proportion_to_the_speed_of_sound() 
     for pipe_id, change in cut.items():
         assert change.delta_mm is not None and change.delta_mm > 0
         # Open pipe: f = c / (2 L_eff) (Fletcher & Rossing, The Physics of Musical
-        # Instruments, 1998, §8.2), so L_eff scales with c at the same pitch.
+        # Instruments, 1998, ch. 8, section from memory), so L_eff scales with c at the same pitch.
         old_l, new_l = _number(acoustic[pipe_id].old), _number(acoustic[pipe_id].new)
         f_old = _number(pitch[pipe_id].old) if pipe_id in pitch else 1.0
         f_new = _number(pitch[pipe_id].new) if pipe_id in pitch else 1.0
@@ -115,8 +115,9 @@ def test_cooler_flute_moves_every_hole_toward_the_head() -> None:
     speed = _by(changes, "group", "air.speed_m_s")["whistle-d"]
     ratio = _number(speed.new) / _number(speed.old)
     tube = _by(changes, "pipe", "cut_length_mm")["whistle-d"]
-    # Every wavelength scales with c at fixed pitches (Fletcher & Rossing 1998, §4.4); the
-    # fixed head, wall and drill sizes keep it from being exact.
+    # At fixed pitches every wavelength λ = c/f scales with c, and with it the bore's layout
+    # (Fletcher & Rossing 1998, ch. 15, from memory); the fixed head, wall and drill sizes
+    # keep it from being exact.
     assert _number(tube.new) / _number(tube.old) == pytest.approx(ratio, rel=0.01)
     holes = {c.field: c for c in changes if c.field.startswith("holes[")}
     for number in range(1, len(old.pipes[0].holes) + 1):

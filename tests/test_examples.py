@@ -52,4 +52,33 @@ def test_failed_build_keeps_the_previous_output(tmp_path: Path) -> None:
     with pytest.raises(Exception, match="no listed stock"):
         build(broken, str(spec), tmp_path, BuildOptions())
     assert _tree(folder) == before
-    assert [p.name for p in tmp_path.iterdir()] == [folder.name]
+    assert sorted(p.name for p in tmp_path.iterdir()) == [".boresmith-cache", folder.name]
+
+
+def test_unchanged_rebuild_is_skipped_and_a_damaged_output_is_rebuilt(tmp_path: Path) -> None:
+    spec = next(p for p in EXAMPLES if p.stem == "chime-tubes")
+    messages: list[str] = []
+    folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    before = _tree(folder)
+    messages.clear()
+    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    assert messages == ["up to date"]
+    (folder / "cut-list.csv").write_text("damaged")
+    messages.clear()
+    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    assert "up to date" not in messages
+    assert _tree(folder) == before
+    # other options are another build
+    messages.clear()
+    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(paper="letter"), messages.append)
+    assert "up to date" not in messages
+
+
+def test_cached_rebuild_gives_the_same_bytes_as_a_cold_one(tmp_path: Path) -> None:
+    spec = next(p for p in EXAMPLES if p.stem == "stopped-wood-gedackt")
+    build(spec.read_bytes(), str(spec), tmp_path / "warm", BuildOptions())
+    changed = spec.read_text().replace("travel: 25 mm", "travel: 30 mm")
+    warm = _tree(build(changed, str(spec), tmp_path / "warm", BuildOptions()))
+    cold = _tree(build(changed, str(spec), tmp_path / "cold", BuildOptions(), use_cache=False))
+    assert warm == cold
+    assert not (tmp_path / "cold" / ".boresmith-cache").exists()

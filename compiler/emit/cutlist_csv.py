@@ -6,6 +6,7 @@ import csv
 import io
 from pathlib import Path
 
+from compiler.cache import Cache
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
@@ -37,7 +38,8 @@ def render(parts: Parts) -> str:
     return out.getvalue()
 
 
-def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path) -> list[Path]:
+def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path,
+          cache: Cache | None = None) -> list[Path]:
     path = out_dir / "cut-list.csv"
     path.write_text(render(parts), encoding="utf-8")
     return [path]

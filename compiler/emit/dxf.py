@@ -16,7 +16,7 @@ usual laser order: nothing moves until the outlines are cut). Closed paths are
 LWPOLYLINE with bulges (R2010) or closed POLYLINE with bulges (R12); circles are CIRCLE.
 
 Reproducible bytes: the drawing's timestamps are fixed (2000-01-01, zero editing time),
-its GUIDs derive from the spec's sha256 and the file name, handles are assigned in
+its GUIDs derive from the file's own content and name, handles are assigned in
 creation order, and coordinates are rounded to 1e-6 mm. ``$INSUNITS`` = 4 (millimetres)
 in R2010; R12 has no such header variable (it came with R2000), so R12 files are unitless
 and the cutter software must be told millimetres.
@@ -32,6 +32,7 @@ from collections import OrderedDict
 from ezdxf.document import Drawing
 from ezdxf.lldxf.tagwriter import TagWriter
 
+from compiler.cache import Cache, key_of
 from compiler.geometry.model import Circle, Entity, Part, Parts, Sheet, Text
 from compiler.geometry.paths import Box, bounds_of, placed
 from compiler.geometry.units import snap, snap_bulge
@@ -140,34 +141,35 @@ def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
 
 
 def write(resolved: Resolved, parts: Parts, options: BuildOptions,
-          out_dir: pathlib.Path) -> list[pathlib.Path]:
+          out_dir: pathlib.Path, cache: Cache | None = None) -> list[pathlib.Path]:
     """Write ``sheet-<n>-<material>.dxf`` for every nested sheet into ``out_dir``, and
     ``parts/<part id>.dxf`` for every part when part files are on (``options.part_files``,
-    else the spec's ``fabrication.part_files``). Returns the paths written, sorted."""
+    else the spec's ``fabrication.part_files``). Returns the paths written, sorted.
+
+    Each file's GUIDs derive from its own content and name, so an unchanged sheet gives the
+    same bytes (and comes from ``cache``) whatever else changed in the spec."""
     version = (options.dxf_version or resolved.fabrication.dxf_version).lower()
     if version not in VERSIONS:
         raise ValueError(f"unknown DXF version {version!r}; use one of {sorted(VERSIONS)}")
     part_files = (resolved.fabrication.part_files if options.part_files is None
                   else options.part_files)
+    store = cache or Cache(None)
     by_id = {p.id: p for p in parts.parts}
     out_dir.mkdir(parents=True, exist_ok=True)
-    written: list[pathlib.Path] = []
+    jobs: list[tuple[pathlib.Path, tuple[Entity, ...], Box]] = []
     for sheet in parts.sheets:
-        name = f"{sheet.id}.dxf"
-        data = render(sheet_entities(sheet, by_id), version,
-                      f"{resolved.spec_sha256}:{name}",
-                      (0.0, 0.0, sheet.length_mm, sheet.width_mm))
-        path = out_dir / name
-        path.write_bytes(data)
-        written.append(path)
+        jobs.append((out_dir / f"{sheet.id}.dxf", sheet_entities(sheet, by_id),
+                     (0.0, 0.0, sheet.length_mm, sheet.width_mm)))
     if part_files:
-        folder = out_dir / "parts"
-        folder.mkdir(exist_ok=True)
+        (out_dir / "parts").mkdir(exist_ok=True)
         for part in parts.parts:
-            name = f"{part.id}.dxf"
-            data = render(part.entities, version, f"{resolved.spec_sha256}:parts/{name}",
-                          bounds_of(part.entities))
-            path = folder / name
-            path.write_bytes(data)
-            written.append(path)
+            jobs.append((out_dir / "parts" / f"{part.id}.dxf", part.entities,
+                         bounds_of(part.entities)))
+    written: list[pathlib.Path] = []
+    for path, entities, limits in jobs:
+        name = path.relative_to(out_dir).as_posix()
+        key = key_of("dxf", name, version, limits, entities)
+        path.write_bytes(store.data("dxf", key,
+                                    lambda e=entities, k=key, b=limits: render(e, version, k, b)))
+        written.append(path)
     return sorted(written)

@@ -12,6 +12,7 @@ import json
 from pathlib import Path
 from typing import Any
 
+from compiler.cache import Cache
 from compiler.errors import Position
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
@@ -101,7 +102,8 @@ def dumps(resolved: Resolved) -> str:
     return json.dumps(to_dict(resolved), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
 
 
-def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path) -> list[Path]:
+def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path,
+          cache: Cache | None = None) -> list[Path]:
     path = out_dir / "resolved.json"
     path.write_text(dumps(resolved), encoding="utf-8")
     return [path]

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import re
 import unicodedata
+from collections.abc import Callable
+from typing import Any
 
 from compiler.resolve import flue, tubes
 from compiler.resolve.model import (
@@ -32,25 +34,31 @@ def _allowance_text(fab: spec_model.Fabrication) -> str:
     return f"{fab.allowance_m * 1000:g} mm"
 
 
-def resolve(spec: spec_model.Spec) -> Resolved:
-    """Resolve every rank, tube set and flute of ``spec``; raise ``SpecError`` if impossible."""
+Memo = Callable[[Any, Callable[[], Any]], Any]
+
+
+def _no_memo(_inputs: Any, make: Callable[[], Any]) -> Any:
+    return make()
+
+
+def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
+    """Resolve every rank, tube set and flute of ``spec``; raise ``SpecError`` if impossible.
+
+    ``memo(inputs, make)`` may return a stored result for the same inputs (the build's
+    cache); each group depends only on itself and the spec's shared blocks.
+    """
     from compiler.resolve import flutes  # numpy-heavy engine, loaded only when needed
 
+    shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)
+    work: list[tuple[Any, Callable[[], Any]]] = (
+        [(rank, lambda g=rank: flue.resolve_rank(g, spec)) for rank in spec.ranks]
+        + [(t, lambda g=t: tubes.resolve_tube_set(g, spec)) for t in spec.tube_sets]
+        + [(f, lambda g=f: flutes.resolve_flute(g, spec)) for f in spec.flutes])
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []
-    for rank in spec.ranks:
-        group, made, notes = flue.resolve_rank(rank, spec)
-        groups.append(group)
-        pipes.extend(made)
-        warnings.extend(notes)
-    for tube_set in spec.tube_sets:
-        group, made, notes = tubes.resolve_tube_set(tube_set, spec)
-        groups.append(group)
-        pipes.extend(made)
-        warnings.extend(notes)
-    for flute in spec.flutes:
-        group, made, notes = flutes.resolve_flute(flute, spec)
+    for subject, make in work:
+        group, made, notes = memo(("group", subject, shared), make)
         groups.append(group)
         pipes.extend(made)
         warnings.extend(notes)

@@ -16,6 +16,7 @@ from pathlib import Path
 
 from reportlab.pdfgen.canvas import Canvas
 
+from compiler.cache import Cache, key_of
 from compiler.emit.pdf import cautions, cover, cutlist, pipes, templates
 from compiler.emit.pdf.document import Page, draw_chrome
 from compiler.emit.pdf.style import frame_for, safe
@@ -79,8 +80,12 @@ def render(resolved: Resolved, parts: Parts, options: BuildOptions) -> bytes:
     return buffer.getvalue()
 
 
-def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path) -> list[Path]:
-    """Write ``out_dir/build-sheet.pdf``; returns [that path]."""
+def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path,
+          cache: Cache | None = None) -> list[Path]:
+    """Write ``out_dir/build-sheet.pdf``; returns [that path]. Every page shows the spec's
+    sha256, so the document is cached whole: reused only when nothing it shows changed."""
     path = out_dir / FILE_NAME
-    path.write_bytes(render(resolved, parts, options))
+    key = key_of("pdf", paper_of(resolved, options), resolved, parts)
+    store = cache or Cache(None)
+    path.write_bytes(store.data("pdf", key, lambda: render(resolved, parts, options)))
     return [path]

@@ -1,0 +1,97 @@
+"""`boresmith new`: commented starter specs, valid as written, one per family."""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+import yaml
+from jsonschema import Draft202012Validator
+
+from compiler.build import build
+from compiler.options import BuildOptions
+from compiler.resolve.resolver import resolve
+from compiler.spec import load_spec
+from compiler.starters import FAMILIES, run_new, starter
+
+ROOT = Path(__file__).resolve().parents[1]
+SCHEMA = json.loads((ROOT / "schemas" / "boresmith-spec.schema.json").read_text("utf-8"))
+
+# A line that sets one of the language's own keys (user-chosen names carry a digit or `-`).
+KEY_LINE = re.compile(r"^\s*(?:- )?([a-z_]+):")
+# An optional key shown commented out at its indentation: `    # key: value`, `    #   - {..}`.
+OPTIONAL_LINE = re.compile(r"^(\s+)# (\s*(?:- |[A-Za-z0-9_#]+:).*)$", re.MULTILINE)
+
+
+def _uncommented(text: str) -> str:
+    return OPTIONAL_LINE.sub(r"\1\2", text)
+
+
+def test_the_families_are_the_designs_six() -> None:
+    # DESIGN.md, "Instrument families"; the schema's family enums must offer each of them.
+    assert FAMILIES == ("open-flue", "stopped-flue", "stopped-tube", "open-tube", "duct-flute",
+                        "side-blown-flute")
+    offered = {f for group in ("ranks", "tube_sets", "flutes")
+               for f in SCHEMA["properties"][group]["items"]["properties"]["family"]["enum"]}
+    assert offered == set(FAMILIES)
+
+
+@pytest.mark.parametrize("family", FAMILIES)
+def test_starter_is_valid_as_written_and_resolves(family: str) -> None:
+    text = starter(family)
+    first = text.splitlines()[0]
+    assert first == f"# yaml-language-server: $schema={SCHEMA['$id']}"
+    assert SCHEMA["$id"].startswith("https://")  # absolute: the starter may go anywhere
+    # Checked by the general-purpose JSON Schema validator, not only by our loader.
+    Draft202012Validator(SCHEMA).validate(yaml.safe_load(text))
+    resolved = resolve(load_spec(text, f"{family}.yaml"))
+    assert [g.family for g in resolved.groups] == [family]
+    assert resolved.pipes and not resolved.warnings
+    assert all(abs(p.error_cents) < 1.0 for p in resolved.pipes)
+
+
+@pytest.mark.parametrize("family", FAMILIES)
+def test_optional_lines_are_valid_when_uncommented(family: str) -> None:
+    text = _uncommented(starter(family))
+    Draft202012Validator(SCHEMA).validate(yaml.safe_load(text))
+    resolve(load_spec(text, f"{family}.yaml"))
+
+
+@pytest.mark.parametrize("family", FAMILIES)
+def test_every_key_is_explained(family: str) -> None:
+    lines = starter(family).splitlines()
+    assert sum(line.startswith("#") for line in lines[:8]) >= 4, "a header saying what it is"
+    bare = [line for line in lines if KEY_LINE.match(line) and " # " not in line]
+    assert bare == []
+
+
+@pytest.mark.parametrize("family", FAMILIES)
+def test_starter_builds(family: str, tmp_path: Path) -> None:
+    folder = build(starter(family).encode(), f"{family}.yaml", tmp_path, BuildOptions(),
+                   lambda message: None)
+    assert (folder / "resolved.json").is_file() and (folder / "build-sheet.pdf").is_file()
+
+
+def test_run_new_to_stdout() -> None:
+    assert run_new("open-tube", None) == (0, starter("open-tube"))
+
+
+def test_run_new_writes_and_never_overwrites(tmp_path: Path) -> None:
+    target = tmp_path / "rank.yaml"
+    code, message = run_new("stopped-flue", target)
+    assert code == 0 and str(target) in message
+    assert target.read_text(encoding="utf-8") == starter("stopped-flue")
+    target.write_text("my own work\n", encoding="utf-8")
+    code, message = run_new("open-flue", target)
+    assert code == 2 and "already exists" in message
+    assert target.read_text(encoding="utf-8") == "my own work\n"
+
+
+def test_run_new_errors(tmp_path: Path) -> None:
+    code, message = run_new("krummhorn", None)
+    assert code == 2 and "krummhorn" in message
+    assert all(family in message for family in FAMILIES)
+    code, message = run_new("duct-flute", tmp_path / "no-such-folder" / "flute.yaml")
+    assert code == 2 and "does not exist" in message
