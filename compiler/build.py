@@ -79,7 +79,7 @@ def compile_spec(spec: Spec, options: BuildOptions, progress: Progress | None = 
         raise SpecError([Problem(n.position, n.message, "warnings are errors with --strict")
                          for n in resolved.warnings])
     say("laying out parts")
-    parts = layout(resolved, options)
+    parts = layout(resolved, options, memo(cache, "parts"))
     return Compiled(resolved, parts)
 
 

@@ -8,6 +8,9 @@ at once as one :class:`~compiler.errors.GeometryError`, each at the pipe's spec 
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from typing import Any
+
 from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.boards import board_drafts
 from compiler.geometry.drafts import Draft, finish
@@ -71,7 +74,42 @@ def _holders(resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:
     return drafts
 
 
-def layout(resolved: Resolved, options: BuildOptions) -> Parts:
+Memo = Callable[[Any, Callable[[], Any]], Any]
+
+
+def _no_memo(_inputs: Any, make: Callable[[], Any]) -> Any:
+    return make()
+
+
+def _finished(drafts: list[Draft], kerf: float) -> tuple[list[Part], list[Problem],
+                                                         dict[str, float], dict[str, Position]]:
+    """Check and kerf-compensate drafts: the parts, the problems, and each part's true
+    area and spec position (for nesting)."""
+    parts: list[Part] = []
+    problems: list[Problem] = []
+    for draft in drafts:
+        found = check_draft(draft)
+        if found:
+            problems += found
+            continue
+        try:
+            parts.append(finish(draft, kerf))
+        except GeometryError as err:
+            problems += err.problems
+    return parts, problems, {d.id: d.area_mm2 for d in drafts}, {d.id: d.source for d in drafts}
+
+
+def _pipe_parts(pipe: Pipe, resolved: Resolved, stock: dict[str, StockItem],
+                kerf: float) -> tuple[list[Part], list[Problem], dict[str, float],
+                                      dict[str, Position]]:
+    try:
+        drafts = _pipe_drafts(pipe, resolved, stock)
+    except GeometryError as err:
+        return [], list(err.problems), {}, {}
+    return _finished(drafts, kerf)
+
+
+def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> Parts:
     """Parts of every pipe and holder, nested on sheets, plus the stock-tube cuts.
 
     Millimetres throughout (converted from the IR's metres in ``geometry.units``). Parts
@@ -83,32 +121,31 @@ def layout(resolved: Resolved, options: BuildOptions) -> Parts:
     stock = {s.name: s for s in resolved.stock}
     kerf = mm(resolved.fabrication.kerf_m)
     problems: list[Problem] = []
-    drafts: list[Draft] = []
+    parts: list[Part] = []
+    areas: dict[str, float] = {}
+    sources: dict[str, Position] = {}
     cuts: list[TubeCut] = []
     for pipe in resolved.pipes:
-        try:
-            drafts += _pipe_drafts(pipe, resolved, stock)
-        except GeometryError as err:
-            problems += err.problems
+        # A pipe's parts depend on the pipe, the fabrication settings and its stock only:
+        # ``memo`` may hand back those of an earlier, identical build.
+        made, found, area, source = memo(
+            ("pipe-parts", pipe, resolved.fabrication, stock.get(pipe.stock)),
+            lambda p=pipe: _pipe_parts(p, resolved, stock, kerf))
+        parts += made
+        problems += found
+        areas.update(area)
+        sources.update(source)
         if pipe.construction == "stock-tube":
             cuts.append(tube_cut(pipe))
     try:
-        drafts += _holders(resolved, stock)
+        made, found, area, source = _finished(_holders(resolved, stock), kerf)
+        parts += made
+        problems += found
+        areas.update(area)
+        sources.update(source)
     except GeometryError as err:
         problems += err.problems
-    parts: list[Part] = []
-    for draft in drafts:
-        found = check_draft(draft)
-        if found:
-            problems += found
-            continue
-        try:
-            parts.append(finish(draft, kerf))
-        except GeometryError as err:
-            problems += err.problems
     sizes = {name: sheet_size(resolved, name) for name in sorted({p.stock for p in parts})}
-    areas = {d.id: d.area_mm2 for d in drafts}
-    sources = {d.id: d.source for d in drafts}
     try:
         sheets = nest(parts, areas, sizes, mm(resolved.fabrication.spacing_m), sources)
     except GeometryError as err:

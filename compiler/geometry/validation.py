@@ -54,6 +54,16 @@ def _gap(a: Contour, b: Contour) -> float:
     return float(pa.distance(pb))
 
 
+def _centre(opening: Contour) -> tuple[float, float]:
+    """Where an opening is on its part, for messages: the centre of its box, mm."""
+    x0, y0, x1, y1 = bounds(opening)
+    return (x0 + x1) / 2, (y0 + y1) / 2
+
+
+def _at(centre: tuple[float, float]) -> str:
+    return f"({centre[0]:.1f}, {centre[1]:.1f}) mm"
+
+
 def check_draft(draft: Draft) -> list[Problem]:
     """Problems that keep a cut part from being made: an outline that crosses itself, an
     opening outside the part, or webs below :func:`min_web_mm`."""
@@ -69,9 +79,9 @@ def check_draft(draft: Draft) -> list[Problem]:
         gap = _edge_gap(outline, opening)
         if gap < web - _TOL:
             problems.append(_problem(
-                draft, f"an opening leaves {max(gap, 0.0):.1f} mm to the edge, less than "
-                f"the {web:.1f} mm web this {draft.thickness_mm:g} mm material needs",
-                "give a wider margin or smaller openings"))
+                draft, f"the opening at {_at(_centre(opening))} leaves {max(gap, 0.0):.1f} mm to "
+                f"the edge, less than the {web:.1f} mm web this {draft.thickness_mm:g} mm "
+                "material needs", "give a wider margin or smaller openings"))
     boxes = sorted(((bounds(o), i) for i, o in enumerate(draft.openings)),
                    key=lambda item: (item[0][0], item[1]))
     for k, (box, i) in enumerate(boxes):
@@ -80,8 +90,11 @@ def check_draft(draft: Draft) -> list[Problem]:
                 break
             gap = _gap(draft.openings[i], draft.openings[j])
             if gap < web - _TOL:
+                first, second = sorted((_centre(draft.openings[i]),
+                                        _centre(draft.openings[j])))
                 problems.append(_problem(
-                    draft, f"two openings are {max(gap, 0.0):.1f} mm apart, less than the "
-                    f"{web:.1f} mm web this {draft.thickness_mm:g} mm material needs",
+                    draft, f"the openings at {_at(first)} and {_at(second)} are "
+                    f"{max(gap, 0.0):.1f} mm apart, less than the {web:.1f} mm web this "
+                    f"{draft.thickness_mm:g} mm material needs",
                     "give more spacing between the openings"))
     return problems

@@ -17,6 +17,10 @@ from compiler.resolve.model import Calibration, Residual
 
 PARAMETER = "end-correction scale"
 SCALE_RANGE = (0.05, 4.0)
+MAX_RESIDUAL_CENTS = 50.0
+"""A prototype that the fitted model still misses by more than a quarter-tone is not explained
+by the end corrections: another note, another pipe or a wrong temperature was most likely
+measured. Our limit, not a published one."""
 
 
 @dataclass(frozen=True)
@@ -60,3 +64,22 @@ def fit(observations: Sequence[Observation]) -> Calibration:
     residuals = tuple(Residual(o.note, cents(o.measured_hz, o.predict(s))) for o in observations)
     rms = math.sqrt(sum(r.error_cents**2 for r in residuals) / len(residuals))
     return Calibration(True, PARAMETER, s, residuals, rms)
+
+
+def outlier(calibration: Calibration) -> int | None:
+    """Index of the worst residual of a fit if it exceeds ``MAX_RESIDUAL_CENTS``, else None."""
+    if not calibration.residuals:
+        return None
+    worst = max(range(len(calibration.residuals)),
+                key=lambda i: abs(calibration.residuals[i].error_cents))
+    return worst if abs(calibration.residuals[worst].error_cents) > MAX_RESIDUAL_CENTS else None
+
+
+def implausible_message(calibration: Calibration, index: int, group: str,
+                        measured_hz: float) -> tuple[str, str]:
+    """Message and hint for a measurement the fit cannot explain (see ``outlier``)."""
+    residual = calibration.residuals[index]
+    return (f"{group}: the measured {residual.note} ({measured_hz:.2f} Hz) is "
+            f"{residual.error_cents:+.0f} cents from the model even after calibration",
+            "check the note, the frequency and the temperature of this measurement: "
+            "calibration corrects the end corrections, worth some cents, not a wrong note")

@@ -123,6 +123,11 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
                                   f"rank `{rank.id}`", "measure a pipe of this rank")
         observations.append(_observation(rank, spec, stock, air, m))
     fit = calibration.fit(observations)
+    bad = calibration.outlier(fit)
+    if bad is not None:
+        m = rank.measured[bad]
+        raise PhysicsError.at(m.position, *calibration.implausible_message(
+            fit, bad, f"rank `{rank.id}`", m.frequency_hz))
     pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings) for note in rank.notes]
     group = Group(
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
@@ -143,6 +148,16 @@ def _check_rank(rank: spec_model.Rank) -> None:
                               f"rank `{rank.id}`: the scale needs a reference pipe (note and "
                               "size) or a table",
                               "for example `reference: {note: C2, diameter: 155.5 mm}`")
+    mouths = [(where.get("mouth.width", rank.position), "width", rank.mouth.width),
+              (where.get("mouth.cutup", rank.position), "cut-up", rank.mouth.cutup)]
+    mouths += [(o.position, "width", o.mouth_width) for o in rank.overrides]
+    mouths += [(o.position, "cut-up", o.cutup) for o in rank.overrides]
+    for position, what, value in mouths:
+        if value == 0:
+            raise PhysicsError.at(position, f"rank `{rank.id}`: a mouth {what} of zero leaves "
+                                  "no mouth: the pipe cannot speak",
+                                  "mouth width: 1/4 of the circumference (round) or the whole "
+                                  "width (wood); cut-up: 1/4 to 1/2 of the mouth width")
     if rank.construction == "rolled-sheet" and not s.table and not s.diameter_m:
         raise PhysicsError.at(where.get("scale.reference", rank.position),
                               f"rank `{rank.id}`: rolled pipes are round: give the reference "

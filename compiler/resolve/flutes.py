@@ -90,6 +90,46 @@ def _where(flute: spec_model.Flute, subject: str) -> Position:
     return flute.where.get(key, flute.position)
 
 
+def _check_fixed(flute: spec_model.Flute, head: EngineHead, min_web_m: float) -> None:
+    """Fixed hole positions the maker gave that no solving can use, pointed at the hole:
+    above the mouth, beyond a fixed tube length, out of order, or overlapping a fixed
+    neighbour (edges closer than the web)."""
+    label = f"flute `{flute.id}`"
+    previous: tuple[int, float, float | None] | None = None
+    for i, hole in enumerate(flute.holes):
+        x = hole.position_m
+        if x is None:
+            continue
+        if x <= head.mouth_position_m:
+            raise PhysicsError.at(hole.position, f"{label}: hole {i + 1} is fixed at "
+                                  f"{x * 1000:.1f} mm from the top, not below the "
+                                  f"{'window' if head.kind == 'duct' else 'embouchure hole'} "
+                                  f"(at {head.mouth_position_m * 1000:.1f} mm)",
+                                  "positions are measured from the top end of the tube")
+        if flute.length_m is not None and x >= flute.length_m:
+            raise PhysicsError.at(hole.position, f"{label}: hole {i + 1} is fixed at "
+                                  f"{x * 1000:.1f} mm from the top, beyond the end of the "
+                                  f"{flute.length_m * 1000:.1f} mm tube",
+                                  "give a position inside the tube, or a longer `length`")
+        if previous is not None:
+            j, x_above, d_above = previous
+            if x <= x_above:
+                raise PhysicsError.at(hole.position, f"{label}: hole {i + 1} is fixed at "
+                                      f"{x * 1000:.1f} mm, not below hole {j + 1} "
+                                      f"({x_above * 1000:.1f} mm)",
+                                      "holes are listed from the head downward")
+            if d_above is not None and hole.diameter_m is not None:
+                web = x - x_above - (d_above + hole.diameter_m) / 2
+                if web < min_web_m:
+                    what = (f"overlap by {-web * 1000:.1f} mm" if web < 0 else
+                            f"leave {web * 1000:.1f} mm between their edges, less than the "
+                            f"{min_web_m * 1000:.1f} mm web allowed (`min_web`)")
+                    raise PhysicsError.at(hole.position, f"{label}: the fixed holes {j + 1} and "
+                                          f"{i + 1} {what}",
+                                          "move them apart or make them smaller")
+        previous = (i, x, hole.diameter_m)
+
+
 def _first_register(instrument: Instrument, air: Air, closed: np.ndarray) -> float:
     return float(playing.resonances(instrument, air, closed[None, :]).frequencies_hz[0, 0])
 
@@ -111,6 +151,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         max_ratio=c.max_ratio or defaults.max_ratio,
         min_web_m=c.min_web_m if c.min_web_m is not None else defaults.min_web_m,
         max_span_m=c.max_span_m)
+    _check_fixed(flute, engine_head, limits.min_web_m)
     fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
     try:
         design = solve.design_holes(

@@ -100,6 +100,11 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
         observations.append(calibration.Observation(note_name(m.note), m.frequency_hz,
                                                     predict))
     fit = calibration.fit(observations)
+    bad = calibration.outlier(fit)
+    if bad is not None:
+        m = tubes.measured[bad]
+        raise PhysicsError.at(m.position, *calibration.implausible_message(
+            fit, bad, f"tube set `{tubes.id}`", m.frequency_hz))
     pipes = []
     fab = spec.fabrication
     for note in tubes.notes:

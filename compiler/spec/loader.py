@@ -9,6 +9,7 @@ Aliases are allowed, but the expansion is counted so an alias bomb stops at once
 from __future__ import annotations
 
 import hashlib
+import re
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -124,6 +125,46 @@ class _Builder:
         return value
 
 
+def _syntax(exc: yaml.MarkedYAMLError) -> tuple[Any, str, str]:
+    """Where a YAML syntax error is, and what it means in plain words, with a hint.
+
+    pyyaml's wording names parser states (``<block end>``, ``flow mapping``); the common
+    mistakes behind them are translated, anything else is passed on as pyyaml says it.
+    """
+    problem, context = exc.problem or "", exc.context or ""
+    mark, opened = exc.problem_mark or exc.context_mark, exc.context_mark
+    at = f"line {opened.line + 1}, column {opened.column + 1}" if opened is not None else ""
+    if "'\\t'" in problem or "'\t'" in problem:
+        return mark, "a tab character: YAML indents with spaces only", (
+            "replace the tab with spaces")
+    if context.startswith("while scanning a quoted scalar") and opened is not None:
+        return opened, "this quote is never closed", (
+            "add the closing quote at the end of the value, on the same line")
+    if context.startswith("while parsing a flow") and opened is not None:
+        bracket = "`{`" if "mapping" in context else "`[`"
+        closing = "`}`" if "mapping" in context else "`]`"
+        return mark, f"the {bracket} opened at {at} is not closed before this point", (
+            f"close it with {closing}, and separate its items with commas")
+    if problem.startswith("expected <block end>"):
+        return mark, "this line's indentation does not line up with the lines above it", (
+            "indent every key of one mapping (and every `-` of one list) by the same number of "
+            "spaces")
+    if problem.startswith("mapping values are not allowed here"):
+        return mark, "a colon followed by a space inside a value, or a key indented under a " \
+            "value", ("put a value that contains `: ` in quotes (`instrument: \"Stops: flute\"`); "
+                      "otherwise check the indentation")
+    if problem.startswith("found undefined alias"):
+        name = problem.split("'")[1] if "'" in problem else "?"
+        return mark, f"the alias `*{name}` refers to no anchor `&{name}` above it", (
+            f"put `&{name}` before the value it should repeat, or write the value out")
+    what = problem or "not valid YAML"
+    if context:
+        what = f"{context}: {what}"
+    if opened is not None and mark is not None and opened.line != mark.line:
+        what += f" (the construct began at line {opened.line + 1})"
+    return mark, what, "check the indentation, colons and quotes on this line"
+
+
 def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
     """Parse YAML text into a ``Document``; raise ``YamlError`` at the problem's position."""
     if isinstance(text, bytes):
@@ -133,8 +174,15 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
         try:
             text = text.decode("utf-8")
         except UnicodeDecodeError as exc:
-            raise _error(filename, None, f"the file is not UTF-8 text (byte {exc.start})",
-                         "save the spec as UTF-8") from None
+            before = text[:exc.start]
+            line_start = before.rfind(b"\n") + 1
+            column = len(before[line_start:].decode("utf-8", errors="replace")) + 1
+            raise YamlError([Problem(
+                Position(filename, before.count(b"\n") + 1, column),
+                f"the file is not UTF-8 text (byte {exc.start}, 0x{text[exc.start]:02x}, "
+                "is not a UTF-8 character)",
+                "save the spec as UTF-8 (an editor's \"Save with encoding\" or \"Reopen with "
+                "encoding\" fixes it)", "yaml")]) from None
     digest = hashlib.sha256(text.encode("utf-8")).hexdigest()
     if len(text.encode("utf-8")) > MAX_BYTES:
         raise _error(filename, None, f"the file is larger than {MAX_BYTES} bytes",
@@ -142,15 +190,8 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
     try:
         nodes = list(yaml.compose_all(text, Loader=yaml.SafeLoader))
     except yaml.MarkedYAMLError as exc:
-        mark = exc.problem_mark or exc.context_mark
-        what = exc.problem or "not valid YAML"
-        if exc.context:
-            what = f"{exc.context}: {what}"
-        if exc.context_mark is not None and mark is not None and (
-                exc.context_mark.line != mark.line):
-            what += f" (the construct began at line {exc.context_mark.line + 1})"
-        raise _error(filename, mark, f"YAML syntax: {what}",
-                     "check the indentation, colons and quotes on this line") from None
+        mark, what, hint = _syntax(exc)
+        raise _error(filename, mark, f"YAML syntax: {what}", hint) from None
     except yaml.YAMLError as exc:
         raise _error(filename, None, f"YAML syntax: {exc}", "check the file is YAML") from None
     except RecursionError:
@@ -166,6 +207,13 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
     try:
         data = builder.build(nodes[0], (), 0)
     except yaml.constructor.ConstructorError as exc:
-        raise _error(filename, exc.problem_mark, f"YAML value: {exc.problem}",
-                     "quote the value if it is meant as text") from None
+        problem = str(exc.problem)
+        tag = re.search(r"for the tag '([^']*)'", problem)
+        if tag:
+            shown = tag[1].replace("tag:yaml.org,2002:", "!!")
+            problem = (f"the tag `{shown}` is not allowed: a spec holds only text, numbers, "
+                       "true/false, lists and mappings")
+        raise _error(filename, exc.problem_mark, f"YAML value: {problem}",
+                     "remove the tag (the word starting with `!`), or quote the value if it "
+                     "is meant as text") from None
     return Document(data, filename, digest, builder.values, builder.keys)

@@ -25,6 +25,8 @@ class _Reader:
         self.doc = document
         self.problems: list[Problem] = []
         self.units = str(document.data.get("units", "mm"))
+        self.rejected: set[str] = set()
+        """Stock names given but refused (already reported): not reported again as missing."""
 
     def get(self, path: Path) -> Any:
         node: Any = self.doc.data
@@ -136,7 +138,7 @@ def _tuning(r: _Reader) -> model.Tuning:
         try:
             note = notes.parse_note(key)
         except notes.NoteError as exc:
-            r.problems.append(Problem(r.doc.key_at(path), f"notes.offsets: {exc.message}",
+            r.problems.append(Problem(r.doc.key_at(path), f"tuning.offsets: {exc.message}",
                                       exc.hint, "units"))
             continue
         offsets.append((note, r.convert(path, units.parse_cents, 0.0)))
@@ -164,6 +166,7 @@ def _stock(r: _Reader) -> tuple[model.Stock, ...]:
             if given != 2:
                 r.fail(t, f"stock `{name}`: give two of `outside_diameter`, `inside_diameter` and "
                        "`wall`", "for example `{outside_diameter: 22 mm, wall: 1 mm}`")
+                r.rejected.add(name)
                 continue
             if wall is None and od is not None and inner is not None:
                 wall = (od - inner) / 2
@@ -176,6 +179,7 @@ def _stock(r: _Reader) -> tuple[model.Stock, ...]:
                 r.fail(t, f"stock `{name}`: the wall leaves no bore "
                        f"(outside {od * 1000:g} mm, wall {wall * 1000:g} mm)",
                        "check the outside diameter and the wall thickness")
+                r.rejected.add(name)
                 continue
             items.append(model.Stock(name, "tube", material, wall, od, inner,
                                      r.length((*t, "length")), None, r.at(base)))
@@ -281,9 +285,10 @@ def _check_duplicates(r: _Reader, path: Path, midis: tuple[int, ...]) -> None:
 
 def _end_correction(r: _Reader, base: Path) -> model.EndCorrection:
     path = (*base, "end_correction")
+    k = r.ratio((*path, "k"))
     return model.EndCorrection(
         model=r.get((*path, "model")) or "unflanged",
-        k=r.ratio((*path, "k")) or 0.3,
+        k=0.3 if k is None else k,  # an explicit 0 means no correction, not the default
     )
 
 
@@ -456,6 +461,11 @@ def _flute(r: _Reader, i: int) -> model.Flute:
             frequency_hz=r.frequency((*p, "frequency")),
             second_register=r.note((*p, "second_register")), position=r.at(p)))
     c = (*base, "constraints")
+    smallest, largest = r.length((*c, "min_diameter")), r.length((*c, "max_diameter"))
+    if smallest is not None and largest is not None and smallest > largest:
+        r.fail((*c, "min_diameter"), f"{_name((*c, 'min_diameter'))}: "
+               f"{smallest * 1000:g} mm is larger than max_diameter ({largest * 1000:g} mm)",
+               "the smallest hole allowed must not be larger than the largest")
     return model.Flute(
         id=str(r.get((*base, "id"))),
         family=str(r.get((*base, "family"))),
@@ -464,8 +474,8 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         holes=tuple(holes),
         fingerings=tuple(fingerings),
         constraints=model.Constraints(
-            min_diameter_m=r.length((*c, "min_diameter")),
-            max_diameter_m=r.length((*c, "max_diameter")),
+            min_diameter_m=smallest,
+            max_diameter_m=largest,
             max_ratio=r.ratio((*c, "max_ratio")),
             min_web_m=r.length((*c, "min_web"), positive=False),
             max_span_m=r.length((*c, "max_span"))),
@@ -486,6 +496,8 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
 
     def need(name: str, kinds: tuple[str, ...], path: Path, what: str) -> None:
         item = by_name.get(name)
+        if item is None and name in r.rejected:
+            return  # its own problem is reported at the stock
         if item is None:
             known = ", ".join(f"`{n}`" for n in sorted(by_name)) or "none yet"
             r.fail(path, f"{what}: no stock named `{name}`",

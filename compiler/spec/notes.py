@@ -54,6 +54,9 @@ def parse_note(name: str) -> int:
         raise NoteError(f"cannot read {name!r} as a note")
     letter, accidental, octave, rest = match.groups()
     if letter.upper() not in _LETTER_PC:
+        if letter.upper() == "H":
+            raise NoteError(f"unknown note letter {letter!r} in {name!r}",
+                            "H is the German name of B: write B for H, and Bb for the German B")
         raise NoteError(f"unknown note letter {letter!r} in {name!r}")
     sign = accidental.replace("♯", "#").replace("♭", "b").replace("𝄪", "##").replace("𝄫", "bb")
     if sign not in _ACCIDENTAL:
@@ -85,6 +88,8 @@ def note_name(midi: int) -> str:
 def parse_note_range(text: str) -> list[int]:
     """Every semitone from LOW to HIGH inclusive, from text ``"LOW..HIGH"`` (e.g. ``"C3..C5"``)."""
     hint = "write the lowest and highest note joined by '..', e.g. C3..C5"
+    if isinstance(text, str) and re.search(r"\.{3,}", text):
+        raise NoteError(f"the note range {text!r} joins its notes with more than two dots", hint)
     if not isinstance(text, str) or text.count("..") != 1:
         raise NoteError(f"cannot read {text!r} as a note range", hint)
     low_text, high_text = (part.strip() for part in text.split(".."))

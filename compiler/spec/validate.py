@@ -58,7 +58,12 @@ def validate_document(document: Document) -> None:
                              "start with `boresmith: 1` and `instrument: ...`")
     _check_version(document)
     problems: list[Problem] = []
-    for error in _validator().iter_errors(data):
+    errors = list(_validator().iter_errors(data))
+    # A mapping that misses a required key also has too few keys: say only the first.
+    missing = {tuple(e.absolute_path) for e in errors if e.validator == "required"}
+    for error in errors:
+        if error.validator == "minProperties" and tuple(error.absolute_path) in missing:
+            continue
         problems.extend(_describe(error, document))
     if problems:
         unique = {(p.position, p.message): p for p in problems}
@@ -84,12 +89,13 @@ def _check_version(document: Document) -> None:
                              f"write `boresmith: {FORMAT_VERSION}`")
 
 
-def _describe(error: ValidationError, document: Document) -> list[Problem]:
+def _describe(error: ValidationError, document: Document, fallback: str = "") -> list[Problem]:
     path = tuple(error.absolute_path)
     where = document.at(path)
     name = dotted(path)
     schema = error.schema if isinstance(error.schema, dict) else {}
-    hint = _short(schema.get("description", ""))
+    # A branch of ``oneOf`` often has no description of its own: use its parent's.
+    hint = _short(schema.get("description", "")) or fallback
     kind = error.validator
     value = error.instance
 
@@ -106,7 +112,7 @@ def _describe(error: ValidationError, document: Document) -> list[Problem]:
         return problems
     if kind == "required":
         missing = error.message.split("'")[1] if "'" in error.message else "?"
-        sub = schema.get("properties", {}).get(missing, {})
+        sub = _dereference(schema.get("properties", {}).get(missing, {}))
         tip = _short(sub.get("description", "")) if isinstance(sub, dict) else ""
         tip = tip or f"add `{missing}:` to {name}"
         at = document.key_at(path) if path else where
@@ -117,8 +123,13 @@ def _describe(error: ValidationError, document: Document) -> list[Problem]:
     if kind == "type":
         wanted = error.validator_value
         wanted = " or ".join(wanted) if isinstance(wanted, list) else wanted
-        return [Problem(where, f"{name} should be {_article(wanted)}, not {_kind(value)}", hint,
-                        "schema")]
+        examples = schema.get("examples", [])
+        if wanted == "string or number" and examples and isinstance(examples[0], str):
+            # A quantity: show one of its own kind (`440 Hz`, `20 C`), not a length.
+            words = f"a value such as `{examples[0]}`"
+        else:
+            words = _article(wanted)
+        return [Problem(where, f"{name} should be {words}, not {_kind(value)}", hint, "schema")]
     if kind == "enum":
         options = [str(o) for o in error.validator_value]
         close = difflib.get_close_matches(str(value), options, n=1, cutoff=0.5)
@@ -132,6 +143,12 @@ def _describe(error: ValidationError, document: Document) -> list[Problem]:
                  "maximum": "at most", "exclusiveMaximum": "less than"}[kind]
         return [Problem(where, f"{name} must be {words} {error.validator_value}, not {value}",
                         hint, "schema")]
+    if kind == "pattern" and "propertyNames" in error.schema_path and isinstance(value, str):
+        # The instance is a key of the mapping at ``path``: point at that key.
+        return [Problem(document.key_at((*path, value)),
+                        f"`{value}` cannot be used as a name in {name}",
+                        "use letters, digits, `-`, `_` and `.` only (no spaces), starting with "
+                        "a letter or digit, e.g. `alu-22`", "schema")]
     if kind == "pattern":
         examples = schema.get("examples", [])
         tip = hint + (" Examples: " + ", ".join(f"`{e}`" for e in examples) if examples else "")
@@ -159,12 +176,21 @@ def _one_of(error: ValidationError, document: Document, name: str, hint: str) ->
     relevant = [e for e in error.context if not (e.validator == "type" and not e.relative_path)]
     if relevant:
         deepest = max(relevant, key=lambda e: (len(e.absolute_path), -len(e.schema_path)))
-        return _describe(deepest, document)
+        return _describe(deepest, document, hint)
     examples = error.schema.get("examples", []) if isinstance(error.schema, dict) else []
     tip = hint + (" Examples: " + "; ".join(json.dumps(e) for e in examples) if examples else "")
     where = document.at(tuple(error.absolute_path))
     return [Problem(where, f"{name} is not written in a form boresmith knows", tip.strip(),
                     "schema")]
+
+
+def _dereference(schema: Any) -> Any:
+    """A ``{"$ref": "#/$defs/name"}`` subschema replaced by the definition it names."""
+    if isinstance(schema, dict) and isinstance(schema.get("$ref"), str):
+        ref = schema["$ref"]
+        if ref.startswith("#/$defs/"):
+            return read_schema(SPEC_SCHEMA).get("$defs", {}).get(ref[len("#/$defs/"):], schema)
+    return schema
 
 
 def _context(document: Document, path: tuple[str | int, ...]) -> str:

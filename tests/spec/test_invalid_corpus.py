@@ -1,6 +1,8 @@
 """The bad-spec corpus: every file under tests/invalid/ must fail `boresmith check` (or
-`resolve`, where the file says `# stage: resolve`) with exit 1, the exact line and column
-in its `# expect:` header, a message containing the expected words, and no traceback.
+`resolve`, where the file says `# stage: resolve`, or `build`, where it says
+`# stage: build`) with exit 1, the exact line and column in its `# expect:` header, a
+message containing the expected words, a hint, and no traceback. A failed build writes
+nothing into its output folder.
 """
 
 from __future__ import annotations
@@ -11,6 +13,7 @@ from pathlib import Path
 
 import pytest
 
+from compiler.cache import FOLDER as CACHE_FOLDER
 from compiler.cli import main
 
 CORPUS = Path(__file__).resolve().parents[1] / "invalid"
@@ -19,22 +22,35 @@ HEADER = re.compile(r"# expect: (\d+):(\d+) (.+)")
 
 
 def _expectation(path: Path) -> tuple[int, int, str, str]:
-    lines = path.read_text(encoding="utf-8").splitlines() or [""]
+    lines = path.read_text(encoding="utf-8", errors="replace").splitlines() or [""]
     match = HEADER.match(lines[0])
     assert match, f"{path.name}: first line must be '# expect: LINE:COL words'"
-    stage = "resolve" if any(line.strip() == "# stage: resolve" for line in lines) else "check"
+    stages = [line.strip()[len("# stage: "):] for line in lines
+              if line.strip().startswith("# stage: ")]
+    stage = stages[0] if stages else "check"
+    assert stage in STAGE_SECONDS, f"{path.name}: unknown stage {stage!r}"
     return int(match[1]), int(match[2]), match[3], stage
 
 
+STAGE_SECONDS = {"check": 1.0, "resolve": 10.0, "build": 10.0}
+"""Time allowed per case: loader limits must stop an alias bomb at once; resolving a flute
+runs the hole solver."""
+
+
 def test_corpus_is_large_enough() -> None:
-    assert len(FILES) >= 30
+    assert len(FILES) >= 85
+    stages = [_expectation(path)[3] for path in FILES]
+    assert stages.count("resolve") >= 20 and stages.count("build") >= 3
 
 
 @pytest.mark.parametrize("path", FILES, ids=[p.stem for p in FILES])
-def test_bad_spec(path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+def test_bad_spec(path: Path, tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     line, col, words, stage = _expectation(path)
+    out = tmp_path / "out"
+    out.mkdir()
+    argv = [stage, str(path)] + (["-o", str(out)] if stage == "build" else [])
     started = time.perf_counter()
-    code = main([stage, str(path)])
+    code = main(argv)
     elapsed = time.perf_counter() - started
     err = capsys.readouterr().err
     assert code == 1, err
@@ -43,7 +59,12 @@ def test_bad_spec(path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     assert starts, err
     assert words in err, err
     assert "hint:" in err or path.stem in {"empty-file"}, err
-    assert elapsed < 1.0  # an alias bomb or deep nesting must fail at once, not hang
+    for problem in (ln for ln in err.splitlines() if ": error: " in ln):
+        assert problem.startswith(f"{path}:"), problem  # every problem points into the spec
+    assert elapsed < STAGE_SECONDS[stage]
+    # A spec error writes no output folder and leaves no temporary folder. The build cache
+    # may keep the groups that did resolve (they speed up the rebuild after the fix).
+    assert sorted(p.name for p in out.iterdir() if p.name != CACHE_FOLDER) == []
 
 
 def test_oversized_file(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
