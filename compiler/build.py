@@ -149,18 +149,18 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         if worker is not None and worker.is_alive():
             worker.kill()
             worker.join()
-    files = sorted(p.relative_to(folder).as_posix() for p in written)
+    names_written = sorted(p.relative_to(folder).as_posix() for p in written)
     manifest = {
         "instrument": compiled.resolved.instrument,
         "spec_file": compiled.resolved.spec_file,
         "spec_sha256": compiled.resolved.spec_sha256,
         "build_key": build_key,
         "files": [{"path": f, "sha256": _sha256(folder / f), "bytes": (folder / f).stat().st_size}
-                  for f in files],
+                  for f in names_written],
     }
     (folder / "manifest.json").write_text(json.dumps(manifest, indent=2, sort_keys=True) + "\n",
                                           encoding="utf-8")
-    return [folder / f for f in files] + [folder / "manifest.json"]
+    return [folder / f for f in names_written] + [folder / "manifest.json"]
 
 
 def _inside(base: Path, target: Path) -> bool:

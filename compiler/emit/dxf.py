@@ -169,7 +169,9 @@ def write(resolved: Resolved, parts: Parts, options: BuildOptions,
     for path, entities, limits in jobs:
         name = path.relative_to(out_dir).as_posix()
         key = key_of("dxf", name, version, limits, entities)
-        path.write_bytes(store.data("dxf", key,
-                                    lambda e=entities, k=key, b=limits: render(e, version, k, b)))
+        def make(e: tuple[Entity, ...] = entities, k: str = key, b: Box = limits) -> bytes:
+            return render(e, version, k, b)
+
+        path.write_bytes(store.data("dxf", key, make))
         written.append(path)
     return sorted(written)

@@ -128,9 +128,12 @@ def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> 
     for pipe in resolved.pipes:
         # A pipe's parts depend on the pipe, the fabrication settings and its stock only:
         # ``memo`` may hand back those of an earlier, identical build.
+        def make(p: Pipe = pipe) -> tuple[list[Part], list[Problem], dict[str, float],
+                                          dict[str, Position]]:
+            return _pipe_parts(p, resolved, stock, kerf)
+
         made, found, area, source = memo(
-            ("pipe-parts", pipe, resolved.fabrication, stock.get(pipe.stock)),
-            lambda p=pipe: _pipe_parts(p, resolved, stock, kerf))
+            ("pipe-parts", pipe, resolved.fabrication, stock.get(pipe.stock)), make)
         parts += made
         problems += found
         areas.update(area)

@@ -50,10 +50,13 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
     from compiler.resolve import flutes  # numpy-heavy engine, loaded only when needed
 
     shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)
-    work: list[tuple[Any, Callable[[], Any]]] = (
-        [(rank, lambda g=rank: flue.resolve_rank(g, spec)) for rank in spec.ranks]
-        + [(t, lambda g=t: tubes.resolve_tube_set(g, spec)) for t in spec.tube_sets]
-        + [(f, lambda g=f: flutes.resolve_flute(g, spec)) for f in spec.flutes])
+    work: list[tuple[Any, Callable[[], Any]]] = []
+    for rank in spec.ranks:
+        work.append((rank, lambda g=rank: flue.resolve_rank(g, spec)))
+    for tube_set in spec.tube_sets:
+        work.append((tube_set, lambda g=tube_set: tubes.resolve_tube_set(g, spec)))
+    for flute in spec.flutes:
+        work.append((flute, lambda g=flute: flutes.resolve_flute(g, spec)))
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []

@@ -322,7 +322,7 @@ def _overrides(r: _Reader, base: Path) -> tuple[model.Override, ...]:
 def _scale(r: _Reader, base: Path) -> model.Scale:
     s = (*base, "scale")
     ref = (*s, "reference")
-    table = []
+    table: list[tuple[int, float, float | None]] = []
     for key in sorted(r.get((*s, "table")) or {}):
         path = (*s, "table", key)
         try:
@@ -524,10 +524,10 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
     for i, flute in enumerate(spec.flutes):
         need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
     seen: dict[str, Path] = {}
-    groups: list[tuple[str, Path]] = (
-        [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]
-        + [(g.id, ("tube_sets", i, "id")) for i, g in enumerate(spec.tube_sets)]
-        + [(g.id, ("flutes", i, "id")) for i, g in enumerate(spec.flutes)])
+    groups: list[tuple[str, Path]] = []
+    for block, items in (("ranks", spec.ranks), ("tube_sets", spec.tube_sets),
+                         ("flutes", spec.flutes)):
+        groups += [(g.id, (block, i, "id")) for i, g in enumerate(items)]
     for ident, path in groups:
         if ident in seen:
             r.fail(path, f"the id `{ident}` is used twice", "give each rank, set or flute its "
