@@ -3,7 +3,9 @@
 Hypothesis builds spec texts of every family (open and stopped flue ranks from rolled sheet
 or boards, stopped and open tube sets with and without a holder plate, duct flutes and
 side-blown flutes with 3-8 holes and a fingering table), with random air, tuning and
-fabrication in the ranges a maker would write. For each:
+fabrication in the ranges a maker would write; three "wild" strategies ask for notes,
+scales and holder plates far out of reach, so that most of their specs end in spec errors.
+For each:
 
 - ``compile_text`` succeeds or raises ``SpecError`` whose every problem points at a line
   and column inside the text (a physically impossible random request is fine); any other
@@ -99,8 +101,8 @@ def environment(draw: st.DrawFn) -> dict[str, Any]:
     if draw(st.booleans()):
         env["humidity"] = f"{draw(_between(10.0, 95.0, 0)):g} %"
     if draw(st.booleans()):
-        env["pressure"] = draw(st.sampled_from((
-            f"{draw(_between(92.0, 105.0, 1)):g} kPa", f"{draw(_between(920.0, 1050.0, 0)):g} hPa")))
+        kpa = draw(_between(92.0, 105.0, 1))
+        env["pressure"] = draw(st.sampled_from((f"{kpa:g} kPa", f"{kpa * 10:g} hPa")))
     if draw(st.booleans()):
         env["co2"] = f"{draw(_between(300.0, 2000.0, 0)):g} ppm"
     if draw(st.booleans()):
@@ -184,18 +186,20 @@ def _spec(body: dict[str, Any], draw: st.DrawFn, units: str) -> str:
 
 
 @st.composite
-def flue_rank_spec(draw: st.DrawFn, family: str, construction: str) -> str:
-    """One rank of flue pipes: rolled from metal sheet, or glued up from boards."""
+def flue_rank_spec(draw: st.DrawFn, family: str, construction: str, wild: bool = False) -> str:
+    """One rank of flue pipes: rolled from metal sheet, or glued up from boards. ``wild``:
+    notes and scales far beyond the sensible, to reach the physics and geometry errors."""
     units = draw(st.sampled_from(("mm", "cm", "in")))
     stopped = family == "stopped-flue"
     halving = draw(_between(14.0, 24.0, 1))
     rank: dict[str, Any] = {"id": "rank-1", "family": family, "construction": construction,
                             "stock": "stuff"}
     if construction == "rolled-sheet":
-        low = draw(st.integers(48, 74))  # C3..D5: every part fits a 2500 mm sheet
+        low = draw(st.integers(24, 110) if wild else st.integers(48, 74))  # C3..D5 fit a sheet
         thickness = draw(_between(0.4, 1.2))
         # Round scales around the Normalmensur (155.5 mm at C2, halving every 16 semitones).
-        diameter = 155.5 * 2 ** (-(low - 36) / 16) * draw(_between(0.7, 1.3))
+        diameter = 155.5 * 2 ** (-(low - 36) / 16) * draw(
+            _between(0.1, 5.0) if wild else _between(0.7, 1.3))
         stock = {"material": draw(st.sampled_from(("spotted-metal", "tin", "copper"))),
                  "sheet": {"thickness": draw(length(thickness, units))}}
         rank["scale"] = {"reference": {"note": draw(note_name(low)),
@@ -206,8 +210,9 @@ def flue_rank_spec(draw: st.DrawFn, family: str, construction: str) -> str:
         if draw(st.booleans()):
             rank["foot"] = {"toe": draw(st.sampled_from(("1/4", "1/5", "0.3")))}
     else:
-        low = draw(st.integers(45, 66))  # A2..F#4
-        width = 72.0 * 2 ** (-(low - 36) / 18) * draw(_between(0.8, 1.5))
+        low = draw(st.integers(24, 100) if wild else st.integers(45, 66))  # A2..F#4
+        width = 72.0 * 2 ** (-(low - 36) / 18) * draw(
+            _between(0.2, 5.0) if wild else _between(0.8, 1.5))
         depth = width * draw(_between(1.0, 1.3))
         top_width = width * 2 ** (-8 / halving)
         thickness = draw(_between(4.0, max(4.0, min(18.0, 0.45 * top_width))))
@@ -220,7 +225,7 @@ def flue_rank_spec(draw: st.DrawFn, family: str, construction: str) -> str:
                          "halving_interval": halving}
         mouth = {"width": draw(st.sampled_from((1, 0.9, "3/4"))),
                  "cutup": draw(st.sampled_from(("1/3", 0.4, "0.3", "1/4")))}
-    rank["notes"] = draw(notes(low, low + 8))
+    rank["notes"] = draw(notes(low, min(low + (24 if wild else 8), 127)))
     if draw(st.booleans()):
         rank["mouth"] = mouth
     if stopped and draw(st.booleans()):
@@ -235,8 +240,9 @@ def flue_rank_spec(draw: st.DrawFn, family: str, construction: str) -> str:
 
 
 @st.composite
-def tube_set_spec(draw: st.DrawFn, family: str, holder: bool) -> str:
-    """A set of stock tubes (one to three sizes), with or without a holder plate."""
+def tube_set_spec(draw: st.DrawFn, family: str, holder: bool, wild: bool = False) -> str:
+    """A set of stock tubes (one to three sizes), with or without a holder plate; ``wild``:
+    any notes, and holder plates too tight or too long for the sheet."""
     units = draw(st.sampled_from(("mm", "cm", "in")))
     stopped = family == "stopped-tube"
     tubes: dict[str, Any] = {}
@@ -258,6 +264,8 @@ def tube_set_spec(draw: st.DrawFn, family: str, holder: bool) -> str:
     f_high = SPEED_OF_SOUND / (quarter * 5.0 * min(inside) / 1000.0)
     f_low = SPEED_OF_SOUND / (quarter * 0.8)
     high, low = _midi_of(f_high), max(_midi_of(f_low) + 1, 36)
+    if wild:
+        low, high = 12, 120
     names = sorted(tubes)
     entry: dict[str, Any] = {"id": "set-1", "family": family,
                              "stock": names[0] if len(names) == 1 else names,
@@ -273,8 +281,10 @@ def tube_set_spec(draw: st.DrawFn, family: str, holder: bool) -> str:
         stock["plate"] = {"material": draw(st.sampled_from(("birch-ply", "acrylic", "mdf"))),
                           "sheet": {"thickness": draw(length(plate, units)),
                                     "size": "1200 x 600 mm"}}
+        gap = _between(0.0, 15.0) if wild else _between(1.5, 15.0)
         entry["holder"] = {"stock": "plate",
-                           "spacing": draw(length(plate + draw(_between(1.5, 15.0)), units)),
+                           "spacing": draw(length(plate + draw(gap) - (plate if wild else 0),
+                                                  units)),
                            "margin": draw(length(plate + draw(_between(1.5, 20.0)), units)),
                            "clearance": draw(length(draw(_between(0.1, 1.0)), units))}
     return _spec({"stock": stock, "fabrication": draw(fabrication(units)),
@@ -285,9 +295,10 @@ MAJOR_STEPS = (2, 2, 1, 2, 2, 2, 1, 2, 2)
 
 
 @st.composite
-def flute_spec(draw: st.DrawFn, family: str) -> str:
+def flute_spec(draw: st.DrawFn, family: str, wild: bool = False) -> str:
     """A duct or side-blown flute with 3-8 holes: close all for the lowest note, then open
-    them from the foot up, one a step of the major scale."""
+    them from the foot up, one a step of the major scale; ``wild``: tonics an octave off and
+    tight hole limits."""
     units = draw(st.sampled_from(("mm", "cm", "in")))
     n = draw(st.integers(3, 8))
     od = draw(_between(13.0, 24.0))
@@ -295,7 +306,8 @@ def flute_spec(draw: st.DrawFn, family: str) -> str:
     bore = od - 2 * wall
     # Tonics near the bundled instruments: a 14 mm bore plays D5, a 20 mm bore C5.
     centre = 74 - round((bore - 14.0) / 3.0)
-    tonic = draw(st.integers(centre - 2, centre + 2))
+    spread = 12 if wild else 2
+    tonic = draw(st.integers(centre - spread, centre + spread))
     table = []
     midi = tonic
     for k in range(n + 1):
@@ -320,13 +332,15 @@ def flute_spec(draw: st.DrawFn, family: str) -> str:
             holes[0] = {"label": "T", "angle": "180 deg"}  # a thumb hole at the back
     flute: dict[str, Any] = {"id": "flute-1", "family": family, "stock": "tube", "head": head,
                              "holes": holes, "fingerings": table}
-    if draw(st.booleans()):
+    if wild or draw(st.booleans()):
         low = draw(_between(2.0, 4.0))
         flute["constraints"] = {"min_diameter": draw(length(low, units)),
-                                "max_diameter": draw(length(low + draw(_between(5.0, 9.0)), units)),
+                                "max_diameter": draw(length(low + draw(
+                                    _between(0.0, 9.0) if wild else _between(5.0, 9.0)), units)),
                                 "min_web": draw(length(draw(_between(2.0, 4.0)), units))}
         if draw(st.booleans()):
-            flute["constraints"]["max_span"] = draw(length(draw(_between(28.0, 45.0)), units))
+            span = _between(10.0, 45.0) if wild else _between(28.0, 45.0)
+            flute["constraints"]["max_span"] = draw(length(draw(span), units))
     if draw(st.booleans()):
         flute["losses"] = draw(st.sampled_from(("keefe", "none")))
     if draw(st.booleans()):
@@ -411,6 +425,14 @@ FAMILIES: dict[str, Callable[[], st.SearchStrategy[str]]] = {
     "open-tube-holder": lambda: tube_set_spec("open-tube", True),
     "duct-flute": lambda: flute_spec("duct-flute"),
     "side-blown-flute": lambda: flute_spec("side-blown-flute"),
+    # Requests beyond reach: most end in a spec error, which must point into the text.
+    "wild-rank": lambda: st.sampled_from(("open-flue", "stopped-flue")).flatmap(
+        lambda family: st.sampled_from(("rolled-sheet", "boards")).flatmap(
+            lambda construction: flue_rank_spec(family, construction, wild=True))),
+    "wild-tube-set": lambda: st.sampled_from(("open-tube", "stopped-tube")).flatmap(
+        lambda family: tube_set_spec(family, True, wild=True)),
+    "wild-flute": lambda: st.sampled_from(("duct-flute", "side-blown-flute")).flatmap(
+        lambda family: flute_spec(family, wild=True)),
 }
 
 
@@ -422,3 +444,60 @@ def test_random_specs_compile_or_fail_cleanly(family: str) -> None:
         check_spec(text)
 
     run()
+
+
+# Found by this file: an 8-hole flute whose all-open fingering has no second-register
+# resonance in the model wrote NaN into resolved.json and crashed the PDF backend.
+NO_SECOND_REGISTER = """\
+boresmith: 1
+instrument: Fuzz bench 1
+units: mm
+stock:
+  tube:
+    material: aluminium
+    tube:
+      outside_diameter: 22 mm
+      wall: 1 mm
+      length: 1000 mm
+fabrication:
+  sheet: 2500 x 1250 mm
+flutes:
+- id: flute-1
+  family: side-blown-flute
+  stock: tube
+  head:
+    embouchure:
+      diameter: 8 mm
+      lip_cover: 1/3
+    cork: 19 mm
+  holes: 8
+  fingerings:
+  - note: D5
+    closed: xxxxxxxx
+  - note: E5
+    closed: xxxxxxxo
+  - note: F#5
+    closed: xxxxxxoo
+  - note: G5
+    closed: xxxxxooo
+  - note: A5
+    closed: xxxxoooo
+  - note: B5
+    closed: xxxooooo
+  - note: C#6
+    closed: xxoooooo
+  - note: D6
+    closed: xooooooo
+  - note: E6
+    closed: oooooooo
+"""
+
+
+def test_fingering_without_a_predicted_second_register_is_left_out() -> None:
+    check_spec(NO_SECOND_REGISTER)
+    compiled = _compile(NO_SECOND_REGISTER)
+    assert compiled is not None
+    (pipe,) = compiled.resolved.pipes
+    assert all(math.isfinite(f.predicted_hz) for f in pipe.fingerings)
+    assert len(pipe.fingerings) == 17  # 9 in register 1, 8 of 9 in register 2
+    assert any("no register-2 resonance near E7" in w.message for w in compiled.resolved.warnings)

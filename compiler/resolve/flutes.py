@@ -173,11 +173,20 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
              fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None)
         for i, (spec_hole, x, d) in enumerate(zip(flute.holes, design.hole_positions_m,
                                                   design.hole_diameters_m, strict=True)))
-    fingerings = tuple(
+    every = [
         Fingering(note=names[i], closed=tuple(table[i]), register=registers[i],
                   target_hz=targets[i], predicted_hz=design.predicted_hz[i][registers[i] - 1],
                   error_cents=design.residual_cents[i])
-        for i in range(len(table)))
+        for i in range(len(table))]
+    # A second register the model finds no resonance for has no prediction to report (and
+    # NaN has no place in the JSON or on the build sheet): leave it out, and say so.
+    fingerings = tuple(f for f in every
+                       if np.isfinite(f.predicted_hz) and np.isfinite(f.error_cents))
+    unpredicted = [Note(flute.where.get("fingerings", flute.position),
+                        f"flute `{flute.id}`: the model finds no register-{f.register} resonance "
+                        f"near {f.note} for the fingering "
+                        f"{''.join('x' if v else 'o' for v in f.closed)}; it is left out of "
+                        "the report") for f in every if f not in fingerings]
     lowest = int(np.argmin([t if r == 1 else np.inf for t, r in zip(targets, registers,
                                                                     strict=True)]))
     closed = np.array(table[lowest], dtype=bool)
@@ -190,7 +199,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     warm = _first_register(instrument, air.at_temperature(t + SENSITIVITY_STEP_K), closed)
     cool = _first_register(instrument, air.at_temperature(t - SENSITIVITY_STEP_K), closed)
     picks = sorted({lowest, len(flute.fingerings) // 2, len(flute.fingerings) - 1})
-    top = max(max(p) for p in design.predicted_hz) * 1.3
+    top = max(f for p in design.predicted_hz for f in p if np.isfinite(f)) * 1.3
     freqs, magnitude = playing.spectrum(instrument, air.state,
                                         np.array([table[i] for i in picks], dtype=bool),
                                         f_min_hz=50.0, f_max_hz=top, n=CURVE_POINTS)
@@ -201,7 +210,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         id=flute.id, group=flute.id, family=flute.family, construction="stock-tube",
         note=names[lowest], harmonic=1, stock=stock.name, material=stock.material,
         target_hz=targets[lowest], predicted_hz=base, error_cents=cents(base, targets[lowest]),
-        harmonics_hz=tuple(float(f) for f in design.predicted_hz[lowest]),
+        harmonics_hz=tuple(float(f) for f in design.predicted_hz[lowest] if np.isfinite(f)),
         cents_per_mm=cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000),
         cents_per_c=cents(warm, cool) / (2 * SENSITIVITY_STEP_K),
         section="round", inside_diameter_m=bore_d, outside_diameter_m=stock.outside_diameter_m,
@@ -212,7 +221,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))
-    warnings = list(air.warnings)
+    warnings = list(air.warnings) + unpredicted
     if flute.measured:
         warnings.append(Note(flute.where.get("measured", flute.position),
                              f"flute `{flute.id}`: measured pitches are not fitted for flutes "

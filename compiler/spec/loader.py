@@ -171,15 +171,16 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
         if len(text) > MAX_BYTES:
             raise _error(filename, None, f"the file is {len(text)} bytes; the limit is {MAX_BYTES}",
                          "split the instrument into several specs")
+        raw = text
         try:
-            text = text.decode("utf-8")
+            text = raw.decode("utf-8")
         except UnicodeDecodeError as exc:
-            before = text[:exc.start]
+            before = raw[:exc.start]
             line_start = before.rfind(b"\n") + 1
             column = len(before[line_start:].decode("utf-8", errors="replace")) + 1
             raise YamlError([Problem(
                 Position(filename, before.count(b"\n") + 1, column),
-                f"the file is not UTF-8 text (byte {exc.start}, 0x{text[exc.start]:02x}, "
+                f"the file is not UTF-8 text (byte {exc.start}, 0x{raw[exc.start]:02x}, "
                 "is not a UTF-8 character)",
                 "save the spec as UTF-8 (an editor's \"Save with encoding\" or \"Reopen with "
                 "encoding\" fixes it)", "yaml")]) from None

@@ -8,12 +8,13 @@ from __future__ import annotations
 
 import difflib
 import json
+import re
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 from typing import Any
 
-from jsonschema import Draft202012Validator
+from jsonschema import Draft202012Validator, validators
 from jsonschema.exceptions import ValidationError
 
 from compiler import FORMAT_VERSION
@@ -37,9 +38,23 @@ def _schema_text(name: str) -> str:
     return checkout.read_text(encoding="utf-8")
 
 
+def _ecma_pattern(pattern: str) -> re.Pattern[str]:
+    """A JSON Schema ``pattern`` for Python's ``re``: in ECMA-262 (the dialect JSON Schema
+    names) an unescaped ``$`` matches only at the very end of the text, while Python's also
+    matches before a final newline, which would let `"chimes\\n"` through as an id."""
+    return re.compile(re.sub(r"(?<!\\)\$", r"\\Z", pattern))
+
+
+def _pattern(validator: Any, pattern: str, instance: Any, schema: Any) -> Any:
+    if validator.is_type(instance, "string") and not _ecma_pattern(pattern).search(instance):
+        yield ValidationError(f"{instance!r} does not match {pattern!r}")
+
+
 @lru_cache(maxsize=1)
 def _validator() -> Draft202012Validator:
-    return Draft202012Validator(read_schema(SPEC_SCHEMA))
+    checker = validators.extend(  # type: ignore[no-untyped-call]
+        Draft202012Validator, {"pattern": _pattern})
+    return checker(read_schema(SPEC_SCHEMA))  # type: ignore[no-any-return]
 
 
 def dotted(path: tuple[str | int, ...] | list[str | int]) -> str:
@@ -146,14 +161,14 @@ def _describe(error: ValidationError, document: Document, fallback: str = "") ->
     if kind == "pattern" and "propertyNames" in error.schema_path and isinstance(value, str):
         # The instance is a key of the mapping at ``path``: point at that key.
         return [Problem(document.key_at((*path, value)),
-                        f"`{value}` cannot be used as a name in {name}",
+                        f"`{_printable(value)}` cannot be used as a name in {name}",
                         "use letters, digits, `-`, `_` and `.` only (no spaces), starting with "
                         "a letter or digit, e.g. `alu-22`", "schema")]
     if kind == "pattern":
         examples = schema.get("examples", [])
         tip = hint + (" Examples: " + ", ".join(f"`{e}`" for e in examples) if examples else "")
-        return [Problem(where, f"{name}: `{value}` is not written the expected way", tip.strip(),
-                        "schema")]
+        return [Problem(where, f"{name}: `{_printable(value)}` is not written the expected way",
+                        tip.strip(), "schema")]
     if kind in ("minItems", "maxItems", "minLength", "maxLength"):
         words = {"minItems": "needs at least {} item(s)", "maxItems": "allows at most {} items",
                  "minLength": "needs at least {} character(s)", "maxLength": "allows at most {} "
@@ -182,6 +197,12 @@ def _one_of(error: ValidationError, document: Document, name: str, hint: str) ->
     where = document.at(tuple(error.absolute_path))
     return [Problem(where, f"{name} is not written in a form boresmith knows", tip.strip(),
                     "schema")]
+
+
+def _printable(value: Any) -> str:
+    """The text as written, with line breaks, tabs and other invisible characters escaped."""
+    text = str(value)
+    return text if text.isprintable() else text.encode("unicode_escape").decode("ascii")
 
 
 def _dereference(schema: Any) -> Any:
