@@ -96,8 +96,24 @@ def _run_backend(name: str, compiled: Compiled, options: BuildOptions, folder: P
     return list(written), cache.used
 
 
+def _die_with_parent() -> None:
+    """Linux: have the kernel end this worker when the build process dies (a killed build
+    must not leave a worker writing into its abandoned folder)."""
+    try:
+        import ctypes
+        import signal
+
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(1, int(signal.SIGKILL), 0, 0, 0)  # 1 = PR_SET_PDEATHSIG
+    except (OSError, AttributeError):
+        return
+
+
 def _pdf_worker(send: Any, compiled: Compiled, options: BuildOptions, folder: Path,
-                cache_folder: Path | None) -> None:
+                cache_folder: Path | None, parent: int) -> None:
+    _die_with_parent()
+    if os.getppid() != parent:  # the parent died before the line above took effect
+        os._exit(1)
     try:
         files, used = _run_backend("pdf", compiled, options, folder, cache_folder)
         send.send(("ok", files, used))
@@ -124,7 +140,8 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         context = multiprocessing.get_context("fork")
         receive, send = context.Pipe(duplex=False)
         worker = context.Process(target=_pdf_worker,
-                                 args=(send, compiled, options, folder, store.folder))
+                                 args=(send, compiled, options, folder, store.folder,
+                                       os.getpid()))
         worker.start()
         send.close()
         names.remove("pdf")
@@ -171,6 +188,21 @@ def _inside(base: Path, target: Path) -> bool:
     return True
 
 
+class OutputError(Exception):
+    """The output folder cannot be written safely (a usage problem, not a spec one)."""
+
+
+def _clean_leftovers(out_root: Path, slug_name: str) -> None:
+    """Remove the temporary folders of builds that were killed. If one died while swapping
+    folders, the previous output sits in ``.<slug>.old-*/previous``: put it back first."""
+    target = out_root / slug_name
+    for stale in sorted(out_root.glob(f".{slug_name}.*")):
+        previous = stale / "previous"
+        if previous.is_dir() and not target.exists():
+            os.replace(previous, target)
+        shutil.rmtree(stale, ignore_errors=True)
+
+
 def _up_to_date(out_root: Path, build_key: str) -> Path | None:
     """The output folder of an identical earlier build, if it is still intact."""
     try:
@@ -215,6 +247,7 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     if use_cache:
         done = _up_to_date(out_root, build_key)
         if done is not None:
+            _clean_leftovers(out_root, done.name)
             say("up to date")
             return done
     from compiler.resolve.resolver import slug
@@ -227,14 +260,9 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     out_root.mkdir(parents=True, exist_ok=True)
     target = out_root / slug_name
     if not _inside(out_root, target):
-        raise RuntimeError(f"refusing to write outside {out_root}: {target}")
-    for stale in sorted(out_root.glob(f".{slug_name}.*")):
-        # Left by a build that was killed; if it died while swapping folders, the previous
-        # output sits in ``.<slug>.old-*/previous``: put it back before cleaning up.
-        previous = stale / "previous"
-        if previous.is_dir() and not target.exists():
-            os.replace(previous, target)
-        shutil.rmtree(stale, ignore_errors=True)
+        raise OutputError(f"refusing to write outside {out_root}: {target} leads elsewhere "
+                          "(a symbolic link?); choose another output folder with -o")
+    _clean_leftovers(out_root, slug_name)
     work = Path(tempfile.mkdtemp(prefix=f".{slug_name}.building-", dir=out_root))
     umask = os.umask(0)
     os.umask(umask)
@@ -243,7 +271,7 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
         written = emit_all(compiled, options, work, progress, cache, build_key)
         for path in written:
             if not _inside(work, path):
-                raise RuntimeError(f"a backend wrote outside the build folder: {path}")
+                raise OutputError(f"a backend wrote outside the build folder: {path}")
         old = None
         if target.exists():
             old = Path(tempfile.mkdtemp(prefix=f".{slug_name}.old-", dir=out_root))

@@ -84,7 +84,7 @@ def cmd_resolve(args: argparse.Namespace) -> int:
 
 
 def cmd_build(args: argparse.Namespace) -> int:
-    from compiler.build import build
+    from compiler.build import OutputError, build
     from compiler.options import BuildOptions
 
     show = args.progress if args.progress is not None else sys.stderr.isatty()
@@ -95,7 +95,10 @@ def cmd_build(args: argparse.Namespace) -> int:
 
     options = BuildOptions(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
                            strict=args.strict, progress=show)
-    folder = build(_read(args.spec), args.spec, Path(args.out), options, progress)
+    try:
+        folder = build(_read(args.spec), args.spec, Path(args.out), options, progress)
+    except OutputError as exc:
+        raise UsageError(str(exc)) from None
     print(f"boresmith: wrote {folder}", file=sys.stderr)
     return EXIT_OK
 

@@ -21,8 +21,6 @@ import sys
 import time
 from pathlib import Path
 
-import pytest
-
 from compiler.build import build
 from compiler.cache import FOLDER as CACHE_FOLDER
 from compiler.options import BuildOptions
@@ -146,8 +144,6 @@ def test_killed_builds_leave_the_previous_output_intact(tmp_path: Path) -> None:
                 os.killpg(pgid, signal.SIGKILL)
 
 
-@pytest.mark.xfail(strict=True, reason="an up-to-date build returns before it removes the "
-                   "temporary folders of killed builds (compiler/build.py)")
 def test_up_to_date_build_also_removes_leftovers_of_killed_builds(tmp_path: Path) -> None:
     out = tmp_path / "out"
     folder = build(SMALL.read_bytes(), str(SMALL), out, BuildOptions())

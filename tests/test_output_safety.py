@@ -9,12 +9,14 @@ digits and dashes, so `../../etc` or `/tmp/x` builds inside the output folder.
 from __future__ import annotations
 
 import json
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
 
-from compiler.build import build
-from compiler.errors import SchemaError, SpecError
+from compiler.build import OutputError, build
+from compiler.errors import SchemaError
 from compiler.options import BuildOptions
 from compiler.spec import load_spec
 
@@ -154,7 +156,14 @@ def test_output_folder_that_is_a_link_elsewhere_is_not_written_through(tmp_path:
     out = tmp_path / "out"
     out.mkdir()
     (out / "link-test").symlink_to(elsewhere, target_is_directory=True)
-    with pytest.raises((RuntimeError, OSError, SpecError)):
+    with pytest.raises(OutputError, match="refusing to write outside"):
         build(_spec("Link test"), "safety.yaml", out, BuildOptions())
     assert list(elsewhere.iterdir()) == []
     assert (out / "link-test").is_symlink()
+    # on the command line: a clean usage error, no traceback
+    spec = tmp_path / "safety.yaml"
+    spec.write_text(_spec("Link test"))
+    done = subprocess.run([sys.executable, "-m", "compiler", "build", str(spec), "-o", str(out)],
+                          capture_output=True, text=True, check=False)
+    assert done.returncode == 2
+    assert "refusing to write outside" in done.stderr and "Traceback" not in done.stderr
