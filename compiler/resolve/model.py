@@ -194,6 +194,8 @@ class Holder:
     spacing_m: float
     margin_m: float
     clearance_m: float
+    source: Position | None = None
+    """Where the spec defines the holder (for errors about the plate)."""
 
 
 @dataclass(frozen=True)

@@ -144,7 +144,8 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
         plate = spec.stock_named(tubes.holder.stock)
         assert plate is not None
         holder = Holder(plate.name, plate.material, plate.thickness_m, tubes.holder.spacing_m,
-                        tubes.holder.margin_m, tubes.holder.clearance_m)
+                        tubes.holder.margin_m, tubes.holder.clearance_m,
+                        tubes.where.get("holder", tubes.position))
     group = Group(id=tubes.id, kind="tube-set", family=tubes.family,
                   construction="stock-tube", air=air.report,
                   end_correction_model=tubes.end_correction.model, calibration=fit,
