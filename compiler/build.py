@@ -172,6 +172,7 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         "spec_file": compiled.resolved.spec_file,
         "spec_sha256": compiled.resolved.spec_sha256,
         "build_key": build_key,
+        "warnings": [f"{n.position}: warning: {n.message}" for n in compiled.resolved.warnings],
         "files": [{"path": f, "sha256": _sha256(folder / f), "bytes": (folder / f).stat().st_size}
                   for f in names_written],
     }
@@ -238,9 +239,14 @@ def _remember(out_root: Path, build_key: str, slug: str) -> None:
 
 
 def build(text: str | bytes, filename: str, out_root: Path, options: BuildOptions,
-          progress: Progress | None = None, use_cache: bool = True) -> Path:
-    """Compile and write ``out_root/<slug>/`` atomically; return that folder."""
+          progress: Progress | None = None, use_cache: bool = True,
+          warn: Progress | None = None) -> Path:
+    """Compile and write ``out_root/<slug>/`` atomically; return that folder.
+
+    ``warn`` receives each warning as ``FILE:LINE:COL: warning: MESSAGE`` (also when the
+    build was up to date: the manifest keeps them)."""
     say = progress or _quiet
+    tell = warn or _quiet
     data = text.encode("utf-8") if isinstance(text, str) else text
     build_key = key_of("build", data, Path(filename).name,
                        options.paper, options.dxf_version, options.part_files, options.strict)
@@ -249,6 +255,9 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
         if done is not None:
             _clean_leftovers(out_root, done.name)
             say("up to date")
+            manifest = json.loads((done / "manifest.json").read_text(encoding="utf-8"))
+            for line in manifest.get("warnings", []):
+                tell(str(line))
             return done
     from compiler.resolve.resolver import slug
     from compiler.spec import load_spec
@@ -257,6 +266,8 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     slug_name = slug(spec.instrument)
     cache = Cache(out_root / CACHE_FOLDER / slug_name if use_cache else None)
     compiled = compile_spec(spec, options, progress, cache)
+    for note in compiled.resolved.warnings:
+        tell(f"{note.position}: warning: {note.message}")
     out_root.mkdir(parents=True, exist_ok=True)
     target = out_root / slug_name
     if not _inside(out_root, target):

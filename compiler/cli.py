@@ -72,10 +72,16 @@ def _load(path: str, strict: bool = False):  # type: ignore[no-untyped-def]
     return resolved
 
 
+def _warn(resolved) -> None:  # type: ignore[no-untyped-def]
+    for note in resolved.warnings:
+        print(f"{note.position}: warning: {note.message}", file=sys.stderr)
+
+
 def cmd_resolve(args: argparse.Namespace) -> int:
     from compiler.emit import resolved_json, table
 
     resolved = _load(args.spec, args.strict)
+    _warn(resolved)
     if args.json:
         sys.stdout.write(resolved_json.dumps(resolved))
     else:
@@ -96,7 +102,8 @@ def cmd_build(args: argparse.Namespace) -> int:
     options = BuildOptions(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
                            strict=args.strict, progress=show)
     try:
-        folder = build(_read(args.spec), args.spec, Path(args.out), options, progress)
+        folder = build(_read(args.spec), args.spec, Path(args.out), options, progress,
+                       warn=lambda line: print(line, file=sys.stderr))
     except OutputError as exc:
         raise UsageError(str(exc)) from None
     print(f"boresmith: wrote {folder}", file=sys.stderr)

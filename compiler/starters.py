@@ -341,9 +341,9 @@ flutes:                           # tubes with tone holes
       - {note: E5, closed: xxx xxo}
       - {note: F#5, closed: xxx xoo}
       - {note: G5, closed: xxx ooo}
-      - {note: A5, closed: xxo ooo}
-      - {note: B5, closed: xoo ooo}
-      - {note: C#6, closed: ooo ooo, second_register: C#7}   # what overblowing should give
+      - {note: A5, closed: xxo ooo, second_register: none}   # not overblown: the upper
+      - {note: B5, closed: xoo ooo, second_register: none}   # octave takes cross-fingerings
+      - {note: C#6, closed: ooo ooo, second_register: none}
     constraints:                  # limits for the hole solver
       min_diameter: 4 mm          # smallest hole
       max_diameter: 10 mm         # largest hole

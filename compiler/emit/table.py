@@ -72,6 +72,4 @@ def render(resolved: Resolved) -> str:
     for group in resolved.groups:
         lines.append("")
         lines += _group_table(group, [by_id[i] for i in group.pipe_ids])
-    for note in resolved.warnings:
-        lines.append(f"{note.position}: warning: {note.message}")
     return "\n".join(lines) + "\n"

@@ -10,6 +10,8 @@ the length together, so no tuning allowance is added.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
 from compiler.acoustics import playing, solve
@@ -18,24 +20,50 @@ from compiler.acoustics.impedance import Bore, Instrument
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
-from compiler.resolve import calibration
+from compiler.resolve import calibration, plain
 from compiler.resolve.environment import group_air
 from compiler.resolve.model import Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
 
+NO_SECOND_REGISTER = spec_model.NO_SECOND_REGISTER
+SECOND_REGISTER_WARNING_CENTS = 30.0
+"""A second-register note further off than this is reported as a warning: beyond what a
+player can lip into tune (common practice, from memory)."""
 ABOVE_CORK_M = 0.015
 SENSITIVITY_STEP_M = 1e-4
 SENSITIVITY_STEP_K = 0.5
 CURVE_POINTS = 400
 
 
+def _at(flute: spec_model.Flute, key: str) -> Position:
+    return flute.where.get(key) or flute.where.get("head") or flute.position
+
+
 def _head(flute: spec_model.Flute, bore_d: float, wall: float) -> tuple[EngineHead, Head]:
+    """The exciting end, checked against the tube it sits in."""
     h = flute.head
+    name = f"flute `{flute.id}`"
     if flute.family == "duct-flute":
         assert h.window_length_m is not None and h.window_width_m is not None
         labium = h.window_from_top_m or (2 * bore_d + h.window_length_m)
+        if h.window_width_m > bore_d:
+            raise PhysicsError.at(_at(flute, "head.window.width"),
+                                  f"{name}: the window ({h.window_width_m * 1000:.1f} mm) is "
+                                  f"wider than the bore ({bore_d * 1000:.1f} mm)",
+                                  "a window is usually 1/2 to 3/4 of the bore diameter")
+        if labium <= h.window_length_m:
+            raise PhysicsError.at(_at(flute, "head.window.from_top"),
+                                  f"{name}: the labium {labium * 1000:.1f} mm from the top "
+                                  f"leaves no room for the block above a "
+                                  f"{h.window_length_m * 1000:.1f} mm window",
+                                  "put the labium at least two bore diameters from the top end")
+        if h.duct_height_m is not None and h.duct_height_m >= bore_d / 2:
+            raise PhysicsError.at(_at(flute, "head.duct.height"),
+                                  f"{name}: a duct {h.duct_height_m * 1000:.1f} mm high takes "
+                                  f"half the bore ({bore_d * 1000:.1f} mm) or more",
+                                  "ducts are commonly 1 to 1.5 mm high")
         mouth = labium - h.window_length_m / 2
         engine = EngineHead("duct", mouth_position_m=mouth, window_length_m=h.window_length_m,
                             window_width_m=h.window_width_m, window_thickness_m=wall)
@@ -43,8 +71,20 @@ def _head(flute: spec_model.Flute, bore_d: float, wall: float) -> tuple[EngineHe
                       None, None, None)
         return engine, report
     assert h.embouchure_diameter_m is not None
+    if h.embouchure_diameter_m >= bore_d:
+        raise PhysicsError.at(_at(flute, "head.embouchure.diameter"),
+                              f"{name}: the embouchure hole ({h.embouchure_diameter_m * 1000:.1f}"
+                              f" mm) is as wide as the bore ({bore_d * 1000:.1f} mm) or wider",
+                              "an embouchure hole is commonly 1/2 to 2/3 of the bore diameter")
     cork = h.cork_m or bore_d
     mouth = h.embouchure_from_top_m or (cork + ABOVE_CORK_M)
+    if cork >= mouth:
+        raise PhysicsError.at(_at(flute, "head.cork"),
+                              f"{name}: the cork {cork * 1000:.1f} mm above the embouchure hole "
+                              f"would sit above the top end (the hole is {mouth * 1000:.1f} mm "
+                              "from the top)",
+                              "make `cork` smaller than `embouchure.from_top`, or move the hole "
+                              "further down")
     engine = EngineHead("embouchure", mouth_position_m=mouth,
                         embouchure_radius_m=h.embouchure_diameter_m / 2,
                         embouchure_chimney_m=wall, cavity_length_m=cork,
@@ -62,11 +102,12 @@ def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         targets.append(target_hz(spec.tuning, f.note, f.frequency_hz))
         registers.append(1)
         names.append(note_name(f.note))
-    for f in flute.fingerings:
+    for f, first in zip(flute.fingerings, list(targets), strict=True):
+        if f.second_register == NO_SECOND_REGISTER:
+            continue
         second = f.second_register if f.second_register is not None else f.note + 12
         table.append(f.closed)
-        targets.append(target_hz(spec.tuning, second) if second <= 127 else
-                       2 * targets[len(registers) - len(flute.fingerings)])
+        targets.append(target_hz(spec.tuning, second) if second <= 127 else 2 * first)
         registers.append(2)
         names.append(note_name(min(second, 127)))
     return table, targets, registers, names
@@ -163,20 +204,35 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     except solve.DesignError as exc:
         raise PhysicsError.at(_where(flute, exc.subject), f"flute `{flute.id}`: {exc.message}",
                               exc.hint) from None
-    instrument = design.instrument
-    length = design.length_m
+    # Predict the flute as it will be cut: length and free hole positions rounded to the
+    # spec's precision (drills are already snapped), then the model run again.
+    step = spec.fabrication.precision_m
+    length = flute.length_m or plain.round_to(design.length_m, step)
+    positions = tuple(x if spec_hole.position_m is not None else plain.round_to(x, step)
+                      for spec_hole, x in zip(flute.holes, design.hole_positions_m, strict=True))
+    instrument = replace(design.instrument, length_m=length, holes=tuple(
+        replace(h, position_m=x) for h, x in zip(design.instrument.holes, positions,
+                                                 strict=True)))
+    predicted, residual, _ = playing.predictions(instrument, air.state,
+                                                 np.array(table, dtype=bool), np.array(targets),
+                                                 np.array(registers))
+    if stock.length_m is not None and length > stock.length_m:
+        raise PhysicsError.at(flute.where.get("stock", flute.position),
+                              f"flute `{flute.id}`: the tube must be {length * 1000:.1f} mm long, "
+                              f"but stock `{stock.name}` is {stock.length_m * 1000:.0f} mm",
+                              "use longer stock, or a higher lowest note")
     holes = tuple(
         Hole(number=i + 1, label=spec_hole.label or ("T" if abs(spec_hole.angle_deg) >= 90
                                                    else str(i + 1)),
              position_from_top_m=x, position_from_bottom_m=length - x, diameter_m=d,
              angle_deg=spec_hole.angle_deg, chimney_m=wall, undercut_m=spec_hole.undercut_m,
              fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None)
-        for i, (spec_hole, x, d) in enumerate(zip(flute.holes, design.hole_positions_m,
+        for i, (spec_hole, x, d) in enumerate(zip(flute.holes, positions,
                                                   design.hole_diameters_m, strict=True)))
     every = [
         Fingering(note=names[i], closed=tuple(table[i]), register=registers[i],
-                  target_hz=targets[i], predicted_hz=design.predicted_hz[i][registers[i] - 1],
-                  error_cents=design.residual_cents[i])
+                  target_hz=targets[i], predicted_hz=float(predicted[i][registers[i] - 1]),
+                  error_cents=float(residual[i]))
         for i in range(len(table))]
     # A second register the model finds no resonance for has no prediction to report (and
     # NaN has no place in the JSON or on the build sheet): leave it out, and say so.
@@ -187,6 +243,14 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                         f"near {f.note} for the fingering "
                         f"{''.join('x' if v else 'o' for v in f.closed)}; it is left out of "
                         "the report") for f in every if f not in fingerings]
+    spec_rows = {note_name(f.note): f.position for f in flute.fingerings}
+    unpredicted += [Note(spec_rows.get(f.note) or _second_position(flute, f.closed),
+                         f"flute `{flute.id}`: the second register of "
+                         f"{''.join('x' if v else 'o' for v in f.closed)} is predicted "
+                         f"{f.error_cents:+.0f} cents from {f.note}; use another fingering for "
+                         "it (`second_register: none` leaves this one out)")
+                    for f in fingerings
+                    if f.register == 2 and abs(f.error_cents) > SECOND_REGISTER_WARNING_CENTS]
     lowest = int(np.argmin([t if r == 1 else np.inf for t, r in zip(targets, registers,
                                                                     strict=True)]))
     closed = np.array(table[lowest], dtype=bool)
@@ -199,7 +263,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     warm = _first_register(instrument, air.at_temperature(t + SENSITIVITY_STEP_K), closed)
     cool = _first_register(instrument, air.at_temperature(t - SENSITIVITY_STEP_K), closed)
     picks = sorted({lowest, len(flute.fingerings) // 2, len(flute.fingerings) - 1})
-    top = max(f for p in design.predicted_hz for f in p if np.isfinite(f)) * 1.3
+    top = max(f for p in predicted for f in p if np.isfinite(f)) * 1.3
     freqs, magnitude = playing.spectrum(instrument, air.state,
                                         np.array([table[i] for i in picks], dtype=bool),
                                         f_min_hz=50.0, f_max_hz=top, n=CURVE_POINTS)
@@ -210,12 +274,17 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         id=flute.id, group=flute.id, family=flute.family, construction="stock-tube",
         note=names[lowest], harmonic=1, stock=stock.name, material=stock.material,
         target_hz=targets[lowest], predicted_hz=base, error_cents=cents(base, targets[lowest]),
-        harmonics_hz=tuple(float(f) for f in design.predicted_hz[lowest] if np.isfinite(f)),
+        harmonics_hz=tuple(float(f) for f in predicted[lowest] if np.isfinite(f)),
         cents_per_mm=cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000),
         cents_per_c=cents(warm, cool) / (2 * SENSITIVITY_STEP_K),
         section="round", inside_diameter_m=bore_d, outside_diameter_m=stock.outside_diameter_m,
         inside_width_m=None, inside_depth_m=None, wall_m=wall,
-        acoustic_length_m=length, end_correction_m=0.0, speaking_length_m=length,
+        # Speaking length: from the centre of the window or embouchure to the open foot;
+        # acoustic length: the open-open pipe that would sound the lowest note, c/(2f).
+        acoustic_length_m=air.state.speed_m_s / (2 * base),
+        end_correction_m=air.state.speed_m_s / (2 * base) - (length
+                                                             - engine_head.mouth_position_m),
+        speaking_length_m=length - engine_head.mouth_position_m,
         cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
         holes=holes, fingerings=fingerings, curves=curves, source=flute.position)
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
@@ -230,6 +299,11 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
 
 
 def _with_length(instrument: Instrument, length_m: float) -> Instrument:
-    from dataclasses import replace
-
     return replace(instrument, length_m=length_m)
+
+
+def _second_position(flute: spec_model.Flute, closed: tuple[bool, ...]) -> Position:
+    for f in flute.fingerings:
+        if f.closed == closed:
+            return f.position
+    return flute.where.get("fingerings", flute.position)

@@ -194,6 +194,10 @@ class HoleSpec:
     position: Position
 
 
+NO_SECOND_REGISTER = -1
+"""``second_register: none``: the fingering is not used in the second register."""
+
+
 @dataclass(frozen=True)
 class FingeringSpec:
     note: int

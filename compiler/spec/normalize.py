@@ -459,7 +459,10 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         fingerings.append(model.FingeringSpec(
             note=note, closed=tuple(ch in "xX" for ch in pattern),
             frequency_hz=r.frequency((*p, "frequency")),
-            second_register=r.note((*p, "second_register")), position=r.at(p)))
+            second_register=(model.NO_SECOND_REGISTER
+                             if r.get((*p, "second_register")) == "none"
+                             else r.note((*p, "second_register"))),
+            position=r.at(p)))
     c = (*base, "constraints")
     smallest, largest = r.length((*c, "min_diameter")), r.length((*c, "max_diameter"))
     if smallest is not None and largest is not None and smallest > largest:
@@ -486,7 +489,11 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         measured=_measured(r, base),
         position=r.at(base),
         where=model._frozen(r.where(base, "id", "family", "stock", "head", "holes",
-                                    "fingerings", "constraints", "length", "measured")),
+                                    "fingerings", "constraints", "length", "measured",
+                                    "head.cork", "head.embouchure.diameter",
+                                    "head.embouchure.from_top", "head.window.width",
+                                    "head.window.length", "head.window.from_top",
+                                    "head.duct.height")),
     )
 
 

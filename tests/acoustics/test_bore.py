@@ -1,10 +1,14 @@
 """Bore elements: loss model, cylinder and frustum transfer matrices.
 
 Sources: D. H. Keefe, JASA 75(1), 58-62 (1984) (series and its stated 1 % accuracy for rv >= 10);
-the exact Zwikker & Kosten (1949) low-reduced-frequency solution, computed here with
-scipy.special.jv (Tijdeman, J. Sound Vib. 39(1), 1975, shows it covers the other solutions);
-REFERENCES §3a (check table and practical example, computed there from the same formulas) and
-§5b (exact lossless cone matrix, verified there against the spherical-wave solution).
+the exact Zwikker & Kosten low-reduced-frequency solution (Sound Absorbing Materials, 1949;
+bibliographic details from memory), computed here with scipy.special.jv (H. Tijdeman, J. Sound
+Vib. 39(1), 1-33, 1975, shows it covers the other solutions). The exact-vs-series table and the
+19 mm practical example are check values computed from the formulas of Keefe (1984) and Zwikker &
+Kosten (1949) with the air constants of A. H. Benade, JASA 44(2), 616-623 (1968). The lossless
+cone check value is computed from the exact spherical-wave solution of a conical frustum (the
+standard form, e.g. Chaigne & Kergomard, Acoustics of Musical Instruments, 2016, ch. 7: that
+attribution from memory), checked here independently against Webster's horn equation.
 """
 
 from __future__ import annotations
@@ -25,16 +29,18 @@ from compiler.acoustics.bore import (
     shear_number,
 )
 
-# Benade (1968) / Keefe (1984) air at 20 °C, REFERENCES §2.
+# Air at 20 °C from the linearised constants of Benade, JASA 44(2) (1968), also used by
+# Keefe (1984); values computed from those formulas.
 AIR = Air(
     293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
 )
-# The constants of REFERENCES §3a's exact-vs-series table (air at 300 K).
+# Benade's (1968) constants at 300 K, where the linearisation is centred (Keefe 1984 uses them).
 AIR_300K = Air(300.0, 101325.0, 0.0, 0.0004, "benade", 347.23, 1.1769, 1.846e-5, 1.4017, 0.841**2)
 
 
 def zwikker_kosten(air: Air, radius: float, omega: float) -> tuple[complex, complex]:
-    """Exact low-reduced-frequency solution (REFERENCES §3a), independent of the engine."""
+    """Exact low-reduced-frequency solution (Zwikker & Kosten 1949; Tijdeman 1975), written
+    independently of the engine."""
     rho, c, eta, g = air.density_kg_m3, air.speed_m_s, air.viscosity_pa_s, air.gamma
     s = np.pi * radius**2
     rv = radius * np.sqrt(rho * omega / eta)
@@ -54,13 +60,15 @@ def at_rv(air: Air, rv: float, omega: float = 2 * np.pi * 1000) -> float:
 def test_lossless_values() -> None:
     w = 2 * np.pi * np.array([100.0, 1000.0])
     zc, gamma = characteristic(AIR, 0.01, w, "none")
+    # Lossless plane waves: Zc = ρc/S and Γ = jω/c (Keefe 1984 in the limit rv → ∞).
     np.testing.assert_allclose(zc, AIR.density_kg_m3 * AIR.speed_m_s / (np.pi * 1e-4))
     np.testing.assert_allclose(gamma, 1j * w / AIR.speed_m_s)
 
 
 @pytest.mark.parametrize(
     ("rv", "zc_keefe", "gamma_keefe", "zc_exact", "gamma_exact"),
-    # REFERENCES §3a table: Keefe (1984) series and exact ZK, Zc/Z0 and Γ/k, 300 K constants.
+    # Check values computed from Keefe's (1984) series and from the exact Zwikker & Kosten (1949)
+    # Bessel form, Zc/Z0 and Γ/k, with Benade's (1968) 300 K constants.
     [
         (5, 1.07380 - 0.12218j, 0.25820 + 1.20900j, 1.06979 - 0.12183j, 0.25871 + 1.20162j),
         (10, 1.03690 - 0.04869j, 0.11605 + 1.10450j, 1.03654 - 0.04873j, 0.11604 + 1.10370j),
@@ -98,7 +106,8 @@ def test_keefe_series_within_one_percent_of_exact(rv: float) -> None:
 
 
 def test_practical_example_nineteen_mm_bore_at_440_hz() -> None:
-    # REFERENCES §3a: a = 9.5 mm, 440 Hz, 20 °C → rv 128.67, α = 0.0659 Np/m, v_p/c = 0.99194.
+    # Check values computed from Keefe's (1984) series with Benade (1968) air at 20 °C:
+    # a = 9.5 mm, 440 Hz → rv 128.67, α = 0.0659 Np/m, v_p/c = 0.99194.
     air = Air(
         293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.2039, 1.8144e-5, 1.40189, 0.84215**2
     )
@@ -115,6 +124,9 @@ def test_cylinder_matrix_lossless_and_reciprocal() -> None:
     L = 0.37
     A, B, C, D = cylinder_matrix(L, zc, gamma)
     k = w / AIR.speed_m_s
+    # Lossless cylinder: A = D = cos kL, B = j Zc sin kL, det = 1 (the standard transmission-line
+    # matrix; the input impedance it gives is eq. 3 of J. Woodhouse, Euphonics, §11.1.3, written
+    # there in the e^{-iωt} convention).
     np.testing.assert_allclose(A, np.cos(k * L), atol=1e-12)
     np.testing.assert_allclose(B, 1j * zc * np.sin(k * L), rtol=1e-12)
     np.testing.assert_allclose(A * D - B * C, 1.0, atol=1e-12)
@@ -124,7 +136,9 @@ def test_cylinder_matrix_lossless_and_reciprocal() -> None:
 
 
 def test_cone_check_value() -> None:
-    # REFERENCES §5b: r1 5 mm, r2 10 mm, L 100 mm, f 1000 Hz, c 343, rho 1.2 (SI acoustic units).
+    # Check values computed from the exact lossless spherical-wave frustum matrix (standard form,
+    # Chaigne & Kergomard 2016 ch. 7, from memory): r1 5 mm, r2 10 mm, L 100 mm, f 1000 Hz,
+    # c 343, rho 1.2 (SI acoustic units).
     air = Air(293.15, 101325.0, 0.0, 0.0004, "plain", 343.0, 1.2, 1.8e-5, 1.4, 0.71)
     A, B, C, D = frustum_matrix(air, 0.1, 0.005, 0.010, 2 * np.pi * 1000, "none")
     assert complex(A) == pytest.approx(-1.043571, abs=1e-6)
@@ -145,6 +159,8 @@ def test_converging_cone_is_the_reversed_diverging_cone() -> None:
 
 
 def test_cone_tends_to_cylinder() -> None:
+    # As r2 → r1 the frustum becomes a cylinder (x1 → ∞ in the spherical-wave matrix): an
+    # exact limit.
     w = 2 * np.pi * np.array([300.0, 1500.0])
     cone = frustum_matrix(AIR, 0.25, 0.008, 0.008 * (1 + 1e-7), w, "keefe")
     cyl = cylinder_matrix(0.25, *characteristic(AIR, 0.008, w, "keefe"))
@@ -205,7 +221,8 @@ def test_frustum_closed_at_small_end_resonances() -> None:
 
 
 def test_lossy_cone_equivalent_radius_against_staircase() -> None:
-    # The equivalent-radius practice (REFERENCES §5b) against a fine staircase of lossy cylinders,
+    # The equivalent-radius practice (common practice, discussed by Grothe, Baumgart & Nederveen
+    # 2023, arXiv:2303.12750) against a fine staircase of lossy cylinders,
     # each with its own local losses: the input impedances agree to 0.2 %.
     r1, r2, L = 0.005, 0.010, 0.3
     w = 2 * np.pi * np.array([250.0, 777.0, 1900.0])
@@ -218,4 +235,5 @@ def test_lossy_cone_equivalent_radius_against_staircase() -> None:
         r = r1 + (r2 - r1) * 0.5 * (edges[i] + edges[i + 1]) / L
         z = input_impedance(frustum_matrix(AIR, L / n, r, r, w, "keefe"), z)
     np.testing.assert_allclose(cone, z, rtol=2e-3)
+    # L/∫dx/a(x) for a linear taper is the logarithmic mean (r2 − r1)/ln(r2/r1): exact calculus.
     assert float(equivalent_radius(r1, r2)) == pytest.approx((r2 - r1) / np.log(r2 / r1))

@@ -1,10 +1,13 @@
 """Tone holes: length corrections, lattice cutoff, and one-hole pipes in the full model.
 
-Sources: A. Lefebvre & G. P. Scavone, JASA 131(4), 3153-3163 (2012) (t_i and t_a fits, from
-memory in REFERENCES §6c, whose check values were computed from the formulas as written);
-Nederveen, Jansen & van Hassel, Acustica 84 (1998) (t_m); A. H. Benade, JASA 32, 1591-1608
-(1960) (lattice cutoff, REFERENCES §6e); REFERENCES §6d (one-hole lumped effective length,
-derived there; idea from C. J. Nederveen, Acoustical Aspects of Woodwind Instruments, 1969);
+Sources: A. Lefebvre & G. P. Scavone, JASA 131(4), 3153-3163 (2012) (t_i and t_a fits:
+coefficients from memory; check values computed from the formulas as written);
+Nederveen, Jansen & van Hassel, Acustica 84, 957-966 (1998) (t_m, from memory; the t_i limits
+0.82b and 0.16b from its abstract); A. H. Benade, JASA 32, 1591-1608 (1960) (lattice cutoff:
+check value computed from the formula, derived from one cell's inertance and compliance; the
+coefficient from memory); the one-hole lumped effective length, derived from Zh ∥ Zdown =
+jZc tan kΔ (same approach as J. Woodhouse, Euphonics §11.1.3; idea from C. J. Nederveen,
+Acoustical Aspects of Woodwind Instruments, 1969/1998, from memory), check value computed from it;
 H. Levine & J. Schwinger, Phys. Rev. 73 (1948) (0.6133a).
 """
 
@@ -43,7 +46,8 @@ def cents(f: float, ref: float) -> float:
 
 
 def test_inner_length_check_value() -> None:
-    # REFERENCES §6c: b = 4 mm, a = 9.5 mm → t_i (Lefebvre & Scavone 2012) = 2.476 mm.
+    # Check value computed from the Lefebvre & Scavone (2012) t_i fit (coefficients from
+    # memory): b = 4 mm, a = 9.5 mm → t_i = 2.476 mm.
     assert float(inner_length(0.004, A)) == pytest.approx(2.476e-3, abs=5e-7)
     # Nederveen et al. 1998 abstract: 0.82b for a small hole down to 0.16b at δ = 1.
     assert float(inner_length(1e-5, A)) / 1e-5 == pytest.approx(0.82, abs=0.005)
@@ -52,7 +56,8 @@ def test_inner_length_check_value() -> None:
 
 @pytest.mark.parametrize(
     ("t_over_b", "open_ratio", "closed_ratio"),
-    [(1.0, -0.2905, -0.2872), (0.5, -0.2976, -0.2617)],  # REFERENCES §6c check values
+    # check values computed from the Lefebvre & Scavone (2012) t_a fits (from memory)
+    [(1.0, -0.2905, -0.2872), (0.5, -0.2976, -0.2617)],
 )
 def test_series_length_check_values(
     t_over_b: float, open_ratio: float, closed_ratio: float
@@ -70,10 +75,15 @@ def test_series_length_check_values(
 def test_matching_and_radiation_lengths() -> None:
     b = 0.004
     d = b / A
+    # t_m = bδ(1 + 0.207δ³)/8 (Nederveen, Jansen & van Hassel 1998; Dubos et al. 1999, Acta
+    # Acustica 85(2), 153-169: from memory).
     assert float(matching_length(b, A)) == pytest.approx(b * d * (1 + 0.207 * d**3) / 8)
+    # Radiation lengths: 0.6133b unflanged (Levine & Schwinger 1948), 0.8216b flanged (Norris &
+    # Sheng 1989, quoted by Dalmont, Nederveen & Joly 2001).
     assert float(radiation_length("unflanged", b, A + 0.002)) == pytest.approx(0.6133 * b)
     assert float(radiation_length("flanged", b, A + 0.002)) == pytest.approx(0.8216 * b)
-    # the on-cylinder fit lies between the limits for a finger-hole-sized opening
+    # the on-cylinder fit (Dalmont et al. 2002, Acta Acustica 88, 567-575: from memory, not
+    # verified) lies between the limits for a finger-hole-sized opening
     mid = float(radiation_length("on-cylinder", b, A + 0.002))
     assert 0.5 * b < mid < 0.8216 * b
     with pytest.raises(ValueError):
@@ -81,24 +91,30 @@ def test_matching_and_radiation_lengths() -> None:
 
 
 def test_lattice_cutoff_check_value() -> None:
-    # REFERENCES §6e: c 343.36, a 9.5 mm, b 5 mm, 2s 30 mm, t_e 8 mm → 1856.6 Hz (Benade 1960).
+    # Check value computed from Benade's (1960) cutoff f_c = (c/2π)(b/a)/sqrt(2s·t_e) (coefficient
+    # from memory; derived from one cell's hole inertance and bore compliance):
+    # c 343.36, a 9.5 mm, b 5 mm, 2s 30 mm, t_e 8 mm → 1856.6 Hz.
     assert float(lattice_cutoff(343.36, A, 0.005, 0.030, 0.008)) == pytest.approx(1856.6, abs=0.05)
 
 
 def test_lumped_end_distance_check_value_and_inverse() -> None:
-    # REFERENCES §6d: a 9.5, b 4, t 4 mm, t_e = t + t_i + 0.6133b = 8.93 mm, L_d = 50 mm + 0.6133a.
+    # Check value computed from the lumped one-hole formula Δ = L_d/(1 + L_d·Sh/(S·t_e)), the
+    # low-frequency limit of Zh ∥ Zdown = jZc tan kΔ (Nederveen 1969/1998, from memory):
+    # a 9.5, b 4, t 4 mm, t_e = t + t_i + 0.6133b = 8.93 mm, L_d = 50 mm + 0.6133a → 26.48 mm.
     t_e = 0.004 + float(inner_length(0.004, A)) + 0.6133 * 0.004
     assert t_e == pytest.approx(8.93e-3, abs=5e-6)
     ld = 0.050 + 0.6133 * A
     delta = float(end_distance(ld, A, 0.004, t_e))
     assert delta == pytest.approx(26.48e-3, abs=5e-6)
+    # the inverse recovers L_d (the same formula solved for L_d: exact algebra)
     assert float(downstream_for_shortening(ld - delta, A, 0.004, t_e)) == pytest.approx(ld)
 
 
 def test_one_hole_pipe_full_model_against_lumped_formula() -> None:
     # A long lossless pipe, open at the top (Levine & Schwinger end, 0.6133a), one open hole
     # 50 mm above the open foot: at low frequency its first resonance is c / 2(L_up + 0.6133a + Δ)
-    # with Δ from REFERENCES §6d. The full model also has the series length and the chimney's
+    # with Δ from the lumped one-hole formula (Nederveen 1969/1998, from memory). The full model
+    # also has the series length and the chimney's
     # frequency dependence, so they agree to a fraction of a cent only at low frequency.
     b, t, up = 0.004, 0.004, 1.5
     pipe = Instrument(Bore.cylinder(A), (Hole(up, b, t),), Head("open"), up + 0.05, losses="none")
@@ -111,7 +127,8 @@ def test_one_hole_pipe_full_model_against_lumped_formula() -> None:
 def test_hole_as_wide_as_the_bore_acts_like_a_cut() -> None:
     # A hole as wide as the bore, in a thin wall: nearly the tube cut at the hole plus its
     # end correction (Levine & Schwinger 0.6133a). The 50 mm of bore below still adds a little
-    # inertance in parallel (REFERENCES §6d), so the model sounds a few cents lower, not higher.
+    # inertance in parallel (the Zh ∥ Zdown network of the lumped one-hole formula, Nederveen
+    # 1969/1998, from memory), so the model sounds a few cents lower, not higher.
     up = 0.4
     pipe = Instrument(
         Bore.cylinder(A), (Hole(up, A, 0.001),), Head("open"), up + 0.05, losses="none"
@@ -123,7 +140,8 @@ def test_hole_as_wide_as_the_bore_acts_like_a_cut() -> None:
 
 def test_closed_hole_lowers_the_pitch_slightly() -> None:
     # A closed hole near the middle of an open pipe (a pressure maximum) adds compliance: the
-    # pitch drops by a few cents at most (Keefe 1982, from memory; REFERENCES §6a closed stub).
+    # pitch drops by a few cents at most (Keefe 1982, JASA 72(3), 688-699, from memory; the
+    # closed chimney as a stub in the T-network of Keefe 1990, JASA 88(1), 35-51, from memory).
     L = 0.5
     plain = Instrument(Bore.cylinder(A), (), Head("open"), L, losses="none")
     holed = Instrument(
@@ -134,7 +152,8 @@ def test_closed_hole_lowers_the_pitch_slightly() -> None:
 
 
 def test_bigger_or_undercut_hole_sounds_higher() -> None:
-    # Opening area raises the pitch (smaller effective length, REFERENCES §6d).
+    # Opening area raises the pitch: Δ = L_d/(1 + L_d·Sh/(S·t_e)) shrinks as the hole area Sh
+    # grows (Nederveen 1969/1998, from memory).
     def pitch(b: float, undercut: float) -> float:
         hole = Hole(0.30, b, 0.003, undercut)
         return first(Instrument(Bore.cylinder(A), (hole,), Head("open"), 0.42), [False])
@@ -144,7 +163,8 @@ def test_bigger_or_undercut_hole_sounds_higher() -> None:
 
 def test_hole_elements_closed_stub_and_open_shunt() -> None:
     # Lossless, a closed cylinder chimney is a stub: Zs = j Zh (k t_i - cot(k h)), h = t + t_m
-    # (REFERENCES §6a); open, the shunt is close to the inertance j ω ρ t_e / Sh at low frequency.
+    # (T-network of Keefe 1990 and Dubos et al. 1999: standard form, from memory); open, the
+    # shunt is close to the inertance j ω ρ t_e / Sh at low frequency.
     b, t = 0.004, 0.003
     w = 2 * np.pi * np.array([200.0, 800.0])
     k = w / AIR.speed_m_s
@@ -160,4 +180,5 @@ def test_hole_elements_closed_stub_and_open_shunt() -> None:
         za_o,
         1j * w * AIR.density_kg_m3 / (np.pi * A * A) * float(series_length(b, A, t, closed=False)),
     )
-    assert np.all(za_c.imag < 0) and np.all(za_o.imag < 0)  # negative series lengths
+    # negative series lengths (Dubos et al. 1999; Lefebvre & Scavone 2012: from memory)
+    assert np.all(za_c.imag < 0) and np.all(za_o.imag < 0)

@@ -2,8 +2,9 @@
 
 Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a and the low-frequency
 resistance (ka)^2/4); J.-P. Dalmont, C. J. Nederveen & N. Joly, J. Sound Vib. 244(3), 505-534
-(2001) (0.8216a, and the frequency-dependent |R|, Δ(ka) approximations whose check values
-REFERENCES §4b computed from the formulas as transcribed).
+(2001) (0.8216a, due to Norris & Sheng 1989, and the frequency-dependent |R|, Δ(ka)
+approximations of its p. 509; those were seen only in a secondary transcription, not read in the
+paper, and their check values were computed from the formulas as transcribed).
 """
 
 from __future__ import annotations
@@ -41,7 +42,8 @@ def test_low_frequency_limits() -> None:
 
 @pytest.mark.parametrize(
     ("ka", "r_mag", "delta_ratio"),
-    # REFERENCES §4b check table, computed from the Dalmont, Nederveen & Joly (2001) formulas.
+    # Check values computed from the Dalmont, Nederveen & Joly (2001, p. 509) formulas as
+    # transcribed in a secondary source (not read in the paper).
     [
         (0.01, 1.0000, 0.6133),
         (0.1, 0.9951, 0.6119),
@@ -58,17 +60,21 @@ def test_dalmont_2001_unflanged_table(ka: float, r_mag: float, delta_ratio: floa
 
 
 def test_frequency_dependent_models_tend_to_their_limits() -> None:
-    # ka → 0: 0.6133 (Levine & Schwinger 1948) and 0.8216 (flanged), REFERENCES §4b.
+    # ka → 0: 0.6133 (Levine & Schwinger 1948) and 0.8216 (flanged: Norris & Sheng 1989, quoted
+    # by Dalmont, Nederveen & Joly 2001).
     assert end_correction("frequency-dependent", A) == pytest.approx(0.6133 * A)
     assert float(unflanged_end_correction_ratio(1e-6)) == pytest.approx(0.6133, abs=1e-9)
     assert float(flanged_end_correction_ratio(1e-9)) == pytest.approx(0.8216, abs=1e-7)
-    # The flanged form (not verified, REFERENCES §4b) decreases with ka, as the unflanged one does.
+    # The commonly quoted flanged form Δ/a = 0.8216/(1 + (0.77ka)²/(1 + 0.77ka)), attributed to
+    # Norris & Sheng 1989 and Silva et al. 2009 (J. Sound Vib. 322, 255-263): from memory, not
+    # verified. It decreases with ka, as the unflanged one does.
     ratios = flanged_end_correction_ratio(np.array([0.1, 0.5, 1.0]))
     assert np.all(np.diff(ratios) < 0)
 
 
 def test_frequency_dependent_impedance_low_frequency_limit() -> None:
-    # REFERENCES §4b: Zr/Zc ≈ 0.25 (ka)^2 + j 0.6133 ka as ka → 0 (Levine & Schwinger 1948).
+    # Zr/Zc ≈ 0.25 (ka)^2 + j 0.6133 ka as ka → 0 (Levine & Schwinger 1948; also the low-frequency
+    # limit of the Dalmont, Nederveen & Joly 2001 form).
     ka = np.array([0.005, 0.01, 0.02])
     k = ka / A
     zr = radiation_impedance("frequency-dependent", A, k, 1.0)

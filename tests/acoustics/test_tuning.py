@@ -1,9 +1,9 @@
 """Tuning: note names, scales, temperaments, frequencies.
 
-Sources named beside each check. "REFERENCES §9" values were computed from the stated
-definitions (12-TET, ratios, chains of fifths); the Werckmeister III definition and its
-A-referenced offsets were checked at tonalsoft.com ("Werckmeister") and a piano technicians'
-list archive (moypiano.com, 1999).
+Sources named beside each check. The 12-TET, comma and temperament-table check values were
+computed from the stated definitions (12-TET, ratios, chains of fifths); the Werckmeister III
+definition and its A-referenced offsets were checked at tonalsoft.com ("Werckmeister") and a
+piano technicians' list archive (moypiano.com, 1999).
 """
 
 from __future__ import annotations
@@ -39,14 +39,16 @@ from compiler.spec.notes import (
 
 
 def test_iso_16_reference_pitch() -> None:
-    # ISO 16:1975: the standard tuning frequency is A4 = 440 Hz.
+    # ISO 16:1975: the standard tuning frequency is A4 = 440 Hz (standard number and year from
+    # memory; widely cited).
     assert note_frequency(parse_note("A4")) == 440.0
 
 
 @pytest.mark.parametrize(
     ("note", "hz", "tol"),
     [
-        # 12-TET f = 440 * 2**((m - 69) / 12), scientific pitch notation (REFERENCES §9).
+        # Check values computed from 12-TET f = 440 * 2**((m - 69) / 12) (A4 = 440 Hz, ISO 16)
+        # in scientific pitch notation (C4 = middle C = MIDI 60).
         ("C4", 261.6256, 1e-4),
         ("A0", 27.5, 1e-9),
         ("C0", 16.3516, 1e-4),
@@ -76,8 +78,8 @@ def test_octave_doubles_and_semitone_ratio() -> None:
 
 
 def test_commas() -> None:
-    # Pythagorean comma 3^12/2^19 = 23.4600 c; syntonic comma 81/80 = 21.5063 c (REFERENCES §9;
-    # standard values of music theory).
+    # Pythagorean comma 3^12/2^19 = 23.4600 c; syntonic comma 81/80 = 21.5063 c (computed from
+    # the ratios; standard values of music theory).
     assert PYTHAGOREAN_COMMA_CENTS == pytest.approx(23.4600, abs=5e-5)
     assert SYNTONIC_COMMA_CENTS == pytest.approx(21.5063, abs=5e-5)
 
@@ -95,11 +97,12 @@ def test_cents_floats_and_arrays() -> None:
 
 
 def test_nearest_note() -> None:
-    # 445 Hz is 1200 log2(445/440) = 19.56 c above A4 (REFERENCES §9 cents definition).
+    # 445 Hz is 1200 log2(445/440) = 19.56 c above A4 (definition of the cent, A. J. Ellis 1885:
+    # attribution from memory).
     midi, dev = nearest_note(445.0)
     assert midi == 69
     assert dev == pytest.approx(19.56, abs=0.005)
-    # 415.3047 Hz is 12-TET G#4 with A4 = 440 (same formula as the §9 check values).
+    # 415.3047 Hz is 12-TET G#4 with A4 = 440 (440·2^(−1/12), the 12-TET formula above).
     midi, dev = nearest_note(415.3047)
     assert (midi, round(dev, 3)) == (68, 0.0)
     # A quarter-tone (+50 c) belongs to the upper note: the deviation lies in [-50, 50).
@@ -119,10 +122,11 @@ def test_nearest_note_round_trip(f_hz: float, a4: float) -> None:
 
 # --- temperaments ---------------------------------------------------------------------------
 
-# REFERENCES §9 table: deviation from 12-TET in cents on C, computed there from the definitions:
+# Deviation from 12-TET in cents on C, check values computed from the definitions:
 # Pythagorean and quarter-comma meantone chains Eb..G# (pure fifths; fifths narrowed by 1/4
 # syntonic comma), Werckmeister III (definition verified at tonalsoft.com), Vallotti (F-C-G-D-A-E-B
-# narrowed by 1/6 Pythagorean comma), 5-limit just ratios.
+# narrowed by 1/6 Pythagorean comma: the standard definition, from memory), 5-limit just ratios
+# (one common choice: 16/15, 9/8, 6/5, 5/4, 4/3, 45/32, 3/2, 8/5, 5/3, 9/5, 15/8).
 REFERENCE_TABLE = {
     "pythagorean": (0.00, 13.69, 3.91, -5.87, 7.82, -1.96, 11.73, 1.96, 15.64, 5.87, -3.91, 9.78),
     "quarter-comma-meantone": (
@@ -144,6 +148,7 @@ def test_temperament_table(name: str) -> None:
 
 
 def test_equal_is_all_zero() -> None:
+    # 12-TET deviates from itself by 0 c on every pitch class (definition).
     assert temperament_cents("equal") == (0.0,) * 12
     assert set(REFERENCE_TABLE) | {"equal"} == set(TEMPERAMENTS)
 
@@ -171,8 +176,8 @@ def _fifth(temperament: str, low: str) -> float:
         # Werckmeister III: C-G, G-D, D-A, B-F# narrowed by 1/4 Pythagorean comma, others pure
         # (tonalsoft.com, "Werckmeister").
         ("werckmeister-3", {"C4", "G4", "D4", "B4"}, 1 / 4),
-        # Vallotti: F-C-G-D-A-E-B narrowed by 1/6 Pythagorean comma, others pure (REFERENCES §9,
-        # from memory there: the standard definition).
+        # Vallotti: F-C-G-D-A-E-B narrowed by 1/6 Pythagorean comma, others pure (the standard
+        # definition, from memory).
         ("vallotti", {"F4", "C4", "G4", "D4", "A4", "E4"}, 1 / 6),
     ],
 )
@@ -222,6 +227,8 @@ def test_other_tonic_is_rotation(name: str, tonic: int) -> None:
 @pytest.mark.parametrize("name", [*TEMPERAMENTS])
 @pytest.mark.parametrize("tonic", [0, 2, 7, 9])
 def test_a_keeps_reference_pitch(name: str, tonic: int) -> None:
+    # Every temperament is re-referenced so that A sits on the ISO 16 reference pitch and its
+    # octaves (as the A-referenced offsets of the moypiano.com archive are).
     for a in (57, 69, 81):
         expected = 440.0 * 2 ** ((a - 69) // 12)
         assert note_frequency(a, 440.0, name, tonic) == pytest.approx(expected, rel=1e-14)

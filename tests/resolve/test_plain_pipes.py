@@ -39,8 +39,10 @@ def _tube_set(family: str, model: str, notes: str = "[A4]", extra: str = "") -> 
 
 
 def test_rule_of_thumb_and_linear_speed_match_hand_calculation() -> None:
-    # Hand calculation: linear rule c = 331.3 + 0.606·20 = 343.42 m/s (common practice,
-    # REFERENCES §1a); open at both ends with 0.4 × diameter per open end (common practice):
+    # Hand calculation: linear rule c = 331.3 + 0.606·20 = 343.42 m/s (common practice; the
+    # first-order Taylor expansion of the ideal-gas law about 0 °C, standard physics texts);
+    # open at both ends with 0.4 × diameter per open end (common practice, the rounding of the
+    # flanged 0.8216a of Norris & Sheng 1989, quoted by Dalmont, Nederveen & Joly 2001):
     # L = c/(2·440) − 2·0.4·0.020; the length is rounded to 0.01 mm, then f = c/(2(L + 0.016)).
     r = _resolve(_tube_set("open-tube", "{model: rule-of-thumb, k: 0.4}"))
     pipe = r.pipes[0]
@@ -61,19 +63,23 @@ def test_levine_schwinger_and_flanged_end_corrections(model: str, ratio: float) 
 
 
 def test_stopped_tube_quarter_wave() -> None:
-    # f = c/(4(L + 0.6133a)) for a tube closed at one end (REFERENCES §11, lossless).
+    # f = c/(4(L + 0.6133a)) for a tube closed at one end, lossless: quarter-wave resonance
+    # (Fletcher & Rossing, The Physics of Musical Instruments, 1998, ch. 8, from memory) with
+    # the open-end correction 0.6133a of Levine & Schwinger 1948, Phys. Rev. 73, 383.
     pipe = _resolve(_tube_set("stopped-tube", "{model: unflanged}")).pipes[0]
     c = 343.42
     assert pipe.predicted_hz == pytest.approx(c / (4 * (pipe.speaking_length_m + 0.6133 * 0.01)),
                                               rel=1e-12)
     assert pipe.target_hz == pytest.approx(440.0)
-    # the plug sits below the speaking length: cut = speaking length + plug (10 mm minimum)
+    # the plug sits below the speaking length: cut = speaking length + plug; the default plug
+    # is half the bore, 10 mm minimum (common practice, from memory), so 10 mm here
     assert pipe.stopper is not None
     assert pipe.cut_length_m == pytest.approx(pipe.speaking_length_m + 0.010, abs=1e-9)
 
 
 def test_open_pipes_have_all_harmonics_stopped_only_odd() -> None:
-    # Fletcher & Rossing 1998 §8.2: open-open resonances at n·f1, closed-open at odd n·f1.
+    # Fletcher & Rossing 1998 §8.2 (section number from memory): open-open resonances at
+    # n·f1, closed-open at odd n·f1.
     open_ = _resolve(_tube_set("open-tube", "{model: unflanged}")).pipes[0]
     stopped = _resolve(_tube_set("stopped-tube", "{model: unflanged}")).pipes[0]
     f1 = open_.harmonics_hz[0]
@@ -83,20 +89,26 @@ def test_open_pipes_have_all_harmonics_stopped_only_odd() -> None:
 
 
 def test_even_harmonic_of_a_stopped_tube_is_an_error() -> None:
+    # A tube closed at one end has only odd resonances (quarter-wave: f = (2n−1)c/4L', Fletcher
+    # & Rossing 1998 ch. 8, from memory), so a request for harmonic 2 cannot be met.
     with pytest.raises(PhysicsError, match="only odd harmonics"):
         _resolve(_tube_set("stopped-tube", "{model: unflanged}", extra="    harmonic: 2\n"))
 
 
 def test_open_tube_on_a_higher_harmonic() -> None:
-    # Tuned on harmonic 3: L_eff = 3c/(2f).
+    # Tuned on harmonic 3: L_eff = 3c/(2f), the third half-wave resonance of a tube open at
+    # both ends (Fletcher & Rossing 1998 ch. 8, from memory); c = 343.42 m/s, the linear rule
+    # at 20 °C (common practice).
     pipe = _resolve(_tube_set("open-tube", "{model: unflanged}",
                               extra="    harmonic: 3\n")).pipes[0]
     assert pipe.acoustic_length_m == pytest.approx(3 * 343.42 / (2 * 440), abs=2e-5)
 
 
 @pytest.mark.parametrize(("model", "speed"), [
-    # REFERENCES §1: linear 343.42, ideal gas 343.215 at 20 °C; Cramer 1993 at 20 °C,
-    # 50 % RH, 400 ppm, 101.325 kPa: 343.987 m/s.
+    # Check values computed from the formulas: linear rule c = 331.3 + 0.606 t (common
+    # practice) 343.42; ideal-gas law c = 331.3·sqrt(1 + t/273.15) 343.215 at 20 °C; Cramer 1993,
+    # JASA 93(5) 2510–2516, with the Davis 1992 (Metrologia 29, 67–70) vapour pressure, at
+    # 20 °C, 50 % RH, 400 ppm, 101.325 kPa: 343.987 m/s.
     ("linear", 343.42), ("ideal-gas", 343.215), ("cramer-1993", 343.987)])
 def test_speed_of_sound_models_in_use(model: str, speed: float) -> None:
     env = f"{{temperature: 20 C, humidity: 50 %, co2: 400 ppm, sound_speed: {model}}}"
@@ -106,8 +118,10 @@ def test_speed_of_sound_models_in_use(model: str, speed: float) -> None:
 
 
 def test_sensitivities() -> None:
-    # d(cents)/dL = −1200/ln2 / L_eff (f ∝ 1/L_eff); d(cents)/dT = 1200/ln2 · (dc/dT)/c with
-    # the linear rule's dc/dT = 0.606 m/s per K (REFERENCES §1a).
+    # d(cents)/dL = −1200/ln2 / L_eff (f ∝ 1/L_eff; exact derivative of cents = 1200·log2 of
+    # the frequency ratio); d(cents)/dT = 1200/ln2 · (dc/dT)/c with the linear rule's
+    # dc/dT = 0.606 m/s per K (common practice; 331.3/(2·273.15), the slope of the ideal-gas
+    # law at 0 °C).
     pipe = _resolve(_tube_set("open-tube", "{model: unflanged}")).pipes[0]
     per_mm = -1200 / math.log(2) / (pipe.acoustic_length_m * 1000)
     assert pipe.cents_per_mm == pytest.approx(per_mm, rel=1e-4)
@@ -133,6 +147,7 @@ def test_calibration_recovers_a_known_factor() -> None:
 
 def test_uncalibrated_is_reported() -> None:
     fit = _resolve(_tube_set("open-tube", "{model: unflanged}")).groups[0].calibration
+    # No measured prototypes in the spec: the published correction is used unscaled (factor 1).
     assert not fit.calibrated and fit.value == 1.0
 
 
@@ -148,8 +163,11 @@ RANK = """ranks:
 
 
 def test_halving_interval_reproduces_normalmensur() -> None:
-    # Töpfer's Normalmensur (REFERENCES §8; Adelung 1991): D = 155.5 mm · 2^(−n/16);
-    # 4' C = 92.46 mm, 2' C = 54.98 mm, 1' C = 32.69 mm; halves on the 17th note (E3).
+    # Töpfer's Normalmensur (Töpfer 1855, Die Theorie und Praxis des Orgelbaues, via Adelung
+    # 1991, Einführung in den Orgelbau, pp. 85–86; seen in secondary tables only):
+    # D = 155.5 mm · 2^(−n/16). Check values computed from that formula (the published tables
+    # print 92.4 and 54.9): 4' C = 92.46 mm, 2' C = 54.98 mm, 1' C = 32.69 mm; halves on the
+    # 17th note (E3).
     r = _resolve(_spec(RANK.format(notes="[C2, C3, E3, C4, C5]")))
     d = {p.note: p.inside_diameter_m * 1000 for p in r.pipes}
     assert d["C3"] == pytest.approx(92.46, abs=0.005)
@@ -159,8 +177,12 @@ def test_halving_interval_reproduces_normalmensur() -> None:
 
 
 def test_mouth_and_its_correction() -> None:
-    # Mouth width 1/4 of the circumference (Töpfer, REFERENCES §7b); cut-up 1/4 of it;
-    # correction Δ = (S/A)(ℓ + 0.9·√A), Rayleigh orifice (REFERENCES §7a, derived).
+    # Mouth width 1/4 of the circumference (Töpfer's Normalmensur, Töpfer 1855 via Adelung
+    # 1991; seen in secondary sources); cut-up 1/4 of the width, as the spec asks (principals
+    # 1/4–1/3, common practice, from memory); correction Δ = (S/A)(ℓ + 0.9·√A): Rayleigh's
+    # orifice conductivity (Rayleigh, The Theory of Sound, 1896, §306–307, from memory)
+    # referred to the pipe area, a derived approximation; α = 0.9 is taken from the usual
+    # 0.8–1.0 range (from memory, not calibrated).
     pipe = _resolve(_spec(RANK.format(notes="[C3]"))).pipes[0]
     d = 0.1555 * 2 ** (-12 / 16)
     width = math.pi * d / 4
@@ -170,7 +192,7 @@ def test_mouth_and_its_correction() -> None:
     assert pipe.mouth.cutup_m == pytest.approx(width / 4, rel=1e-12)
     expected = (math.pi * d * d / 4) / area * (0.0008 + 0.9 * math.sqrt(area))
     assert pipe.mouth.correction_m == pytest.approx(expected, rel=1e-12)
-    # open flue: top correction (Levine–Schwinger, default) plus the mouth
+    # open flue: top correction (Levine & Schwinger 1948, 0.6133a, the default) plus the mouth
     assert pipe.end_correction_m == pytest.approx(0.6133 * d / 2 + expected, rel=1e-9)
 
 
@@ -179,6 +201,8 @@ def test_tuning_allowance_adds_to_the_cut_length() -> None:
         "fabrication: {precision: 0.01 mm}",
         "fabrication: {precision: 0.1 mm, tuning_allowance: 3 %}"))
     pipe = r.pipes[0]
+    # The spec's tuning allowance: 3 % of the speaking length added to the cut, rounded to the
+    # spec's 0.1 mm precision (the definition of the field, not a physical law).
     assert pipe.cut_length_m == pytest.approx(
         pipe.speaking_length_m + round(pipe.speaking_length_m * 0.03, 4), abs=1e-9)
 
@@ -197,10 +221,14 @@ def test_stopped_wooden_pipe_has_a_stopper_and_block() -> None:
     pipe = _resolve(text).pipes[0]
     assert pipe.section == "rect"
     assert pipe.stopper is not None and pipe.block is not None
+    # The stopper's face closes the speaking length; the board is cut to block + speaking
+    # length + the spec's stopper length (50 mm) + travel (20 mm): a sum by construction.
     assert pipe.stopper.position_m == pytest.approx(pipe.speaking_length_m)
     assert pipe.cut_length_m == pytest.approx(
         pipe.block.length_m + pipe.speaking_length_m + 0.050 + 0.020, abs=1e-9)
-    # stopped: quarter wave, odd harmonics; the equivalent radius is sqrt(W·D/π) (§8)
+    # stopped: quarter wave, odd harmonics (Fletcher & Rossing 1998 ch. 8, from memory); the
+    # equivalent radius is sqrt(W·D/π), the traditional equal-area equivalence of square wooden
+    # pipes (common practice; organ-building tradition after Töpfer 1855 / Adelung 1991)
     assert [h / pipe.harmonics_hz[0] for h in pipe.harmonics_hz[:3]] == pytest.approx([1, 3, 5])
 
 
@@ -209,6 +237,7 @@ def test_stock_choice_picks_the_nearest_fitting_tube() -> None:
                  "notes: [C4, C5]}\n")
     r = _resolve(text)
     picked = {p.note: p.stock for p in r.pipes}
+    # Preferred length over bore ≈ 12 for tube sets (common practice, from memory).
     # C4 (≈ 320 mm long): the 30 mm bore gives L/D ≈ 10.6, nearer 12 than 20 mm (≈ 16);
     # C5 (≈ 158 mm): 20 mm gives ≈ 7.9, nearer 12 than 30 mm (≈ 5.1).
     assert picked == {"C4": "tube-30", "C5": "tube-20"}
@@ -217,6 +246,9 @@ def test_stock_choice_picks_the_nearest_fitting_tube() -> None:
 def test_note_no_stock_can_reach() -> None:
     text = _spec("tube_sets:\n  - {id: t, family: stopped-tube, stock: tube-30, "
                  "notes: [C7]}\n")
+    # C7 (2093 Hz, 12-TET) needs a quarter wavelength c/4f ≈ 41 mm less the end correction:
+    # far below four bore diameters (120 mm) of the 30 mm tube, the shortest length over bore
+    # the resolver accepts (end corrections stop being a small fix; common practice).
     with pytest.raises(PhysicsError, match="no listed stock can make C7"):
         _resolve(text)
 
@@ -226,6 +258,7 @@ def test_resolved_json_follows_its_schema() -> None:
     text = _spec(RANK.format(notes="C3..C4") + "tube_sets:\n  - {id: t, family: open-tube, "
                  "stock: tube-20, notes: [A4, B4]}\n")
     data = json.loads(json.dumps(to_dict(_resolve(text))))
+    # JSON Schema draft 2020-12 (json-schema.org), validated by the jsonschema library.
     jsonschema.Draft202012Validator(schema).validate(data)
     assert len(data["pipes"]) == 15
     for pipe in data["pipes"]:
