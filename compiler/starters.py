@@ -9,6 +9,7 @@ by its ``$id``, since the starter may be written anywhere.
 
 from __future__ import annotations
 
+import os
 from collections.abc import Mapping
 from pathlib import Path
 from types import MappingProxyType
@@ -366,16 +367,34 @@ FAMILIES: tuple[str, ...] = tuple(_BODIES)
 """The instrument families, in the order the design lists them."""
 
 
-def modeline() -> str:
-    """The editor's schema line, naming the spec schema by its ``$id`` URL."""
-    from compiler.spec.validate import SPEC_SCHEMA, read_schema
+def schema_file() -> Path:
+    """The spec schema shipped with this boresmith (in the package, or the checkout)."""
+    from compiler.spec.validate import SPEC_SCHEMA
 
-    return f"# yaml-language-server: $schema={read_schema(SPEC_SCHEMA)['$id']}"
+    here = Path(__file__).resolve().parent
+    for candidate in (here / "schemas" / SPEC_SCHEMA, here.parent / "schemas" / SPEC_SCHEMA):
+        if candidate.is_file():
+            return candidate
+    raise FileNotFoundError(SPEC_SCHEMA)
 
 
-def starter(family: str) -> str:
+def modeline(folder: Path | None = None) -> str:
+    """The editor's schema line. It names the schema file that ships with boresmith, so an
+    editor can read it without a network: relative to ``folder`` (where the starter is
+    written) when that is possible, else by its absolute path."""
+    target = schema_file()
+    where = target.as_posix()
+    if folder is not None:
+        try:
+            where = Path(os.path.relpath(target, folder.resolve())).as_posix()
+        except ValueError:  # another drive (Windows)
+            where = target.as_posix()
+    return f"# yaml-language-server: $schema={where}"
+
+
+def starter(family: str, folder: Path | None = None) -> str:
     """The starter spec for ``family`` (one of ``FAMILIES``); ``KeyError`` for another."""
-    return f"{modeline()}\n{_BODIES[family]}"
+    return f"{modeline(folder)}\n{_BODIES[family]}"
 
 
 def run_new(family: str, file: Path | None) -> tuple[int, str]:
@@ -388,9 +407,9 @@ def run_new(family: str, file: Path | None) -> tuple[int, str]:
     if family not in _BODIES:
         return EXIT_USAGE, (f"unknown family `{family}`; choose one of: "
                             + ", ".join(FAMILIES))
-    text = starter(family)
     if file is None:
-        return EXIT_OK, text
+        return EXIT_OK, starter(family)
+    text = starter(family, file.parent if file.parent.is_dir() else None)
     try:
         with file.open("x", encoding="utf-8", newline="\n") as out:
             out.write(text)
@@ -400,4 +419,5 @@ def run_new(family: str, file: Path | None) -> tuple[int, str]:
         return EXIT_USAGE, f"{file}: the folder {file.parent} does not exist"
     except OSError as exc:
         return EXIT_USAGE, f"{file}: cannot write ({exc.strerror})"
-    return EXIT_OK, f"wrote {file}: a {family} starter; try `boresmith check {file}`"
+    article = "an" if family[0] in "aeiou" else "a"
+    return EXIT_OK, f"wrote {file}: {article} {family} starter; try `boresmith check {file}`"

@@ -54,8 +54,8 @@ def test_warmer_room_lengthens_every_pipe_in_proportion_to_the_speed_of_sound() 
     assert (air.old, air.new, air.delta, air.unit) == (18.0, 25.0, 7.0, "C")
     speed = _by(changes, "group", "air.speed_m_s")["principal-4"]
     ratio = _number(speed.new) / _number(speed.old)
-    # Ideal gas: c ∝ sqrt(T) (REFERENCES §1b; Kinsler et al., Fundamentals of Acoustics, 2000,
-    # ch. 5, section from memory). Moist air gains a little more (more water vapour at the
+    # Ideal gas: c ∝ sqrt(T) (Kinsler et al., Fundamentals of Acoustics, 2000, ch. 5, section
+    # from memory). Moist air gains a little more (more water vapour at the
     # same 55 % RH, Cramer 1993), so the ratio sits just above the ideal-gas one.
     ideal = math.sqrt((25 + 273.15) / (18 + 273.15))
     assert ideal < ratio < ideal + 0.002
@@ -102,7 +102,8 @@ def test_air_change_is_reported_with_cramers_speeds() -> None:
     old = _resolve(base.replace("temperature: 18 C", "temperature: 20 C"))
     new = _resolve(base.replace("temperature: 18 C", "temperature: 25 C"))
     speed = _by(compare(old, new), "group", "air.speed_m_s")["principal-4"]
-    # Cramer (1993) at 101.325 kPa, 50 % RH, 400 ppm CO2 (REFERENCES §1c check values).
+    # Cramer (1993), JASA 93(5), 2510-2516, with the Davis (1992, Metrologia 29) vapour pressure
+    # at 101.325 kPa, 50 % RH, 400 ppm CO2: check values computed from those formulas.
     assert _number(speed.old) == pytest.approx(343.987, abs=2e-3)
     assert _number(speed.new) == pytest.approx(347.127, abs=2e-3)
     assert speed.unit == "m/s"

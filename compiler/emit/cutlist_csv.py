@@ -17,8 +17,14 @@ COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantit
 
 
 def render(parts: Parts) -> str:
-    """CSV text, sorted by stock then part; sheet parts name the sheet they are nested on."""
+    """CSV text, by stock, then in the order of the pipes (as in the spec: low to high);
+    sheet parts name the sheet they are nested on."""
     placed = {pl.part_id: sheet.id for sheet in parts.sheets for pl in sheet.placements}
+    order: dict[str, int] = {}
+    for p in parts.parts:
+        order.setdefault(p.pipe_id or p.id, len(order))
+    for cut in parts.tube_cuts:
+        order.setdefault(cut.pipe_id, len(order))
     rows = []
     for p in parts.parts:
         if p.kind == "template":
@@ -30,7 +36,7 @@ def render(parts: Parts) -> str:
         rows.append((cut.stock, cut.material, "", f"{cut.pipe_id}-tube", cut.pipe_id,
                      "tube", "1", f"{cut.length_mm:.2f}", f"{cut.outside_diameter_mm:.2f}",
                      "stock tube", "width column: outside diameter"))
-    rows.sort(key=lambda r: (r[0], r[3]))
+    rows.sort(key=lambda r: (r[0], order.get(r[4] or r[3], len(order)), r[3]))
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(COLUMNS)

@@ -25,15 +25,22 @@ def _align(rows: list[list[str]], right: set[int]) -> list[str]:
     return lines
 
 
+def _calibration(group: Group) -> str:
+    fit = group.calibration
+    if not fit.calibrated:
+        return "uncalibrated"
+    text = f"calibrated, {fit.parameter} {fit.value:.3f}, "
+    if len(fit.residuals) == 1:
+        return text + "an exact fit of one measurement (measure more pipes to check the model)"
+    return text + f"rms {fit.rms_cents:.2f} cents over {len(fit.residuals)} measurements"
+
+
 def _group_table(group: Group, pipes: list[Pipe]) -> list[str]:
     air = group.air
     lines = [f"{group.id} ({group.family}, {group.construction}): "
              f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
              f"c = {air.speed_m_s:.2f} m/s ({air.sound_speed_model}); "
-             + ("calibrated, "
-                f"{group.calibration.parameter} {group.calibration.value:.3f}, "
-                f"rms {group.calibration.rms_cents:.2f} cents"
-                if group.calibration.calibrated else "uncalibrated")]
+             + _calibration(group)]
     header = ["note", "target Hz", "predicted Hz", "cents", "speaking mm", "cut mm",
               "section mm", "mouth mm", "cut-up mm", "toe mm", "stock"]
     rows = [header]

@@ -77,8 +77,9 @@ def halving_factor(semitones: float, halving_interval: float) -> float:
     return float(2.0 ** (-semitones / halving_interval))
 
 
-def section_for(rank: spec_model.Rank, note: int) -> Section:
-    """The cross-section of one pipe: override, explicit table, or the halving rule."""
+def section_for(rank: spec_model.Rank, note: int, step: float | None = None) -> Section:
+    """The cross-section of one pipe: override, explicit table, or the halving rule;
+    rounded to ``step`` (the spec's precision) when given, as it will be made."""
     round_ = rank.construction == "rolled-sheet"
     override = _override(rank, note)
     scale = rank.scale
@@ -101,6 +102,8 @@ def section_for(rank: spec_model.Rank, note: int) -> Section:
         d = override.diameter_m or d
         w = override.width_m or w
         dp = override.depth_m or dp
+    if step:
+        d, w, dp = (None if v is None else plain.round_to(v, step) for v in (d, w, dp))
     return Section(round_, d, w, dp)
 
 
@@ -174,23 +177,24 @@ def _acoustics(rank: spec_model.Rank, section: Section, mouth_width: float, cutu
         mouth_m=simple.mouth_correction(section.area_m2, mouth_area, lip), scale=scale)
 
 
-def _mouth_numbers(rank: spec_model.Rank, note: int, section: Section,
-                   thickness: float) -> tuple[float, float, float, float, float]:
+def _mouth_numbers(rank: spec_model.Rank, note: int, section: Section, thickness: float,
+                   step: float) -> tuple[float, float, float, float, float]:
     override = _override(rank, note)
     wf = (override.mouth_width if override and override.mouth_width else None) or (
         rank.mouth.width or DEFAULT_MOUTH_WIDTH[rank.construction])
     cf = (override.cutup if override and override.cutup else None) or (
         rank.mouth.cutup or DEFAULT_CUTUP[rank.family])
-    width = wf * section.mouth_side_m
+    width = plain.round_to(wf * section.mouth_side_m, step)
     lip = rank.mouth.lip_thickness_m or (
         thickness if rank.construction == "rolled-sheet" else min(thickness, WOOD_LIP_M))
-    return wf, cf, width, width * cf, lip
+    return wf, cf, width, plain.round_to(width * cf, step), lip
 
 
 def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
                  air: GroupAir, m: spec_model.Measurement) -> calibration.Observation:
-    section = section_for(rank, m.note)
-    _, _, width, cutup, lip = _mouth_numbers(rank, m.note, section, stock.thickness_m)
+    step = spec.fabrication.precision_m
+    section = section_for(rank, m.note, step)
+    _, _, width, cutup, lip = _mouth_numbers(rank, m.note, section, stock.thickness_m, step)
     override = _override(rank, m.note)
     target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
     base = _acoustics(rank, section, width, cutup, lip, 1.0)
@@ -215,7 +219,7 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
     override = _override(rank, note)
     if override is not None:
         where = override.position
-    section = section_for(rank, note)
+    section = section_for(rank, note, spec.fabrication.precision_m)
     t = stock.thickness_m
     inner = section.diameter_m if section.round else min(section.width_m or 0,
                                                          section.depth_m or 0)
@@ -228,7 +232,8 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
                               f"{label}: the scale gives {1000 * (inner or 0):.1f} mm inside, "
                               f"no wider than {walls} of {1000 * t:.1f} mm",
                               "use a wider scale or a larger halving interval, or thinner stock")
-    wf, cf, width, cutup, lip = _mouth_numbers(rank, note, section, t)
+    wf, cf, width, cutup, lip = _mouth_numbers(rank, note, section, t,
+                                               spec.fabrication.precision_m)
     limit = section.diameter_m if section.round else section.width_m
     assert limit is not None
     if width > limit:

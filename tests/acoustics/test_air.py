@@ -1,9 +1,10 @@
 """Air: speed of sound models, vapour pressure, density and the Benade/Keefe properties.
 
-Check values come from REFERENCES §1 and §2, computed there from the published formulas:
-O. Cramer, JASA 93(5), 2510-2516 (1993), p. 2514; R. S. Davis, Metrologia 29, 67-70 (1992);
-P. Giacomo, Metrologia 18, 33-40 (1982); A. H. Benade, JASA 44(2), 616-623 (1968), as used by
-D. H. Keefe (1984).
+Check values were computed from the published formulas: O. Cramer, JASA 93(5), 2510-2516
+(1993), p. 2514 (coefficients as given by three matching transcriptions); R. S. Davis,
+Metrologia 29, 67-70 (1992); P. Giacomo, Metrologia 18, 33-40 (1982); A. H. Benade, JASA 44(2),
+616-623 (1968), as used by D. H. Keefe, JASA 75(1), 58-62 (1984); the linear rule (common
+practice) and the ideal-gas law (standard physics texts).
 """
 
 from __future__ import annotations
@@ -38,19 +39,21 @@ P0 = 101325.0
 
 @pytest.mark.parametrize(("t_c", "c"), [(0.0, 331.30), (20.0, 343.42), (25.0, 346.45)])
 def test_speed_linear(t_c: float, c: float) -> None:
-    # c = 331.3 + 0.606 t, common practice (REFERENCES §1a; standard physics texts).
+    # c = 331.3 + 0.606 t, common practice (standard physics texts); check values computed from it.
     assert speed_linear(t_c) == pytest.approx(c, abs=0.005)
 
 
 @pytest.mark.parametrize(("t_c", "c"), [(20.0, 343.215), (25.0, 346.129), (-10.0, 325.179)])
 def test_speed_ideal_gas(t_c: float, c: float) -> None:
-    # c = 331.3 sqrt(1 + t/273.15) (REFERENCES §1b); ISO 9613-1 Annex A gives the same law.
+    # c = 331.3 sqrt(1 + t/273.15), the ideal-gas law; ISO 9613-1 Annex A (formula A.5) gives the
+    # same law as 343.2 sqrt(T/293.15) (seen quoted). Check values computed from it.
     assert speed_ideal_gas(t_c) == pytest.approx(c, abs=5e-4)
 
 
 def test_linear_is_tangent_of_ideal_gas_at_zero() -> None:
-    # The linear rule is the Taylor expansion of the ideal-gas law at 0 degrees C (REFERENCES §1a):
-    # same value, slope 0.606 against the numerical derivative.
+    # The linear rule is the Taylor expansion of the ideal-gas law at 0 degrees C
+    # (331.3/(2·273.15) = 0.6064, exact calculus): same value, slope 0.606 against the
+    # numerical derivative.
     assert speed_linear(0.0) == speed_ideal_gas(0.0)
     h = 1e-4
     slope = (speed_ideal_gas(h) - speed_ideal_gas(-h)) / (2 * h)
@@ -60,7 +63,8 @@ def test_linear_is_tangent_of_ideal_gas_at_zero() -> None:
 @pytest.mark.parametrize(
     ("t_c", "rh", "xc", "xw", "c"),
     [
-        # Cramer (1993) with Davis (1992) psv, p = 101325 Pa (REFERENCES §1c table).
+        # Check values computed from Cramer (1993, JASA 93(5), p. 2514) with the Davis (1992,
+        # Metrologia 29) psv and the Giacomo (1982) enhancement factor, p = 101325 Pa.
         (0.0, 0.0, 0.000314, 0.0, 331.455),
         (20.0, 0.0, 0.000314, 0.0, 343.367),
         (0.0, 0.0, 0.0004, 0.0, 331.448),
@@ -80,13 +84,15 @@ def test_cramer_table(t_c: float, rh: float, xc: float, xw: float, c: float) -> 
 
 def test_npl_figure() -> None:
     # The NPL online calculator (Cramer + Davis, xc = 0.0004) is widely reported to give about
-    # 343.99 m/s at 20 degrees C, 50 % RH, 101.325 kPa (from memory, REFERENCES §1c).
+    # 343.99 m/s at 20 degrees C, 50 % RH, 101.325 kPa (from memory; it agrees with 343.987
+    # computed above from Cramer 1993 and Davis 1992).
     assert air_state(293.15).speed_m_s == pytest.approx(343.99, abs=0.01)
 
 
 @pytest.mark.parametrize(("t_c", "psv"), [(20.0, 2339.16), (0.0, 611.21), (25.0, 3169.76)])
 def test_saturation_vapour_pressure(t_c: float, psv: float) -> None:
-    # Davis (1992) / Giacomo (1982) psv (REFERENCES §1c).
+    # Check values computed from the Davis (1992, Metrologia 29, 67-70) / Giacomo (1982,
+    # Metrologia 18, 33-40) saturation vapour pressure formula.
     assert saturation_vapour_pressure(t_c + 273.15) == pytest.approx(psv, abs=0.005)
 
 
@@ -105,7 +111,8 @@ def test_enhancement_factor() -> None:
 @pytest.mark.parametrize(
     ("t_c", "eta", "gam", "nu"),
     [
-        # Benade (1968) / Keefe (1984) at 20 degrees C (REFERENCES §2 check values).
+        # Check values computed from the Benade (1968, JASA 44(2)) linearisation, as used by
+        # Keefe (1984), at 20 degrees C.
         (20.0, 1.81439e-5, 1.40189, 0.84215),
         # At 300 K the linearisation returns its constants (Benade 1968).
         (26.85, 1.846e-5, 1.4017, 0.8410),
@@ -125,7 +132,7 @@ def test_density_dry_air() -> None:
     assert density(293.15, P0, 0.0, 0.0004) == pytest.approx(1.2041, abs=1e-4)
     # ICAO / ISO 2533 standard atmosphere at sea level, 15 degrees C: 1.2250 kg/m^3.
     assert density(288.15, P0, 0.0, 0.0004) == pytest.approx(1.2250, abs=1e-4)
-    # Benade (1968) rho = 1.1769 (1 - 0.00335 dT) gives 1.20391 at 20 degrees C (REFERENCES §2);
+    # Benade (1968) rho = 1.1769 (1 - 0.00335 dT) gives 1.20391 at 20 degrees C (computed here);
     # its constants are rounded, so agree to 0.05 %.
     assert density(293.15, P0, 0.0, 0.0004) == pytest.approx(1.20391, rel=5e-4)
 
@@ -144,7 +151,8 @@ def test_density_moist_air_is_dalton_mixture() -> None:
 
 
 def test_cramer_in_range() -> None:
-    # Validity of Cramer's (1993) fit: 0..30 degrees C, 75..102 kPa, xw <= 0.06, xc <= 0.01.
+    # Validity of Cramer's (1993) fit: 0..30 degrees C, 75..102 kPa, xw <= 0.06, xc <= 0.01 (as
+    # stated by the transcriptions of the paper).
     assert cramer_in_range(20.0, P0, 0.0116, 0.0004)
     assert cramer_in_range(0.0, 75e3, 0.06, 0.01)
     assert not cramer_in_range(-1.0, P0, 0.0, 0.0004)
@@ -157,6 +165,7 @@ def test_cramer_in_range() -> None:
 
 @pytest.mark.parametrize("defaults", [ROOM_AIR, BREATH_AIR])
 def test_default_airs_inside_cramer_range(defaults: Mapping[str, float]) -> None:
+    # The room and breath defaults must lie inside the validity range of Cramer's (1993) fit.
     t_c = defaults["temperature_k"] - 273.15
     xw = vapour_mole_fraction(defaults["humidity"], t_c, defaults["pressure_pa"])
     assert cramer_in_range(t_c, defaults["pressure_pa"], xw, defaults["co2"])
@@ -166,9 +175,11 @@ def test_default_airs_inside_cramer_range(defaults: Mapping[str, float]) -> None
 def test_air_state_picks_named_model() -> None:
     t_k = 298.15
     by_model = {m: air_state(t_k, P0, 0.5, 0.0004, m) for m in SOUND_SPEED_MODELS}
-    assert by_model["linear"].speed_m_s == pytest.approx(346.45, abs=0.005)  # REFERENCES §1a
-    assert by_model["ideal-gas"].speed_m_s == pytest.approx(346.129, abs=5e-4)  # §1b
-    assert by_model["cramer-1993"].speed_m_s == pytest.approx(347.127, abs=1e-3)  # §1c
+    # Check values at 25 degrees C computed from: the linear rule (common practice); the ideal-gas
+    # law; Cramer (1993) with Davis (1992) psv at 50 % RH, 400 ppm CO2, 101.325 kPa.
+    assert by_model["linear"].speed_m_s == pytest.approx(346.45, abs=0.005)
+    assert by_model["ideal-gas"].speed_m_s == pytest.approx(346.129, abs=5e-4)
+    assert by_model["cramer-1993"].speed_m_s == pytest.approx(347.127, abs=1e-3)
     for model, air in by_model.items():
         assert air.model == model
         # The other properties do not depend on the speed model.
@@ -178,6 +189,7 @@ def test_air_state_picks_named_model() -> None:
 
 
 def test_dry_air_laws_ignore_humidity_pressure_co2() -> None:
+    # The linear rule and the ideal-gas law depend on temperature only (by their formulas).
     for model in ("linear", "ideal-gas"):
         a = air_state(293.15, P0, 0.0, 0.0004, model)
         b = air_state(293.15, 90e3, 1.0, 0.01, model)

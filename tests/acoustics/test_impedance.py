@@ -1,8 +1,9 @@
 """Input impedance of the instrument model: open and closed pipes, losses, vectorisation.
 
 Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (end correction 0.6133a);
-REFERENCES §11 self-consistency checks (closed-open f = c/4(L + 0.6133a), open-open
-f = n c/2(L + 2·0.6133a)); D. H. Keefe, JASA 75(1), 58-62 (1984) (phase velocity with losses);
+the quarter- and half-wave resonances of a lossless cylinder, closed-open f = (2n-1)c/4(L + 0.6133a)
+and open-open f = n c/2(L + 2·0.6133a) (Fletcher & Rossing, The Physics of Musical Instruments,
+1998, ch. 8, from memory); D. H. Keefe, JASA 75(1), 58-62 (1984) (phase velocity with losses);
 N. H. Fletcher & T. D. Rossing, The Physics of Musical Instruments (1998) ch. 16 (the flute's
 head cavity lowers the upper resonances more than the lower ones: from memory).
 """
@@ -48,7 +49,8 @@ def cents(f: float, ref: float) -> float:
 @pytest.mark.parametrize("radiation", ["unflanged", "frequency-dependent"])
 def test_open_open_cylinder_admittance_peaks(radiation: str) -> None:
     # Lossless narrow tube at low frequency: peaks of Y at n c / 2L' with L' = L + 2·0.6133a
-    # (Levine & Schwinger 1948; REFERENCES §11), within 0.2 cent.
+    # (Levine & Schwinger 1948; half-wave resonances, Fletcher & Rossing 1998 ch. 8, from
+    # memory), within 0.2 cent.
     a, L = 0.004, 0.8
     pipe = Instrument(Bore.cylinder(a), (), Head("open"), L, radiation=radiation, losses="none")
 
@@ -66,7 +68,8 @@ def test_open_open_cylinder_admittance_peaks(radiation: str) -> None:
 
 def test_closed_open_cylinder() -> None:
     # Closed at the top, open at the foot: Z_down at the closed end is infinite at
-    # f = (2n-1) c / 4(L + 0.6133a) (REFERENCES §11), i.e. 1/Z_down crosses zero.
+    # f = (2n-1) c / 4(L + 0.6133a) (quarter-wave resonances, Fletcher & Rossing 1998 ch. 8, from
+    # memory; Levine & Schwinger 1948 end), i.e. 1/Z_down crosses zero.
     a, L = 0.005, 0.6
     pipe = Instrument(Bore.cylinder(a), (), Head("open"), L, losses="none")
 
@@ -80,7 +83,8 @@ def test_closed_open_cylinder() -> None:
 
 def test_losses_lower_the_resonance_by_the_phase_velocity() -> None:
     # With wall losses an open-open tube resonates near n v_p / 2L' (Keefe 1984: v_p = ω/Im Γ),
-    # about 14 cents flat for a 19 mm bore at 440 Hz (REFERENCES §3a).
+    # about 14 cents flat for a 19 mm bore at 440 Hz (v_p/c = 0.99194, a check value computed
+    # from Keefe's 1984 series with Benade 1968 air at 20 °C).
     a, L = 0.0095, 0.38
     pipe = Instrument(Bore.cylinder(a), (), Head("open"), L)
     lossless = Instrument(Bore.cylinder(a), (), Head("open"), L, losses="none")
@@ -192,7 +196,9 @@ def test_head_cavity_narrows_the_octave() -> None:
 
 
 def test_mouth_inertance_lowers_the_pitch_below_the_open_pipe() -> None:
-    # A window smaller than the bore adds inertance at the mouth (REFERENCES §7a): lower pitch
+    # A window smaller than the bore adds inertance at the mouth (Rayleigh's orifice inertance,
+    # The Theory of Sound, 1896, §306-307, from memory; Fletcher & Rossing 1998 ch. 16-17 treat the
+    # mouth as a short duct, from memory): lower pitch
     # than the same tube driven at a plain open end, more so for a smaller window.
     bore = Bore.cylinder(0.0095)
 

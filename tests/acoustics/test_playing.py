@@ -1,7 +1,9 @@
 """Playing frequencies: peak finding and refinement.
 
-Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a, REFERENCES §11
-open-open check); scipy.optimize.brentq as the reference root finder for the refinement.
+Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a, in the half-wave
+resonances n c/2(L + 2·0.6133a) of a lossless open-open cylinder: Fletcher & Rossing, The Physics
+of Musical Instruments, 1998, ch. 8, from memory); scipy.optimize.brentq as the reference root
+finder for the refinement.
 """
 
 from __future__ import annotations
@@ -70,8 +72,12 @@ def test_refinement_matches_brentq_to_a_hundredth_of_a_cent() -> None:
 def test_scale_rises_and_registers_are_near_octaves() -> None:
     res = resonances(flute(), AIR, SCALE)
     f1 = res.frequencies_hz[:, 0]
-    assert np.all(np.diff(f1) > 0)  # opening holes from the foot up raises the pitch
-    assert np.all(np.abs(res.octave_cents[:3]) < 60)  # low notes overblow near the octave
+    # opening holes from the foot up raises the pitch (each open hole shortens the effective
+    # length: Nederveen 1969/1998, from memory)
+    assert np.all(np.diff(f1) > 0)
+    # low notes overblow near the octave (a nearly cylindrical open-open air column has nearly
+    # harmonic resonances; Fletcher & Rossing 1998 ch. 8 and 16, from memory)
+    assert np.all(np.abs(res.octave_cents[:3]) < 60)
     np.testing.assert_allclose(
         res.octave_cents, 1200 * np.log2(res.frequencies_hz[:, 1] / (2 * f1))
     )

@@ -1,10 +1,10 @@
 """Inverse design: hole positions, diameters and tube length for a fingering table.
 
-The instruments are invented. Targets are 12-TET from A4 = 440 Hz (ISO 16:1975). Every design is
-checked independently: the returned geometry is rebuilt as an Instrument and its playing
-frequencies recomputed, rather than trusting the solver's own report. The least-squares check
-uses the definition of cents (1200 log2): the best single pitch for two targets is their
-geometric mean.
+The instruments are invented. Targets are 12-TET from A4 = 440 Hz (ISO 16:1975; standard number
+and year from memory). Every design is checked independently: the returned geometry is rebuilt
+as an Instrument and its playing frequencies recomputed, rather than trusting the solver's own
+report. The least-squares check uses the definition of cents (1200 log2): the best single pitch
+for two targets is their geometric mean.
 """
 
 from __future__ import annotations
@@ -30,7 +30,8 @@ DRILLS = tuple(np.round(np.arange(2.0, 13.01, 0.5), 1) / 1000)  # metric, 0.5 mm
 
 
 def et(midi: int) -> float:
-    return float(440.0 * 2 ** ((midi - 69) / 12))  # ISO 16 A4, 12-TET (REFERENCES §9)
+    # 12-TET from A4 = 440 Hz (ISO 16:1975, standard number and year from memory).
+    return float(440.0 * 2 ** ((midi - 69) / 12))
 
 
 def scale_table(n_holes: int) -> np.ndarray:
@@ -116,7 +117,9 @@ def test_six_hole_duct_flute() -> None:
         note_names=("D5", "E5", "F#5", "G5", "A5", "B5", "C#6", "D6"),
     )
     check_design(d, DUCT_TABLE, DUCT_TARGETS, DUCT_REGISTERS, 0.001, HoleConstraints())
-    assert 0.2 < d.length_m < 0.35  # a D5 flute is about a foot long
+    # a D5 flute is about a foot long: half a wavelength at 587 Hz is c/2f ≈ 0.29 m, less the
+    # end corrections (open-open half-wave resonance, Fletcher & Rossing 1998 ch. 8, from memory)
+    assert 0.2 < d.length_m < 0.35
     assert d.iterations > 0
     # the second register of the all-closed fingering is reported against D6
     assert np.isfinite(d.residual_cents[-1]) and abs(d.residual_cents[-1]) < 50

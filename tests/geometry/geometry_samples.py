@@ -183,8 +183,8 @@ def everything() -> Resolved:
 
 def metal_rank(count: int) -> Resolved:
     """A long rank of open metal pipes (a stress case for speed): diameters halving every
-    16 semitones from 92.5 mm at C3 (the Normalmensur rule), lengths halving each octave
-    (REFERENCES.md §8)."""
+    16 semitones from 92.5 mm at C3 (Töpfer's Normalmensur, Töpfer 1855 via Adelung 1991),
+    lengths halving each octave (an open pipe's length ∝ 1/f)."""
     base = open_metal_pipe()
     pipes = []
     for i in range(count):

@@ -33,6 +33,8 @@ def test_rectangle_grows_by_half_the_kerf_each_side() -> None:
 def test_opening_shrinks_by_half_the_kerf_each_side() -> None:
     out = compensate(rect("cut-inner", 10, 10, 40, 30), 0.3)
     assert isinstance(out, Polyline)
+    # Elementary: (w − k)(h − k) for an opening; a circle's radius moves by k/2, inward for an
+    # opening and outward for an outline.
     assert Polygon(out.points).area == pytest.approx(29.7 * 19.7, abs=1e-6)
     hole = compensate(Circle("cut-inner", (5, 5), 4.0), 0.3)
     assert isinstance(hole, Circle) and hole.radius == pytest.approx(3.85)

@@ -44,13 +44,16 @@ def _dense(path: Polyline) -> list[tuple[float, float]]:
 
 
 def test_neutral_circumference_check_value() -> None:
-    # REFERENCES.md §10b (standard sheet-metal practice, K = 0.5 for R/t ≫ 1):
-    # D_i = 54.98 mm, t = 0.8 mm -> blank width π·55.78 = 175.24 mm.
+    # Neutral-axis (mid-thickness) circumference π·(D_i + 2Kt) with K = 0.5 for R/t ≫ 1
+    # (standard sheet-metal practice; handbook K-factor tables, values from memory). Check value
+    # computed from it: D_i = 54.98 mm, t = 0.8 mm -> blank width π·55.78 = 175.24 mm.
     assert neutral_circumference(54.98, 0.8) == pytest.approx(175.24, abs=0.005)
 
 
 @pytest.mark.parametrize(("d1", "d2", "h", "slant", "r1", "r2", "angle"), [
-    # REFERENCES.md §10a check values (development of a right circular cone).
+    # Check values computed from the frustum development of a right circular cone (handbook
+    # geometry): s = sqrt(H² + ((D2 − D1)/2)²), R2 = s·D2/(D2 − D1), R1 = R2 − s,
+    # θ = 180°·D2/R2.
     (100.0, 200.0, 150.0, 158.114, 158.114, 316.228, 113.842),
     (50.0, 60.0, 300.0, 300.042, 1500.21, 1800.25, 5.9992),
 ])
@@ -79,7 +82,8 @@ def test_frustum_rolls_back_into_the_cone(d1: float, d2: float, h: float) -> Non
 def test_body_development_width_and_height() -> None:
     pipe = samples.open_metal_pipe()
     body = _parts().part("principal-4-C3-body")
-    # Neutral-axis circumference π·(D + t) (REFERENCES.md §10b) plus the 6 mm seam strip.
+    # Neutral-axis circumference π·(D + t) (standard sheet-metal practice, K = 0.5) plus the
+    # samples' 6 mm seam allowance; the body is as tall as the pipe's cut length.
     circumference = math.pi * (92.5 + 0.8)
     assert body.width_mm == pytest.approx(circumference + 6.0, abs=1e-6)
     assert body.height_mm == pytest.approx(pipe.cut_length_m * 1000.0, abs=1e-6)
@@ -87,7 +91,8 @@ def test_body_development_width_and_height() -> None:
     assert isinstance(outline, Polyline) and outline.closed
     xs = [p[0] for p in outline.points]
     ys = [p[1] for p in outline.points]
-    # The cut path lies kerf/2 outside the nominal outline on every side.
+    # The cut path lies kerf/2 outside the nominal outline on every side (kerf compensation:
+    # the beam's centre runs half a kerf off the part, common CNC practice).
     assert min(xs) == pytest.approx(-KERF / 2) and max(xs) == pytest.approx(
         circumference + 6.0 + KERF / 2, abs=1e-5)
     assert min(ys) == pytest.approx(-KERF / 2) and max(ys) == pytest.approx(
@@ -117,8 +122,9 @@ def test_foot_pattern_on_the_part_has_the_formula_radii() -> None:
     assert isinstance(outline, Polyline)
     arcs = [arc_of(a, b, k) for a, b, k in segments(outline) if k]
     assert len(arcs) == 2
-    # Mid-thickness diameters: toe 23 + 0.8, top 92.5 + 0.8 (REFERENCES.md §10a: use the
-    # neutral diameters). Rolled up, the arcs are the two ends' circumferences.
+    # Mid-thickness diameters: toe 23 + 0.8, top 92.5 + 0.8 (frustum development, handbook
+    # geometry: lay out thick sheet on the neutral diameters). Rolled up, the arcs are the two
+    # ends' circumferences (arc = R·θ = π·D) and the edges the slant height (Pythagoras).
     outer, inner = sorted(arcs, key=lambda a: -a.radius)
     assert abs(math.radians(outer.sweep_deg)) * outer.radius == pytest.approx(
         math.pi * 93.3, rel=1e-6)
@@ -138,6 +144,8 @@ def test_foot_pattern_on_the_part_has_the_formula_radii() -> None:
 
 def test_foot_arcs_move_by_half_the_kerf() -> None:
     foot = _parts().part("principal-4-C3-foot")
+    # Kerf compensation (common CNC practice): the inner arc moves in, the outer arc out, by half
+    # the kerf.
     pattern = frustum_pattern(23.8, 93.3, 180.0)
     outline = _outer(foot)
     assert isinstance(outline, Polyline)
@@ -147,6 +155,8 @@ def test_foot_arcs_move_by_half_the_kerf() -> None:
 
 
 def test_languid_is_the_inside_diameter() -> None:
+    # The languid closes the body's bore at the mouth, so it is a disc of the inside diameter
+    # (organ-pipe construction, common practice) plus half the kerf.
     languid = _outer(_parts().part("principal-4-C3-languid"))
     assert isinstance(languid, Circle)
     assert languid.radius == pytest.approx(92.5 / 2 + KERF / 2)
@@ -160,7 +170,7 @@ def test_stopped_metal_pipe_gets_a_cap() -> None:
     outline = _outer(cap)
     assert isinstance(outline, Circle)
     outside = 92.5 + 2 * 0.8
-    rim = max(5.0, 0.15 * outside)  # the documented skirt rule
+    rim = max(5.0, 0.15 * outside)  # the documented skirt rule (common practice)
     assert outline.radius == pytest.approx(outside / 2 + rim + KERF / 2)
     (fold,) = [e for e in cap.entities if isinstance(e, Circle) and e.operation == "mark"]
     assert fold.radius == pytest.approx(outside / 2)

@@ -183,13 +183,20 @@ def test_mouth_and_its_correction() -> None:
     # orifice conductivity (Rayleigh, The Theory of Sound, 1896, §306–307, from memory)
     # referred to the pipe area, a derived approximation; α = 0.9 is taken from the usual
     # 0.8–1.0 range (from memory, not calibrated).
+    # Every dimension is as it will be made: rounded to the spec's precision (0.01 mm).
     pipe = _resolve(_spec(RANK.format(notes="[C3]"))).pipes[0]
-    d = 0.1555 * 2 ** (-12 / 16)
-    width = math.pi * d / 4
-    area = width * width / 4
+
+    def made(x: float) -> float:
+        return round(x / 1e-5) * 1e-5
+
+    d = made(0.1555 * 2 ** (-12 / 16))
+    width = made(math.pi * d / 4)
+    cutup = made(width / 4)
+    area = width * cutup
+    assert pipe.inside_diameter_m == pytest.approx(d, abs=1e-12)
     assert pipe.mouth is not None
-    assert pipe.mouth.width_m == pytest.approx(width, rel=1e-12)
-    assert pipe.mouth.cutup_m == pytest.approx(width / 4, rel=1e-12)
+    assert pipe.mouth.width_m == pytest.approx(width, abs=1e-12)
+    assert pipe.mouth.cutup_m == pytest.approx(cutup, abs=1e-12)
     expected = (math.pi * d * d / 4) / area * (0.0008 + 0.9 * math.sqrt(area))
     assert pipe.mouth.correction_m == pytest.approx(expected, rel=1e-12)
     # open flue: top correction (Levine & Schwinger 1948, 0.6133a, the default) plus the mouth

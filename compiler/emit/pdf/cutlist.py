@@ -130,7 +130,8 @@ def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool) -
     rows = [(t.pipe_id, mm_of(t.length_mm), mm_of(t.outside_diameter_mm),
              notes.get(t.pipe_id, "")) for t in cuts]
     total = sum(t.length_mm for t in cuts)
-    rows.append((f"total ({len(cuts)} pieces, kerf not included)", mm_of(total), "", ""))
+    pieces = "1 piece" if len(cuts) == 1 else f"{len(cuts)} pieces"
+    rows.append((f"total ({pieces}, kerf not included)", mm_of(total), "", ""))
     sub: tuple[tuple[str, ...], ...] = ()
     if inches:
         sub = tuple(("", f"{inch_of(t.length_mm)} in", f"{inch_of(t.outside_diameter_mm)} in",
