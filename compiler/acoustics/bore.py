@@ -7,10 +7,12 @@ element are related by
     [P1]   [A  B] [P2]
     [U1] = [C  D] [U2]
 
-(REFERENCES §5), input (1) at the smaller position. Every function here is vectorised: the
-radius, length and angular frequency arguments broadcast against each other and the four
-entries come back as separate arrays of the broadcast shape. All elements are reciprocal,
-AD − BC = 1; a reversed element (input at the larger position) has the matrix [[D, B], [C, A]].
+(the standard transfer-matrix form, e.g. Chaigne & Kergomard 2016, Acoustics of Musical
+Instruments, ch. 7, from memory), input (1) at the smaller position. Every function here is
+vectorised: the radius, length and angular frequency arguments broadcast against each other
+and the four entries come back as separate arrays of the broadcast shape. All elements are
+reciprocal, AD − BC = 1; a reversed element (input at the larger position) has the matrix
+[[D, B], [C, A]].
 
 Frequencies must be positive: the loss model divides by sqrt(ω).
 """
@@ -28,7 +30,8 @@ LOSS_MODELS: tuple[str, ...] = ("keefe", "none")
 Complex = NDArray[np.complex128]
 Matrix = tuple[Complex, Complex, Complex, Complex]
 
-# Keefe (1984) large-rv series coefficients (REFERENCES §3a), as published for air at 300 K.
+# Keefe 1984, J. Acoust. Soc. Am. 75(1), 58–62: large-rv series coefficients as published for
+# air at 300 K (all six reproduced to 3 digits from the exact Zwikker–Kosten solution).
 # The first-order ones are (1 ∓ (γ−1)/ν)/√2; at 20 °C they would read 1.0446 and 0.3693,
 # a 0.04 % change of a loss term that is itself under 1 %, so the published constants are used.
 _ZC_1, _ZC_2, _ZC_3 = 0.369, 1.149, 0.303
@@ -73,7 +76,8 @@ def characteristic(
 
 
 def cylinder_matrix(length_m: ArrayLike, zc: ArrayLike, gamma: ArrayLike) -> Matrix:
-    """Transfer matrix of a cylinder of length L (REFERENCES §5a).
+    """Transfer matrix of a cylinder of length L (standard transmission-line form; the lossless
+    case is eq. (3) of Woodhouse, Euphonics §11.1.3, there in the e^{−iωt} convention).
 
     A = D = cosh ΓL, B = Zc sinh ΓL, C = sinh ΓL / Zc. Lossless (Γ = jk): cos kL, jZc sin kL,
     j sin kL / Zc.
@@ -110,9 +114,9 @@ def frustum_matrix(
 ) -> Matrix:
     """Transfer matrix of a conical frustum from radius r1 (input) to r2 over axial length L.
 
-    Exact lossless spherical-wave matrix (REFERENCES §5b; verified there against the exact
-    solution p = e^{∓jkx}/x; literature form in Chaigne & Kergomard, Acoustics of Musical
-    Instruments, 2016, ch. 7), with apex distances x1 = r1·L/(r2 − r1), x2 = x1 + L (signed:
+    Exact lossless spherical-wave matrix (exact spherical-wave derivation from p = e^{∓jkx}/x,
+    checked numerically; matches Chaigne & Kergomard 2016, Acoustics of Musical Instruments,
+    ch. 7, from memory), with apex distances x1 = r1·L/(r2 − r1), x2 = x1 + L (signed:
     negative for a converging frustum, for which the same formula holds):
 
         A = (x2/x1) cos kL − sin kL/(k x1)
@@ -120,8 +124,9 @@ def frustum_matrix(
         C = j (π r1 r2)/(ρc) · [(1 + 1/(k² x1 x2)) sin kL − (1/(k x1) − 1/(k x2)) cos kL]
         D = (x1/x2) cos kL + sin kL/(k x2)
 
-    With losses, jk → Γ and ρc → Zc·πa² at the ``equivalent_radius`` (common practice, see
-    REFERENCES §5b): A = (x2/x1) cosh ΓL − sinh ΓL/(Γx1), B = z sinh ΓL/(π r1 r2),
+    With losses, jk → Γ and ρc → Zc·πa² at the ``equivalent_radius`` (common practice, cf.
+    Grothe, Baumgart & Nederveen 2023, arXiv:2303.12750):
+    A = (x2/x1) cosh ΓL − sinh ΓL/(Γx1), B = z sinh ΓL/(π r1 r2),
     C = (π r1 r2)/z·[(1 − 1/(Γ²x1x2)) sinh ΓL + L/(Γ x1 x2) cosh ΓL],
     D = (x1/x2) cosh ΓL + sinh ΓL/(Γx2), z = Zc(a_eq)·π a_eq². Nearly equal radii
     (|r2 − r1| ≤ 1e-9·r) use the cylinder matrix.

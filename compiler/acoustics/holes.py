@@ -1,8 +1,9 @@
 """Tone (finger) holes as series and shunt impedances, and the closed-form helpers around them.
 
 A side hole of radius b in a bore of radius a (δ = b/a) with a chimney of height t is the
-symmetric T-network of REFERENCES §6a (Keefe 1990; Dubos et al. 1999): a series impedance Za
-split in two halves around a shunt impedance Zs,
+symmetric T-network of Keefe, "Woodwind air column models", JASA 88(1), 35–51 (1990) and
+Dubos et al., Acta Acustica 85(2), 153–169 (1999) (standard form, from memory): a series
+impedance Za split in two halves around a shunt impedance Zs,
 
     [1 + Za/(2Zs)   Za(1 + Za/(4Zs))]
     [1/Zs           1 + Za/(2Zs)    ]
@@ -18,8 +19,9 @@ Length corrections: inner length t_i and series lengths t_a from the finite-elem
 A. Lefebvre & G. P. Scavone, "Characterization of woodwind instrument toneholes with the
 finite element method", JASA 131(4), 3153–3163 (2012); matching-volume length t_m from
 Nederveen, Jansen & van Hassel, Acustica 84, 957–966 (1998) / Dubos et al., Acta Acustica 85,
-153–169 (1999). These coefficients are recorded from memory in REFERENCES §6c (the t_i fit agrees
-with the 0.82b → 0.16b range stated in the Nederveen 1998 abstract); treat them as provisional.
+153–169 (1999). These coefficients are from memory, not verified against the primary papers
+(the t_i fit agrees with the 0.82b → 0.16b range stated in the Nederveen 1998 abstract); treat
+them as provisional.
 
 Chimney height t is the wall thickness at the hole axis. An undercut (``undercut_m`` = u) widens
 the hole at the bore: the chimney becomes a frustum from radius b + u at the bore to b at the
@@ -62,7 +64,8 @@ def inner_length(hole_radius_m: ArrayLike, bore_radius_m: ArrayLike) -> Float:
     """Inner (junction) length correction t_i of a side hole, metres (Lefebvre & Scavone 2012).
 
     t_i = b·(0.822 − 0.095δ − 1.566δ² + 2.138δ³ − 1.640δ⁴ + 0.502δ⁵), δ = b/a ≤ 1 (from memory,
-    REFERENCES §6c; check value b = 4 mm, a = 9.5 mm → 2.476 mm).
+    not verified against the primary paper; check value, computed from the formula as written:
+    b = 4 mm, a = 9.5 mm → 2.476 mm).
     """
     b = np.asarray(hole_radius_m, dtype=np.float64)
     d = _delta(b, bore_radius_m)
@@ -88,8 +91,8 @@ def series_length(
 
     open:   t_a = (−0.35 + 0.06·tanh(2.7 t/b))·b·δ²
     closed: t_a = (−0.12 − 0.17·tanh(2.4 t/b))·b·δ²
-    referred to the main bore: Za = jωρ·t_a/(πa²). Check values (REFERENCES §6c): t/b = 1 gives
-    t_a/(bδ²) = −0.2905 open, −0.2872 closed.
+    referred to the main bore: Za = jωρ·t_a/(πa²). Check values, computed from the formula as
+    written: t/b = 1 gives t_a/(bδ²) = −0.2905 open, −0.2872 closed.
     """
     b = np.asarray(hole_radius_m, dtype=np.float64)
     d = _delta(b, bore_radius_m)
@@ -102,7 +105,8 @@ def radiation_length(model: str, hole_radius_m: ArrayLike, outer_radius_m: Array
     """Radiation length t_r of an open hole's outer opening, metres.
 
     ``"unflanged"`` 0.6133·b (Levine & Schwinger 1948), ``"flanged"`` 0.8216·b (Norris & Sheng
-    1989): the two limits named in REFERENCES §6c. ``"on-cylinder"``: b·(0.8216 −
+    1989): the two limits quoted by Dalmont, Nederveen & Joly 2001, J. Sound Vib. 244(3),
+    505–534. ``"on-cylinder"``: b·(0.8216 −
     0.47·(b/(a+w))^0.8), a fit for a hole in a cylinder of outer radius a + w attributed to
     Dalmont et al., Acta Acustica 88, 567–575 (2002): recalled from memory, NOT VERIFIED.
     """
@@ -134,8 +138,9 @@ def effective_length(
 
     t_e = t_i + (t + t_m)·(b_in/b) + t_r·(b_in/b)², b_in = b + undercut: the inertances of the
     junction, of the chimney (a frustum's inertance is ρt/(π b_in b)) and of the radiation, each
-    expressed as a length of duct of the bore-side area (REFERENCES §6c: t_e ≈ t + t_i + t_r,
-    here with t_m added to the chimney). The outer radius for ``"on-cylinder"`` is a + t.
+    expressed as a length of duct of the bore-side area (t_e ≈ t + t_i + t_r as in Dubos et al.
+    1999 and Lefebvre & Scavone 2012, JASA 131(4), from memory; here with t_m added to the
+    chimney). The outer radius for ``"on-cylinder"`` is a + t.
     """
     b = np.asarray(hole_radius_m, dtype=np.float64)
     b_in = b + np.asarray(undercut_m, dtype=np.float64)
@@ -200,8 +205,9 @@ def end_distance(
 ) -> Float:
     """Distance Δ beyond an open hole's centre at which the air column seems to end, metres.
 
-    Low-frequency lumped form of REFERENCES §6d (derived there from Zh ∥ Zdown = jZc tan kΔ;
-    the idea is Nederveen's, Acoustical Aspects of Woodwind Instruments, 1969):
+    Low-frequency lumped form, a derived approximation (from Zh ∥ Zdown = jZc tan kΔ, the
+    approach of Woodhouse, Euphonics §11.1.3; the idea is Nederveen's, Acoustical Aspects of
+    Woodwind Instruments, 1969/1998, attribution from memory):
     Δ = L_d / (1 + L_d·Sh/(S·t_e)), with L_d the distance to the acoustic end below the hole
     (next open hole or foot, its own correction included), S = πa², Sh = πb².
     Check value: a 9.5 mm, b 4 mm, t_e 8.93 mm, L_d = 50 mm + 0.6133a → Δ = 26.48 mm.

@@ -4,7 +4,8 @@ Conventions: SI units; every position is measured from the TOP END of the tube (
 where the block or the cork sits), increasing toward the foot. Time convention e^{+jωt}.
 Fingerings are boolean arrays of shape (n_fingerings, n_holes), True = hole closed.
 
-Model (transfer-matrix method, REFERENCES §5–§7):
+Model (transfer-matrix method, as in Keefe 1990, "Woodwind air column models", JASA 88(1),
+35–51, bibliography from memory; each element's source is in its module's docstring):
 
 - Downstream of the mouth: the bore from the mouth to the foot (cylinders and frusta with
   visco-thermal losses, ``compiler.acoustics.bore``), the holes as T-networks
@@ -13,11 +14,12 @@ Model (transfer-matrix method, REFERENCES §5–§7):
 - Above the mouth, a head cavity of length ``cavity_length_m`` (embouchure flute: mouth to cork;
   duct flute: usually 0, the block face) is a closed branch in parallel: Y_j = 1/Z_down + Y_cav.
 - The mouth opening (duct flute window, or embouchure hole partly covered by the lip) is treated
-  like an open side hole of the same area (REFERENCES §7a: "computed like an open tone hole"):
+  like an open side hole of the same area, as Fletcher & Rossing 1998 (The Physics of Musical
+  Instruments, 2nd ed., ch. 16) and Nederveen 1969 treat the embouchure hole (from memory):
   inner length t_i, a chimney of the window or riser thickness (+ matching length t_m), and the
   radiation impedance of its outer opening, all IN SERIES between the jet and the junction:
   Z_total = Zr + Chimney(1/Y_j + jωρ t_i/S_m) + jωρ·extra_length_m/S_bore.
-  This is our reading of REFERENCES §7a; its end-correction coefficients are not calibrated
+  This is our reading of that treatment; its end-correction coefficients are not calibrated
   against measured flutes, which is what ``Head.extra_length_m`` is for.
 - The tube above the head cavity (the block, or beyond the cork) takes no part.
 - The jet is a flow source at the outer face of the mouth, so it sees Z_total; a flue

@@ -17,11 +17,12 @@ Models (``RADIATION_MODELS``):
   Dalmont, Nederveen & Joly, J. Sound Vib. 244(3), 505–534, 2001); resistance (ka)²/2, the
   low-frequency limit of a baffled piston.
 - ``"frequency-dependent"``: unflanged pipe, Δ(ka) and |R|(ka) from the approximations of
-  Dalmont, Nederveen & Joly (2001), p. 509, as transcribed in REFERENCES §4b (seen only in a
-  secondary transcription; valid for ka below about 3.5).
+  Dalmont, Nederveen & Joly (2001), p. 509 (seen only in a secondary transcription, not
+  verified against the primary paper; valid for ka below about 3.5).
 - ``"flanged-frequency-dependent"``: Δ(ka) = 0.8216·a / (1 + (0.77ka)²/(1 + 0.77ka)), a form
-  commonly quoted for the flanged pipe (REFERENCES §4b): NOT VERIFIED against its primary source
-  (Norris & Sheng 1989 / Silva et al. 2009); resistance (ka)²/2 (low-frequency limit).
+  commonly quoted for the flanged pipe (from memory): NOT VERIFIED against its primary source
+  (Norris & Sheng 1989 / Silva, Guillemain, Kergomard, Mallaroni & Norris, J. Sound Vib.
+  322(1–2), 255–263, 2009); resistance (ka)²/2 (low-frequency limit).
 
 The low-frequency models are meant for ka ≲ 0.5, the regime of flutes' foot ends and holes.
 """
@@ -88,8 +89,9 @@ def unflanged_end_correction_ratio(ka: ArrayLike) -> NDArray[np.float64]:
 def flanged_end_correction_ratio(ka: ArrayLike) -> NDArray[np.float64]:
     """Δ/a of a flanged pipe vs ka: 0.8216 / (1 + (0.77 ka)² / (1 + 0.77 ka)).
 
-    A commonly quoted form (REFERENCES §4b) attributed to Norris & Sheng (1989) and Silva et al.
-    (2009). NOT VERIFIED against the primary sources; its ka → 0 limit 0.8216 is.
+    A commonly quoted form (from memory) attributed to Norris & Sheng (1989) and Silva et al.
+    (2009, J. Sound Vib. 322(1–2), 255–263). NOT VERIFIED against the primary sources; its
+    ka → 0 limit 0.8216 is (Dalmont, Nederveen & Joly 2001, J. Sound Vib. 244(3), 505–534).
     """
     x = 0.77 * np.asarray(ka, dtype=np.float64)
     return np.asarray(FLANGED_RATIO / (1.0 + x**2 / (1.0 + x)), dtype=np.float64)
@@ -149,8 +151,8 @@ def radiation_impedance(
     k_wave: wavenumber ω/c (1/m, array); zc: characteristic impedance ρc/(πa²) of the pipe.
     ``"frequency-dependent"`` uses the reflection coefficient of Dalmont et al. (2001),
     R = −|R|·exp(−2jkΔ(ka)), Zr = zc·(1 + R)/(1 − R); at low ka this tends to
-    zc·((ka)²/4 + j·0.6133·ka) (REFERENCES §4b). The other models use the low-frequency form of
-    ``lumped_radiation_impedance`` with their Δ (see the module docstring).
+    zc·((ka)²/4 + j·0.6133·ka) (Levine & Schwinger 1948). The other models use the low-frequency
+    form of ``lumped_radiation_impedance`` with their Δ (see the module docstring).
     """
     _check(model)
     k = np.asarray(k_wave, dtype=np.float64)

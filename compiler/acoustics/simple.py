@@ -19,8 +19,9 @@ from dataclasses import dataclass
 from compiler.acoustics import radiation
 
 MOUTH_ALPHA = 0.9
-"""Rayleigh orifice coefficient of the mouth correction (REFERENCES §7a: 0.8-1.0, a flanged
-orifice gives 0.96); a derived approximation, to be calibrated against measured pipes."""
+"""Rayleigh orifice coefficient of the mouth correction (0.8-1.0, from memory; a flanged orifice
+gives 0.96, after Rayleigh 1896, The Theory of Sound §306–307); a derived approximation, to be
+calibrated against measured pipes."""
 
 
 @dataclass(frozen=True)
@@ -55,7 +56,7 @@ def mouth_correction(
 
     Δ_m = (S / A_m) · (ℓ + α·√A_m): the mouth is an orifice of area A_m = W·H in a wall of
     thickness ℓ, with Rayleigh conductivity K = A_m / (ℓ + α√A_m), referred to the pipe area S
-    (Δ = S/K). Derived approximation of REFERENCES §7a (Rayleigh 1896, Theory of Sound §306-307;
+    (Δ = S/K). Derived approximation (Rayleigh 1896, The Theory of Sound §306–307;
     Fletcher & Rossing 1998 ch. 17 treat the mouth the same way).
     """
     return pipe_area_m2 / mouth_area_m2 * (lip_thickness_m + alpha * math.sqrt(mouth_area_m2))

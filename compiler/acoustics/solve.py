@@ -7,8 +7,9 @@ Method:
    every hole at its largest size), holes larger than allowed.
 2. Starting point: diameters by ``rule_diameters`` where the caller fixed none; the tube length
    from the all-closed note (Newton on the transfer-matrix model, holes closed); hole positions
-   from the closed-form effective length of REFERENCES §6d, bottom hole first
-   (``holes.downstream_for_shortening``).
+   from the closed-form effective length of one open hole (derived approximation after
+   Nederveen 1969/1998, Acoustical Aspects of Woodwind Instruments; attribution from memory),
+   bottom hole first (``holes.downstream_for_shortening``).
 3. Damped Gauss–Newton on the transfer-matrix model: residuals are the first-register errors in
    cents of the register-1 rows of the fingering table; unknowns the length and the free hole
    positions (and diameters where a position is fixed or pinned). The Jacobian comes from one
@@ -594,8 +595,9 @@ def _lowest(closed: NDArray[np.bool_], targets: Float, names: tuple[str, ...]) -
 def _start(
     prob: _Problem, L: float, X: Float, D: Float, fx: Float, f_closed: float, wall_m: float
 ) -> tuple[Float, dict[int, int]]:
-    """Closed-form hole positions (REFERENCES §6d), bottom hole first, and the register-1 row
-    that each hole controls (the one where it is the topmost open hole, most holes open).
+    """Closed-form hole positions (Nederveen 1969/1998 one-hole effective length, a derived
+    approximation; attribution from memory), bottom hole first, and the register-1 row that
+    each hole controls (the one where it is the topmost open hole, most holes open).
 
     The acoustic end of a note's column sits at x_ref + c/(2f), x_ref fitted to the all-closed
     pipe (whose frequency in the model is ``f_closed``); each hole is placed so that the column

@@ -40,7 +40,8 @@ def neutral_circumference(inside_mm: float, thickness_mm: float) -> float:
     """Blank width of a rolled cylinder, mm: ``π·(D_inside + t)``.
 
     The neutral axis of thin sheet rolled to a large radius (R/t ≫ 1) lies at mid
-    thickness (K = 0.5): standard sheet-metal practice, REFERENCES.md §10b.
+    thickness (K = 0.5): standard sheet-metal development of a rolled cylinder (neutral-axis
+    blank length).
     """
     return math.pi * (inside_mm + thickness_mm)
 
@@ -59,8 +60,8 @@ def frustum_pattern(small_d: float, large_d: float, height: float) -> SectorPatt
     """Development of a conical frustum (diameters at mid thickness, axial height; mm).
 
     ``s = √(H² + ((D2 − D1)/2)²)``, ``R2 = s·D2/(D2 − D1)``, ``R1 = R2 − s``,
-    ``θ = 180°·D2/R2`` — the standard development of a right circular cone
-    (REFERENCES.md §10a). Requires ``large_d > small_d``.
+    ``θ = 180°·D2/R2`` — standard sheet-metal development geometry of a cone frustum.
+    Requires ``large_d > small_d``.
     """
     if large_d <= small_d:
         raise ValueError("a frustum needs its large end larger than its small end")

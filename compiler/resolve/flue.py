@@ -28,10 +28,12 @@ from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
 
 DEFAULT_MOUTH_WIDTH = {"rolled-sheet": 0.25, "boards": 1.0}
-"""Mouth width: 1/4 of the circumference (Töpfer's Normalmensur, REFERENCES §7b); wooden
-pipes commonly take the whole inside width (common practice)."""
+"""Mouth width: 1/4 of the circumference (Töpfer 1855 Normalmensur, via Adelung 1991,
+Einführung in den Orgelbau; seen only in secondary sources); wooden pipes commonly take the
+whole inside width (common practice)."""
 DEFAULT_CUTUP = {"open-flue": 0.25, "stopped-flue": 0.4}
-"""Cut-up over mouth width: principals 1/4-1/3, stopped 1/3-1/2 (REFERENCES §7b, from memory)."""
+"""Cut-up over mouth width: principals 1/4-1/3, stopped 1/3-1/2 (organ-building trade rule,
+common practice, from memory)."""
 USUAL_CUTUP = (0.15, 0.6)
 DEFAULT_TOE = 0.25
 """Toe hole diameter over body diameter (common practice, from memory; opened when voicing)."""
@@ -73,7 +75,11 @@ class Section:
 
 
 def halving_factor(semitones: float, halving_interval: float) -> float:
-    """Size ratio ``semitones`` above a reference: 2^(−n/h) (REFERENCES §8, Töpfer)."""
+    """Size ratio ``semitones`` above a reference: 2^(−n/h).
+
+    Töpfer 1855 (Normalmensur, h = 16: area 1:√8 per octave), via Adelung 1991, Einführung in
+    den Orgelbau, pp. 85–86; seen only in secondary sources.
+    """
     return float(2.0 ** (-semitones / halving_interval))
 
 

@@ -85,6 +85,8 @@ def scaled(pipe: simple.PipeAcoustics, scale: float) -> simple.PipeAcoustics:
 def equivalent_radius(width_m: float, depth_m: float) -> float:
     """Radius of the circle with the same area as a W × D section: sqrt(W·D/π).
 
-    The traditional equivalence of square wooden pipes by area (REFERENCES §8; Töpfer).
+    The traditional equivalence of square wooden pipes by area (organ-building tradition after
+    Töpfer 1855, Die Theorie und Praxis des Orgelbaues, via Adelung 1991, Einführung in den
+    Orgelbau; seen only in secondary sources).
     """
     return math.sqrt(width_m * depth_m / math.pi)

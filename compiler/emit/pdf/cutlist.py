@@ -59,7 +59,8 @@ def _sheet_names(parts: Sequence[Part], sheets: Sequence[Sheet], stock: str) -> 
     """Part id → the sheet(s) it is nested on (``1``, ``2, 3``)."""
     where: dict[str, list[str]] = {}
     for sheet in sheets:
-        short = sheet.id[len(stock) + 1:] if sheet.id.startswith(stock + "-") else sheet.id
+        # ``sheet-3-spotted-metal`` -> ``sheet-3``: the material heads the table already
+        short = "-".join(sheet.id.split("-")[:2]) if sheet.id.startswith("sheet-") else sheet.id
         for pl in sheet.placements:
             names = where.setdefault(pl.part_id, [])
             if short not in names:

@@ -144,6 +144,10 @@ class Paragraph(Block):
         c.setFillColor(INK)
 
 
+SUB_LINES = 3
+"""Most lines a table cell's second line may wrap onto."""
+
+
 @dataclass(frozen=True)
 class Column:
     title: str
@@ -158,7 +162,8 @@ class Table(Block):
     """Rows of text cells under a shaded header; splits between rows, repeating the header.
 
     A row may carry a second line (``sub``): smaller, grey, e.g. the inches beside
-    millimetres.
+    millimetres, or a note for the bench; a long one wraps onto up to ``SUB_LINES`` lines
+    and the row grows to fit.
     """
 
     columns: tuple[Column, ...]
@@ -172,17 +177,45 @@ class Table(Block):
 
     @property
     def row_height(self) -> float:
+        """The height of a row with at most one line under it."""
         return self.size * (2.45 if self.sub else 1.55)
+
+    def _sub_lines(self, i: int, widths: list[float]) -> list[list[str]]:
+        if not self.sub or i >= len(self.sub):
+            return []
+        size = self.size * 0.85
+        lines = []
+        for k, w in enumerate(widths):
+            text = self.sub[i][k] if k < len(self.sub[i]) else ""
+            found = wrap(text, FONT, size, w - 2.4 * MM) if text else []
+            if len(found) > SUB_LINES:
+                found = found[:SUB_LINES - 1] + [fit_text(" ".join(found[SUB_LINES - 1:]),
+                                                          FONT, size, w - 2.4 * MM)]
+            lines.append(found)
+        return lines
+
+    def _row_heights(self, width: float) -> list[float]:
+        if not self.sub:
+            return [self.size * 1.55] * len(self.rows)
+        widths = self._widths(width)
+        return [self.size * 1.55 + self.size * 0.9 * max(
+            [1] + [len(c) for c in self._sub_lines(i, widths)]) for i in range(len(self.rows))]
 
     @property
     def header_height(self) -> float:
         return self.size * 1.25 * self.title_rows + self.size * 0.6
 
     def height(self, width: float) -> float:
-        return self.header_height + len(self.rows) * self.row_height + 2.0
+        return self.header_height + sum(self._row_heights(width)) + 2.0
 
     def split(self, width: float, available: float) -> tuple[Block, Block] | None:
-        n = int((available - self.header_height - 2.0) // self.row_height)
+        room = available - self.header_height - 2.0
+        n = 0
+        for h in self._row_heights(width):
+            if room < h:
+                break
+            room -= h
+            n += 1
         if n < self.min_rows or n >= len(self.rows):
             return None
         first = replace(self, rows=self.rows[:n], sub=self.sub[:n],
@@ -215,8 +248,9 @@ class Table(Block):
                 _cell(c, part, col.align, cx, w, pad, ty, FONT_BOLD, fitted)
             cx += w
         y = y_top - hh
+        heights = self._row_heights(width)
         for i, row in enumerate(self.rows):
-            rh = self.row_height
+            rh = heights[i]
             if i in self.shade:
                 c.setFillColor(LIGHT)
                 c.rect(x, y - rh, width, rh, stroke=0, fill=1)
@@ -229,10 +263,12 @@ class Table(Block):
             for k, (col, w) in enumerate(zip(self.columns, widths, strict=True)):
                 text = row[k] if k < len(row) else ""
                 _cell(c, text, col.align, cx, w, pad, y - self.size * 1.1, font, self.size)
-                if self.sub and i < len(self.sub) and k < len(self.sub[i]) and self.sub[i][k]:
+                lines = self._sub_lines(i, widths)
+                if lines and lines[k]:
                     c.setFillColor(GREY)
-                    _cell(c, self.sub[i][k], col.align, cx, w, pad, y - self.size * 2.05,
-                          FONT, self.size * 0.85)
+                    for j, line in enumerate(lines[k]):
+                        _cell(c, line, col.align, cx, w, pad,
+                              y - self.size * 2.05 - j * self.size * 0.9, FONT, self.size * 0.85)
                     c.setFillColor(INK)
                 cx += w
             y -= rh

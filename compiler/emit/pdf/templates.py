@@ -126,6 +126,10 @@ def _plain_rectangle(part: Part) -> bool:
         for a, b in zip(line.points, line.points[1:] + line.points[:1], strict=True))
 
 
+def _tile_count(t: Tiling) -> int:
+    return t.rows * t.cols
+
+
 @dataclass(frozen=True)
 class Choice:
     part: Part
@@ -152,6 +156,9 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], int]:
             order.append(part)
         seen[sig].append(part.id)
     pages, left_out = 0, 0
+    # Parts that fit one page first (languids, small feet, blocks): more of them make it
+    # into the page budget than if a few large tiled outlines came first.
+    order.sort(key=lambda p: _tile_count(tiling(p.width_mm, p.height_mm, ww, wh)))
     for part in order:
         t = tiling(part.width_mm, part.height_mm, ww, wh)
         need = t.rows * t.cols + (1 if t.rows * t.cols > 1 else 0)
