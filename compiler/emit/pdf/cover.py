@@ -134,6 +134,12 @@ def pages(resolved: Resolved, frame: Frame, contents: Sequence[tuple[str, int]])
     blocks += [Spacer(2 * MM), Heading("Summary", 12), _summary_table(resolved),
                Spacer(2 * MM), Heading("Air and speed of sound", 12), *_air_blocks(resolved),
                Spacer(2 * MM), Heading("Calibration", 12), _calibration_table(resolved)]
+    if any(not g.calibration.calibrated and g.kind == "rank" for g in resolved.groups):
+        blocks.append(Paragraph(
+            "Before cutting a whole rank: make one or two pipes, measure their pitch and the "
+            "room temperature, and add them under `measured:` in the spec. The mouth's end "
+            "correction is an uncalibrated approximation; the rebuild then corrects every "
+            "pipe to your measurements.", 8.5))
     if resolved.warnings:
         blocks += [Spacer(2 * MM), Heading("Notes from the resolver", 12)]
         for note in resolved.warnings[:WARNINGS_SHOWN]:
