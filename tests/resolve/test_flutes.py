@@ -106,6 +106,8 @@ def test_flutes_are_predicted_as_cut(tmp_path: Path) -> None:
 
 
 def test_impossible_heads_are_spec_errors(tmp_path: Path) -> None:
+    # Facts of the trade: a cork above the top end of the tube, or an embouchure hole as wide
+    # as the bore, cannot be made; both are spec errors at the line that asks for them.
     cases = {
         "cork: 18 mm": ("cork: 50 mm", "would sit above the top end"),
         "embouchure: {diameter: 10 mm": ("embouchure: {diameter: 24 mm", "as wide as the bore"),
