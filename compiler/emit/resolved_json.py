@@ -89,7 +89,7 @@ def _curve(curve: Any) -> dict[str, Any]:
 
 def to_dict(resolved: Resolved) -> dict[str, Any]:
     """The contract's JSON object for ``resolved``."""
-    data = _plain(resolved)
+    data: dict[str, Any] = _plain(resolved)
     data["format"] = FORMAT
     data["format_version"] = FORMAT_VERSION
     for pipe, source in zip(data["pipes"], resolved.pipes, strict=True):

@@ -18,7 +18,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from shapely.geometry import Polygon  # type: ignore[import-untyped]
+from shapely.geometry import Polygon
 
 from compiler.geometry.model import Circle, Point, Polyline
 from compiler.geometry.paths import arc_of, signed_area, to_polygon

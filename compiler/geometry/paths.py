@@ -13,7 +13,7 @@ import math
 from collections.abc import Iterator
 from dataclasses import dataclass
 
-from shapely.geometry import Polygon  # type: ignore[import-untyped]
+from shapely.geometry import Polygon
 
 from compiler.geometry.model import Circle, Entity, Placement, Point, Polyline, Text
 from compiler.geometry.units import snap, snap_bulge

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from shapely.geometry import Point as ShapelyPoint  # type: ignore[import-untyped]
+from shapely.geometry import Point as ShapelyPoint
 from shapely.geometry import Polygon
 
 from compiler.errors import Problem

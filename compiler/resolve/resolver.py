@@ -5,6 +5,7 @@ from __future__ import annotations
 import re
 import unicodedata
 from collections.abc import Callable
+from functools import partial
 from typing import Any
 
 from compiler.resolve import flue, tubes
@@ -52,11 +53,11 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
     shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)
     work: list[tuple[Any, Callable[[], Any]]] = []
     for rank in spec.ranks:
-        work.append((rank, lambda g=rank: flue.resolve_rank(g, spec)))
+        work.append((rank, partial(flue.resolve_rank, rank, spec)))
     for tube_set in spec.tube_sets:
-        work.append((tube_set, lambda g=tube_set: tubes.resolve_tube_set(g, spec)))
+        work.append((tube_set, partial(tubes.resolve_tube_set, tube_set, spec)))
     for flute in spec.flutes:
-        work.append((flute, lambda g=flute: flutes.resolve_flute(g, spec)))
+        work.append((flute, partial(flutes.resolve_flute, flute, spec)))
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []

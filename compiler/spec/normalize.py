@@ -532,9 +532,9 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
         need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
     seen: dict[str, Path] = {}
     groups: list[tuple[str, Path]] = []
-    for block, items in (("ranks", spec.ranks), ("tube_sets", spec.tube_sets),
-                         ("flutes", spec.flutes)):
-        groups += [(g.id, (block, i, "id")) for i, g in enumerate(items)]
+    groups += [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]
+    groups += [(g.id, ("tube_sets", i, "id")) for i, g in enumerate(spec.tube_sets)]
+    groups += [(g.id, ("flutes", i, "id")) for i, g in enumerate(spec.flutes)]
     for ident, path in groups:
         if ident in seen:
             r.fail(path, f"the id `{ident}` is used twice", "give each rank, set or flute its "

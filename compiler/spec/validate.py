@@ -26,7 +26,8 @@ SPEC_SCHEMA = "boresmith-spec.schema.json"
 
 def read_schema(name: str) -> dict[str, Any]:
     """Load a schema shipped with the package (falls back to the checkout's schemas/)."""
-    return json.loads(_schema_text(name))
+    loaded: dict[str, Any] = json.loads(_schema_text(name))
+    return loaded
 
 
 @lru_cache(maxsize=4)
@@ -143,10 +144,10 @@ def _describe(error: ValidationError, document: Document, fallback: str = "") ->
             # A quantity: show one of its own kind (`440 Hz`, `20 C`), not a length.
             words = f"a value such as `{examples[0]}`"
         else:
-            words = _article(wanted)
+            words = _article(str(wanted))
         return [Problem(where, f"{name} should be {words}, not {_kind(value)}", hint, "schema")]
     if kind == "enum":
-        options = [str(o) for o in error.validator_value]
+        options = [str(o) for o in error.validator_value]  # type: ignore[union-attr]
         close = difflib.get_close_matches(str(value), options, n=1, cutoff=0.5)
         tip = (f"did you mean `{close[0]}`? " if close else "") + "choose one of: " + ", ".join(
             f"`{o}`" for o in options)
