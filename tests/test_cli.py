@@ -68,3 +68,18 @@ def test_resolve_table(capsys: pytest.CaptureFixture[str]) -> None:
     out = capsys.readouterr().out
     assert "note  target Hz  predicted Hz" in out
     assert "\nC3 " in out and "\nC6 " in out
+
+
+def test_resolve_table_shows_inches_for_inch_specs(tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    # 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
+    spec = tmp_path / "inch.yaml"
+    spec.write_text((ROOT / "specs_examples" / "chime-tubes.yaml").read_text()
+                    .replace("units: mm", "units: in"))
+    assert main(["resolve", str(spec)]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    header = next(ln for ln in lines if ln.startswith("note "))
+    assert header.rstrip().endswith("speaking in  cut in")
+    c4 = next(ln for ln in lines if ln.startswith("C4 ")).split()
+    cut_mm, cut_in = float(c4[5]), float(c4[-1])
+    assert cut_in == pytest.approx(cut_mm / 25.4, abs=0.003)

@@ -9,6 +9,11 @@ def _mm(metres: float | None) -> str:
     return "" if metres is None else f"{metres * 1000:.1f}"
 
 
+def _in(metres: float | None) -> str:
+    """Decimal inches (1 in = 25.4 mm exactly), for specs written in inches or feet."""
+    return "" if metres is None else f"{metres / 0.0254:.3f}"
+
+
 def _section(pipe: Pipe) -> str:
     if pipe.section == "round":
         return f"ø{_mm(pipe.inside_diameter_m)}"
@@ -35,7 +40,7 @@ def _calibration(group: Group) -> str:
     return text + f"rms {fit.rms_cents:.2f} cents over {len(fit.residuals)} measurements"
 
 
-def _group_table(group: Group, pipes: list[Pipe]) -> list[str]:
+def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[str]:
     air = group.air
     lines = [f"{group.id} ({group.family}, {group.construction}): "
              f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
@@ -50,15 +55,22 @@ def _group_table(group: Group, pipes: list[Pipe]) -> list[str]:
             _mm(p.speaking_length_m), _mm(p.cut_length_m), _section(p),
             _mm(p.mouth.width_m) if p.mouth else "", _mm(p.mouth.cutup_m) if p.mouth else "",
             _mm(p.foot.toe_hole_m) if p.foot else "", p.stock])
-    lines += _align(rows, right={1, 2, 3, 4, 5, 7, 8, 9})
+    if inches:
+        header += ["speaking in", "cut in"]
+        for row, p in zip(rows[1:], pipes, strict=True):
+            row += [_in(p.speaking_length_m), _in(p.cut_length_m)]
+    lines += _align(rows, right={1, 2, 3, 4, 5, 7, 8, 9, 11, 12})
     for p in pipes:
         if p.holes:
             lines.append("")
             lines.append(f"{p.id}: holes (from the top end), cut length {_mm(p.cut_length_m)} mm")
-            hole_rows = [["hole", "from top mm", "from bottom mm", "diameter mm", "angle"]]
+            hole_rows = [["hole", "from top mm", "from bottom mm", "diameter mm", "angle"]
+                         + (["from top in", "diameter in"] if inches else [])]
             hole_rows += [[h.label, _mm(h.position_from_top_m), _mm(h.position_from_bottom_m),
-                           _mm(h.diameter_m), f"{h.angle_deg:g}°"] for h in p.holes]
-            lines += _align(hole_rows, right={1, 2, 3, 4})
+                           _mm(h.diameter_m), f"{h.angle_deg:g}°"]
+                          + ([_in(h.position_from_top_m), _in(h.diameter_m)] if inches else [])
+                          for h in p.holes]
+            lines += _align(hole_rows, right={1, 2, 3, 4, 5, 6})
         if p.fingerings:
             lines.append("")
             f_rows = [["note", "reg", "fingering", "target Hz", "predicted Hz", "cents"]]
@@ -78,5 +90,6 @@ def render(resolved: Resolved) -> str:
              f"on {resolved.tuning.tonic}"]
     for group in resolved.groups:
         lines.append("")
-        lines += _group_table(group, [by_id[i] for i in group.pipe_ids])
+        lines += _group_table(group, [by_id[i] for i in group.pipe_ids],
+                              resolved.fabrication.units in ("in", "ft"))
     return "\n".join(lines) + "\n"
