@@ -106,6 +106,10 @@ def cmd_build(args: argparse.Namespace) -> int:
                        warn=lambda line: print(line, file=sys.stderr))
     except OutputError as exc:
         raise UsageError(str(exc)) from None
+    except OSError as exc:  # the output folder: a file in the way, no permission, disk full
+        where = exc.filename or args.out
+        raise UsageError(f"cannot write the output under {args.out}: {exc.strerror} ({where}); "
+                         "nothing was replaced") from None
     print(f"boresmith: wrote {folder}", file=sys.stderr)
     return EXIT_OK
 

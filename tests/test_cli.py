@@ -83,3 +83,13 @@ def test_resolve_table_shows_inches_for_inch_specs(tmp_path: Path,
     c4 = next(ln for ln in lines if ln.startswith("C4 ")).split()
     cut_mm, cut_in = float(c4[5]), float(c4[-1])
     assert cut_in == pytest.approx(cut_mm / 25.4, abs=0.003)
+
+
+def test_build_into_a_file_is_a_usage_error(tmp_path: Path,
+                                            capsys: pytest.CaptureFixture[str]) -> None:
+    blocker = tmp_path / "not-a-folder"
+    blocker.write_text("x")
+    assert main(["build", str(EXAMPLE), "-o", str(blocker)]) == 2
+    err = capsys.readouterr().err
+    assert "cannot write the output" in err and "Traceback" not in err
+    assert blocker.read_text() == "x"
