@@ -19,7 +19,7 @@ from reportlab.pdfgen.canvas import Canvas
 from compiler.cache import Cache, key_of
 from compiler.emit.pdf import cautions, cover, cutlist, pipes, templates
 from compiler.emit.pdf.document import Page, draw_chrome
-from compiler.emit.pdf.style import frame_for, safe
+from compiler.emit.pdf.style import Frame, frame_for, safe
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
@@ -56,8 +56,40 @@ def plan(resolved: Resolved, parts: Parts, options: BuildOptions) -> list[Page]:
     return front + [page for _, found in sections for page in found]
 
 
-def render(resolved: Resolved, parts: Parts, options: BuildOptions) -> bytes:
-    """The build sheet as PDF bytes (deterministic: reportlab's invariant mode, no dates)."""
+def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache) -> None:
+    """Draw a page's body, or replay its drawing from an earlier build.
+
+    A body's drawing is a run of PDF content operators. It depends only on ``page.key`` and
+    the frame, and starts from the state the header leaves (fonts registered in the same
+    order in every build), so the operators recorded for the same key can stand in for
+    drawing it again. reportlab keeps a page's operators in ``Canvas._code``; where that
+    is missing (another reportlab), every body is drawn."""
+    code = getattr(canvas, "_code", None)
+    if page.key is None or store.folder is None or not isinstance(code, list):
+        page.draw(canvas, frame)
+        return
+
+    drawn = []
+
+    def make() -> bytes:
+        start = len(code)
+        page.draw(canvas, frame)
+        drawn.append(True)
+        return "\n".join(code[start:]).encode("utf-8")
+
+    recorded = store.data("pdf-page", key_of("pdf-page", frame, page.key), make)
+    if not drawn and recorded:
+        # The page's operators are joined with newlines when it is written, so one joined
+        # entry gives the same bytes as the entries it was made from.
+        code.append(recorded.decode("utf-8"))
+
+
+def render(resolved: Resolved, parts: Parts, options: BuildOptions,
+           cache: Cache | None = None) -> bytes:
+    """The build sheet as PDF bytes (deterministic: reportlab's invariant mode, no dates).
+
+    With a ``cache``, page bodies whose inputs did not change are replayed, not redrawn."""
+    store = cache or Cache(None)
     frame = frame_for(paper_of(resolved, options))
     pages = plan(resolved, parts, options)
     buffer = io.BytesIO()
@@ -74,7 +106,7 @@ def render(resolved: Resolved, parts: Parts, options: BuildOptions) -> bytes:
             canvas.bookmarkPage(key)
             canvas.addOutlineEntry(safe(page.bookmark), key, level=0)
         draw_chrome(canvas, frame, resolved.instrument, page, number, len(pages), footer)
-        page.draw(canvas, frame)
+        _draw_body(canvas, frame, page, store)
         canvas.showPage()
     canvas.save()
     return buffer.getvalue()
@@ -82,10 +114,10 @@ def render(resolved: Resolved, parts: Parts, options: BuildOptions) -> bytes:
 
 def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path,
           cache: Cache | None = None) -> list[Path]:
-    """Write ``out_dir/build-sheet.pdf``; returns [that path]. Every page shows the spec's
-    sha256, so the document is cached whole: reused only when nothing it shows changed."""
+    """Write ``out_dir/build-sheet.pdf``; returns [that path]. The document is reused whole
+    when nothing it shows changed; otherwise unchanged page bodies are replayed."""
     path = out_dir / FILE_NAME
     key = key_of("pdf", paper_of(resolved, options), resolved, parts)
     store = cache or Cache(None)
-    path.write_bytes(store.data("pdf", key, lambda: render(resolved, parts, options)))
+    path.write_bytes(store.data("pdf", key, lambda: render(resolved, parts, options, store)))
     return [path]

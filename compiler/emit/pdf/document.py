@@ -43,6 +43,9 @@ class Page:
     """Outline (bookmark) entry; empty for none."""
     label: str = ""
     """Extra words on the right of the header (a pipe id, a tile)."""
+    key: object = None
+    """Everything the body's drawing depends on (frozen values with a stable ``repr``), so
+    a rebuild can reuse the drawn body; ``None``: always drawn."""
 
 
 def fit_text(text: str, font: str, size: float, width: float) -> str:
@@ -347,7 +350,7 @@ def flow_pages(section: str, blocks: Sequence[Block], frame: Frame, bookmark: st
     pages = []
     for i, content in enumerate(flow(blocks, width, height)):
         pages.append(Page(section, _draw_blocks(tuple(content), top_gap),
-                          bookmark if i == 0 else ""))
+                          bookmark if i == 0 else "", key=("blocks", tuple(content), top_gap)))
     return pages
 
 

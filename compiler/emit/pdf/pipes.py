@@ -67,12 +67,13 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
             continue
         if len(pipes) <= PER_PIPE_LIMIT or any(p.holes or p.fingerings for p in pipes):
             for pipe in pipes:
-                out.append(Page(SECTION, _pipe_page(pipe, group, inches), label=pipe.id))
+                out.append(Page(SECTION, _pipe_page(pipe, group, inches), label=pipe.id,
+                                key=("pipe", pipe, group, inches)))
                 out += fingering.pages(pipe, frame)
         else:
             out += _group_pages(group, pipes, frame, inches)
     if out:
-        out[0] = Page(out[0].section, out[0].draw, "Pipes", out[0].label)
+        out[0] = Page(out[0].section, out[0].draw, "Pipes", out[0].label, out[0].key)
     return out
 
 
@@ -224,7 +225,8 @@ def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: bool
     for i, chunk in enumerate(chunks):
         part = f"{i + 1} of {len(chunks)}"
         out.append(Page(SECTION, _group_page(group, pipes, chunk[0], part, inches),
-                        label=f"{group.id} ({part})"))
+                        label=f"{group.id} ({part})",
+                        key=("group", group, tuple(pipes), chunk[0], part, inches)))
     return out
 
 

@@ -175,15 +175,17 @@ def pages(parts: Parts, frame: Frame) -> list[Page]:
     chosen, left_out = choose(parts, frame)
     if not chosen:
         return []
-    out = [Page(SECTION, _index(chosen, left_out), "Templates")]
+    out = [Page(SECTION, _index(chosen, left_out), "Templates",
+                key=("index", tuple(chosen), left_out))]
     for ch in chosen:
         t = ch.tiles
         if t.rows * t.cols > 1:
-            out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map"))
+            out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map", key=("map", ch)))
         for r in range(t.rows):
             for c in range(t.cols):
                 out.append(Page(SECTION, _tile(ch, r, c),
-                                label=f"{ch.part.id} tile {r + 1}/{c + 1}"))
+                                label=f"{ch.part.id} tile {r + 1}/{c + 1}",
+                                key=("tile", ch, r, c)))
     return out
 
 

@@ -1,0 +1,37 @@
+"""Page bodies whose inputs did not change are replayed from the cache, not redrawn, and
+the document comes out byte for byte as a cold render."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from compiler.build import compile_text
+from compiler.cache import Cache
+from compiler.emit.pdf import render
+from compiler.options import BuildOptions
+
+EXAMPLES = Path(__file__).resolve().parents[3] / "specs_examples"
+
+
+def test_unchanged_pages_are_replayed_with_the_same_bytes(tmp_path: Path) -> None:
+    spec = EXAMPLES / "stopped-wood-gedackt.yaml"
+    text = spec.read_text()
+    before = compile_text(text, str(spec), BuildOptions())
+    store = Cache(tmp_path)
+    warm_first = render(before.resolved, before.parts, BuildOptions(), store)
+    assert warm_first == render(before.resolved, before.parts, BuildOptions())
+    recorded = {p.name for p in tmp_path.iterdir() if p.name.startswith("pdf-page-")}
+    assert recorded
+
+    # One pipe's stopper travel changes: only the pages that show it are drawn again.
+    after = compile_text(text.replace("stopper: {travel: 25 mm}", "stopper: {travel: 30 mm}"),
+                         str(spec), BuildOptions())
+    store = Cache(tmp_path)
+    warm = render(after.resolved, after.parts, BuildOptions(), store)
+    assert warm == render(after.resolved, after.parts, BuildOptions())
+    now = {p.name for p in tmp_path.iterdir() if p.name.startswith("pdf-page-")}
+    reused = store.used & recorded
+    drawn_again = now - recorded
+    assert reused, "no page body was reused"
+    assert drawn_again, "a changed page was not drawn again"
+    assert len(reused) > len(drawn_again) / 4
