@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
+from functools import lru_cache
 
 from reportlab.lib.colors import Color
 from reportlab.lib.utils import simpleSplit
@@ -60,7 +61,14 @@ def fit_text(text: str, font: str, size: float, width: float) -> str:
 
 def wrap(text: str, font: str, size: float, width: float) -> list[str]:
     """Lines of ``text`` broken at spaces to fit ``width`` points."""
-    return list(simpleSplit(safe(text), font, size, width)) or [""]
+    return list(_wrapped(text, font, size, width))
+
+
+@lru_cache(maxsize=8192)
+def _wrapped(text: str, font: str, size: float, width: float) -> tuple[str, ...]:
+    # Tables measure their rows again for every page split; text metrics are pure, so
+    # each (text, font, size, width) is measured once.
+    return tuple(simpleSplit(safe(text), font, size, width)) or ("",)
 
 
 class Block:
