@@ -36,6 +36,9 @@ def _allowance_text(fab: spec_model.Fabrication) -> str:
 
 
 Memo = Callable[[Any, Callable[[], Any]], Any]
+USUAL_A4_HZ = (380.0, 480.0)
+"""Pitch standards run from about 392 Hz (low baroque) to about 466 Hz (high historical
+pitch); ISO 16 sets 440 Hz (common practice, from memory)."""
 
 
 def _no_memo(_inputs: Any, make: Callable[[], Any]) -> Any:
@@ -66,6 +69,11 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
         groups.append(group)
         pipes.extend(made)
         warnings.extend(notes)
+    low, high = USUAL_A4_HZ
+    if not low <= spec.tuning.a4_hz <= high and "a4" in spec.tuning.where:
+        warnings.append(Note(spec.tuning.where["a4"],
+                             f"A4 = {spec.tuning.a4_hz:g} Hz is far from any pitch standard in "
+                             f"use ({low:g}-{high:g} Hz); check the value and its unit"))
     fab = spec.fabrication
     return Resolved(
         instrument=spec.instrument,

@@ -38,6 +38,7 @@ class Tuning:
     custom_cents: tuple[float, ...] | None = None
     offsets: tuple[tuple[int, float], ...] = ()
     """Per-note cents, as (MIDI note, cents) pairs sorted by note."""
+    where: Mapping[str, Position] = field(default_factory=_frozen)
 
 
 @dataclass(frozen=True)

@@ -148,6 +148,7 @@ def _tuning(r: _Reader) -> model.Tuning:
         tonic_pc=tonic_pc,
         custom_cents=custom,
         offsets=tuple(sorted(offsets)),
+        where=model._frozen(r.where(base, "a4", "temperament")),
     )
 
 

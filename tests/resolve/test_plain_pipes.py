@@ -274,3 +274,17 @@ def test_resolved_json_follows_its_schema() -> None:
                 "id", "group", "family", "construction", "note", "harmonic", "stock", "material",
                 "section", "mouth", "foot", "block", "stopper", "head", "holes", "fingerings",
                 "curves", "source"}, key
+
+
+@pytest.mark.parametrize(("a4", "warned"), [("415 Hz", False), ("440 Hz", False),
+                                             ("4400 Hz", True), ("44 Hz", True)])
+def test_reference_pitch_far_from_any_standard_is_flagged(a4: str, warned: bool) -> None:
+    # Pitch standards in use run from about 392 Hz (low baroque) to about 466 Hz; ISO 16:1975
+    # sets 440 Hz (common practice, from memory). A value far outside is most likely a typo.
+    text = _spec("tuning: {a4: " + a4 + "}\ntube_sets:\n  - {id: t, family: open-tube, "
+                 "stock: tube-20, notes: [A4]}\n").replace("notes: [A4]", "notes: [A2]"
+                                                           if a4 == "4400 Hz" else "notes: [A4]")
+    if a4 == "44 Hz":
+        text = text.replace("tube-20, notes: [A4]", "tube-30, notes: [A6]")
+    notes = [n.message for n in _resolve(text).warnings]
+    assert any("far from any pitch standard" in m for m in notes) == warned
