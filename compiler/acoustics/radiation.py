@@ -17,7 +17,7 @@ Models (``RADIATION_MODELS``):
   Dalmont, Nederveen & Joly, J. Sound Vib. 244(3), 505–534, 2001); resistance (ka)²/2, the
   low-frequency limit of a baffled piston.
 - ``"frequency-dependent"``: unflanged pipe, Δ(ka) and |R|(ka) from the approximations of
-  Dalmont, Nederveen & Joly (2001), p. 509 (seen only in a secondary transcription, not
+  Dalmont, Nederveen & Joly (2001), p. 509 (seen only as quoted in secondary sources, not
   verified against the primary paper; valid for ka below about 3.5).
 - ``"flanged-frequency-dependent"``: Δ(ka) = 0.8216·a / (1 + (0.77ka)²/(1 + 0.77ka)), a form
   commonly quoted for the flanged pipe (from memory): NOT VERIFIED against its primary source

@@ -1,7 +1,8 @@
 """Air: speed of sound models, vapour pressure, density and the Benade/Keefe properties.
 
 Check values were computed from the published formulas: O. Cramer, JASA 93(5), 2510-2516
-(1993), p. 2514 (coefficients as given by three matching transcriptions); R. S. Davis,
+(1993), p. 2514 (coefficients as quoted identically by three independent secondary
+sources); R. S. Davis,
 Metrologia 29, 67-70 (1992); P. Giacomo, Metrologia 18, 33-40 (1982); A. H. Benade, JASA 44(2),
 616-623 (1968), as used by D. H. Keefe, JASA 75(1), 58-62 (1984); the linear rule (common
 practice) and the ideal-gas law (standard physics texts).
@@ -152,7 +153,7 @@ def test_density_moist_air_is_dalton_mixture() -> None:
 
 def test_cramer_in_range() -> None:
     # Validity of Cramer's (1993) fit: 0..30 degrees C, 75..102 kPa, xw <= 0.06, xc <= 0.01 (as
-    # stated by the transcriptions of the paper).
+    # stated where the formula is quoted).
     assert cramer_in_range(20.0, P0, 0.0116, 0.0004)
     assert cramer_in_range(0.0, 75e3, 0.06, 0.01)
     assert not cramer_in_range(-1.0, P0, 0.0, 0.0004)

@@ -3,8 +3,8 @@
 Sources: H. Levine & J. Schwinger, Phys. Rev. 73(4), 383-406 (1948) (0.6133a and the low-frequency
 resistance (ka)^2/4); J.-P. Dalmont, C. J. Nederveen & N. Joly, J. Sound Vib. 244(3), 505-534
 (2001) (0.8216a, due to Norris & Sheng 1989, and the frequency-dependent |R|, Δ(ka)
-approximations of its p. 509; those were seen only in a secondary transcription, not read in the
-paper, and their check values were computed from the formulas as transcribed).
+approximations of its p. 509; those were seen only as quoted in secondary sources, not read
+in the paper, and their check values were computed from the formulas as quoted).
 """
 
 from __future__ import annotations
@@ -43,7 +43,7 @@ def test_low_frequency_limits() -> None:
 @pytest.mark.parametrize(
     ("ka", "r_mag", "delta_ratio"),
     # Check values computed from the Dalmont, Nederveen & Joly (2001, p. 509) formulas as
-    # transcribed in a secondary source (not read in the paper).
+    # quoted in a secondary source (not read in the paper).
     [
         (0.01, 1.0000, 0.6133),
         (0.1, 0.9951, 0.6119),
