@@ -2,10 +2,9 @@
 
 Check values were computed from the published formulas: O. Cramer, JASA 93(5), 2510-2516
 (1993), p. 2514 (coefficients as quoted identically by three independent secondary
-sources); R. S. Davis,
-Metrologia 29, 67-70 (1992); P. Giacomo, Metrologia 18, 33-40 (1982); A. H. Benade, JASA 44(2),
-616-623 (1968), as used by D. H. Keefe, JASA 75(1), 58-62 (1984); the linear rule (common
-practice) and the ideal-gas law (standard physics texts).
+sources); R. S. Davis, Metrologia 29, 67-70 (1992); P. Giacomo, Metrologia 18, 33-40 (1982);
+A. H. Benade, JASA 44(2), 616-623 (1968), as used by D. H. Keefe, JASA 75(1), 58-62 (1984);
+the linear rule (common practice) and the ideal-gas law (standard physics texts).
 """
 
 from __future__ import annotations
