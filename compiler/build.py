@@ -204,8 +204,8 @@ def _clean_leftovers(out_root: Path, slug_name: str) -> None:
         shutil.rmtree(stale, ignore_errors=True)
 
 
-def _up_to_date(out_root: Path, build_key: str) -> Path | None:
-    """The output folder of an identical earlier build, if it is still intact."""
+def _up_to_date(out_root: Path, build_key: str) -> tuple[Path, dict[str, Any]] | None:
+    """The output folder of an identical earlier build and its manifest, if still intact."""
     try:
         last = json.loads((out_root / CACHE_FOLDER / LAST_BUILDS).read_text(encoding="utf-8"))
         target = out_root / str(last[build_key])
@@ -221,7 +221,7 @@ def _up_to_date(out_root: Path, build_key: str) -> Path | None:
     for entry in manifest["files"]:
         if _sha256(target / entry["path"]) != entry["sha256"]:
             return None
-    return target
+    return target, manifest
 
 
 def _remember(out_root: Path, build_key: str, slug: str) -> None:
@@ -253,12 +253,12 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     if use_cache:
         done = _up_to_date(out_root, build_key)
         if done is not None:
-            _clean_leftovers(out_root, done.name)
+            target, manifest = done
+            _clean_leftovers(out_root, target.name)
             say("up to date")
-            manifest = json.loads((done / "manifest.json").read_text(encoding="utf-8"))
             for line in manifest.get("warnings", []):
                 tell(str(line))
-            return done
+            return target
     from compiler.resolve.resolver import slug
     from compiler.spec import load_spec
 

@@ -25,14 +25,12 @@ class UsageError(Exception):
 
 
 def _read(path: str) -> bytes:
+    from compiler.spec.loader import SpecFileError, read_spec_file
+
     try:
-        return Path(path).read_bytes()
-    except FileNotFoundError:
-        raise UsageError(f"{path}: no such file") from None
-    except IsADirectoryError:
-        raise UsageError(f"{path}: is a folder, not a spec file") from None
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot read ({exc.strerror})") from None
+        return read_spec_file(Path(path), path)
+    except SpecFileError as exc:
+        raise UsageError(str(exc)) from None
 
 
 def _report(problems: Sequence[Problem]) -> None:
@@ -100,7 +98,7 @@ def cmd_build(args: argparse.Namespace) -> int:
             print(f"boresmith: {message}", file=sys.stderr, flush=True)
 
     options = BuildOptions(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
-                           strict=args.strict, progress=show)
+                           strict=args.strict)
     try:
         folder = build(_read(args.spec), args.spec, Path(args.out), options, progress,
                        warn=lambda line: print(line, file=sys.stderr))

@@ -32,6 +32,7 @@ from typing import Any
 
 from compiler.emit.resolved_json import to_dict
 from compiler.resolve.model import Resolved
+from compiler.spec.loader import SpecFileError, read_spec_file
 
 Value = float | int | str | bool | None
 
@@ -97,13 +98,9 @@ def read_spec_arg(arg: str, cwd: Path) -> tuple[bytes, str]:
 
 def _read_file(path: Path, shown: str) -> bytes:
     try:
-        return path.read_bytes()
-    except FileNotFoundError:
-        raise DiffInputError(f"{shown}: no such file") from None
-    except IsADirectoryError:
-        raise DiffInputError(f"{shown}: is a folder, not a spec file") from None
-    except OSError as exc:
-        raise DiffInputError(f"{shown}: cannot read ({exc.strerror})") from None
+        return read_spec_file(path, shown)
+    except SpecFileError as exc:
+        raise DiffInputError(str(exc)) from None
 
 
 def _split_revision(arg: str, cwd: Path) -> tuple[str, str]:

@@ -20,5 +20,3 @@ class BuildOptions:
     """Also write one DXF per part."""
     strict: bool = False
     """Warnings are errors."""
-    progress: bool = False
-    """Print progress lines on stderr (a terminal build of a large spec)."""

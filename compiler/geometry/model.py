@@ -63,8 +63,8 @@ class Part:
     stock: str
     thickness_mm: float
     kind: str
-    """``sheet`` or ``board`` (nested and cut), ``template`` (printed, not cut),
-    ``tube`` (a length cut from stock tube: no outline to nest)."""
+    """``sheet`` or ``board`` (nested and cut) or ``template`` (printed, not cut); lengths
+    cut from stock tube are ``Parts.tube_cuts``, not parts."""
     width_mm: float
     height_mm: float
     entities: tuple[Entity, ...]

@@ -11,11 +11,14 @@ one-parameter least-squares problem.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Collection, Sequence
 from dataclasses import dataclass
 
 from compiler.acoustics.tuning import cents
+from compiler.errors import PhysicsError
 from compiler.resolve.model import Calibration, Residual
+from compiler.spec.model import Measurement
+from compiler.spec.notes import note_name
 
 PARAMETER = "end-correction scale"
 SCALE_RANGE = (0.05, 4.0)
@@ -68,20 +71,29 @@ def fit(observations: Sequence[Observation]) -> Calibration:
     return Calibration(True, PARAMETER, s, residuals, rms)
 
 
-def outlier(calibration: Calibration) -> int | None:
-    """Index of the worst residual of a fit if it exceeds ``MAX_RESIDUAL_CENTS``, else None."""
-    if not calibration.residuals:
-        return None
-    worst = max(range(len(calibration.residuals)),
-                key=lambda i: abs(calibration.residuals[i].error_cents))
-    return worst if abs(calibration.residuals[worst].error_cents) > MAX_RESIDUAL_CENTS else None
+def fit_measured(measured: Sequence[Measurement], notes: Collection[int], group: str,
+                 hint: str, observe: Callable[[Measurement], Observation]) -> Calibration:
+    """Fit to a group's measured prototypes (``observe`` builds each one's model).
 
-
-def implausible_message(calibration: Calibration, index: int, group: str,
-                        measured_hz: float) -> tuple[str, str]:
-    """Message and hint for a measurement the fit cannot explain (see ``outlier``)."""
-    residual = calibration.residuals[index]
-    return (f"{group}: the measured {residual.note} ({measured_hz:.2f} Hz) is "
+    A measurement of a note the group does not have, or one that the fitted model still
+    misses by more than ``MAX_RESIDUAL_CENTS``, is a spec error at that measurement.
+    ``group`` names it in messages (``rank `principal-8```); ``hint`` says what to measure.
+    """
+    for m in measured:
+        if m.note not in notes:
+            raise PhysicsError.at(m.position, f"measured note {note_name(m.note)} is not in "
+                                  f"{group}", hint)
+    result = fit([observe(m) for m in measured])
+    if not result.residuals:
+        return result
+    worst = max(range(len(result.residuals)),
+                key=lambda i: abs(result.residuals[i].error_cents))
+    residual = result.residuals[worst]
+    if abs(residual.error_cents) > MAX_RESIDUAL_CENTS:
+        raise PhysicsError.at(
+            measured[worst].position,
+            f"{group}: the measured {residual.note} ({measured[worst].frequency_hz:.2f} Hz) is "
             f"{residual.error_cents:+.0f} cents from the model even after calibration",
             "check the note, the frequency and the temperature of this measurement: "
             "calibration corrects the end corrections, worth some cents, not a wrong note")
+    return result

@@ -125,18 +125,9 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
     stock = spec.stock_named(rank.stock)
     assert stock is not None
     warnings = list(air.warnings)
-    observations = []
-    for m in rank.measured:
-        if m.note not in rank.notes:
-            raise PhysicsError.at(m.position, f"measured note {note_name(m.note)} is not in "
-                                  f"rank `{rank.id}`", "measure a pipe of this rank")
-        observations.append(_observation(rank, spec, stock, air, m))
-    fit = calibration.fit(observations)
-    bad = calibration.outlier(fit)
-    if bad is not None:
-        m = rank.measured[bad]
-        raise PhysicsError.at(m.position, *calibration.implausible_message(
-            fit, bad, f"rank `{rank.id}`", m.frequency_hz))
+    fit = calibration.fit_measured(
+        rank.measured, rank.notes, f"rank `{rank.id}`", "measure a pipe of this rank",
+        lambda m: _observation(rank, spec, stock, air, m))
     pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings) for note in rank.notes]
     group = Group(
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
@@ -204,17 +195,7 @@ def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model
     override = _override(rank, m.note)
     target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
     base = _acoustics(rank, section, width, cutup, lip, 1.0)
-    length = m.length_m
-    if length is None:
-        length, _ = simple.solve_length(base, target, air.state.speed_m_s, rank.harmonic)
-        length = plain.round_to(length, spec.fabrication.precision_m)
-    c_measured = air.at_temperature(m.temperature_k).speed_m_s
-    built = length
-
-    def predict(s: float) -> float:
-        return simple.predict_frequency(plain.scaled(base, s), built, c_measured, rank.harmonic)
-
-    return calibration.Observation(note_name(m.note), m.frequency_hz, predict)
+    return plain.observation(base, m, target, rank.harmonic, air, step)
 
 
 def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,

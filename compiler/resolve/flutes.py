@@ -255,9 +255,9 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                                                                     strict=True)]))
     closed = np.array(table[lowest], dtype=bool)
     base = _first_register(instrument, air.state, closed)
-    longer = _first_register(_with_length(instrument, length + SENSITIVITY_STEP_M),
+    longer = _first_register(replace(instrument, length_m=length + SENSITIVITY_STEP_M),
                              air.state, closed)
-    shorter = _first_register(_with_length(instrument, length - SENSITIVITY_STEP_M),
+    shorter = _first_register(replace(instrument, length_m=length - SENSITIVITY_STEP_M),
                               air.state, closed)
     t = air.state.temperature_k
     warm = _first_register(instrument, air.at_temperature(t + SENSITIVITY_STEP_K), closed)
@@ -296,10 +296,6 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                              f"flute `{flute.id}`: measured pitches are not fitted for flutes "
                              "yet; the prediction is uncalibrated"))
     return group, [pipe], warnings
-
-
-def _with_length(instrument: Instrument, length_m: float) -> Instrument:
-    return replace(instrument, length_m=length_m)
 
 
 def _second_position(flute: spec_model.Flute, closed: tuple[bool, ...]) -> Position:

@@ -9,7 +9,10 @@ from dataclasses import dataclass
 from compiler.acoustics import simple
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
+from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir
+from compiler.spec.model import Measurement
+from compiler.spec.notes import note_name
 
 HARMONICS_REPORTED = 6
 SENSITIVITY_STEP_M = 1e-4
@@ -90,3 +93,25 @@ def equivalent_radius(width_m: float, depth_m: float) -> float:
     Orgelbau; seen only in secondary sources).
     """
     return math.sqrt(width_m * depth_m / math.pi)
+
+
+def observation(pipe: simple.PipeAcoustics, measured: Measurement, target_hz: float,
+                harmonic: int, air: GroupAir, precision_m: float) -> calibration.Observation:
+    """The model of one measured prototype, as a function of the calibration factor.
+
+    The prototype is as long as the spec says it was built, else as long as the
+    uncalibrated model made it (rounded as cut); it sounded in air at the measured
+    temperature.
+    """
+    length = measured.length_m
+    if length is None:
+        length = round_to(simple.solve_length(pipe, target_hz, air.state.speed_m_s,
+                                              harmonic)[0], precision_m)
+    speed = air.at_temperature(measured.temperature_k).speed_m_s
+    built = length
+
+    def predict(s: float) -> float:
+        return simple.predict_frequency(scaled(pipe, s), built, speed, harmonic)
+
+    return calibration.Observation(note_name(measured.note), measured.frequency_hz, predict)
+

@@ -79,32 +79,14 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
         override = next((o for o in tubes.overrides if o.note == note), None)
         target = target_hz(spec.tuning, note, override.frequency_hz if override else None)
         chosen[note] = (target, _choose_stock(tubes, spec, note, target, air))
-    observations = []
-    for m in tubes.measured:
-        if m.note not in chosen:
-            raise PhysicsError.at(m.position, f"measured note {note_name(m.note)} is not in "
-                                  f"tube set `{tubes.id}`", "measure a tube of this set")
+
+    def observe(m: spec_model.Measurement) -> calibration.Observation:
         target, stock = chosen[m.note]
-        base = _acoustics(tubes, stock, 1.0)
-        length = m.length_m
-        if length is None:
-            length = plain.round_to(simple.solve_length(
-                base, target, air.state.speed_m_s, tubes.harmonic)[0],
-                spec.fabrication.precision_m)
-        c_measured = air.at_temperature(m.temperature_k).speed_m_s
+        return plain.observation(_acoustics(tubes, stock, 1.0), m, target, tubes.harmonic,
+                                 air, spec.fabrication.precision_m)
 
-        def predict(s: float, base: simple.PipeAcoustics = base, length: float = length,
-                    c: float = c_measured) -> float:
-            return simple.predict_frequency(plain.scaled(base, s), length, c, tubes.harmonic)
-
-        observations.append(calibration.Observation(note_name(m.note), m.frequency_hz,
-                                                    predict))
-    fit = calibration.fit(observations)
-    bad = calibration.outlier(fit)
-    if bad is not None:
-        m = tubes.measured[bad]
-        raise PhysicsError.at(m.position, *calibration.implausible_message(
-            fit, bad, f"tube set `{tubes.id}`", m.frequency_hz))
+    fit = calibration.fit_measured(tubes.measured, tuple(chosen), f"tube set `{tubes.id}`",
+                                   "measure a tube of this set", observe)
     pipes = []
     fab = spec.fabrication
     for note in tubes.notes:

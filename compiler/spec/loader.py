@@ -9,6 +9,7 @@ Aliases are allowed, but the expansion is counted so an alias bomb stops at once
 from __future__ import annotations
 
 import hashlib
+import pathlib
 import re
 from dataclasses import dataclass, field
 from typing import Any
@@ -49,6 +50,22 @@ class Document:
     def key_at(self, path: Path) -> Position:
         """Position of the key naming ``path`` (falls back to the value's position)."""
         return self.keys.get(tuple(path)) or self.at(path)
+
+
+class SpecFileError(Exception):
+    """A spec file that cannot be read at all (missing, a folder, no permission)."""
+
+
+def read_spec_file(path: pathlib.Path, shown: str) -> bytes:
+    """The bytes of a spec file; ``SpecFileError`` names it as ``shown`` when unreadable."""
+    try:
+        return path.read_bytes()
+    except FileNotFoundError:
+        raise SpecFileError(f"{shown}: no such file") from None
+    except IsADirectoryError:
+        raise SpecFileError(f"{shown}: is a folder, not a spec file") from None
+    except OSError as exc:
+        raise SpecFileError(f"{shown}: cannot read ({exc.strerror})") from None
 
 
 def _position(file: str, node: yaml.Node) -> Position:

@@ -68,6 +68,15 @@ class _Reader:
     def note(self, path: Path) -> int | None:
         return self.convert(path, notes.parse_note, None)
 
+    def key_note(self, path: Path, label: str) -> int | None:
+        """The note named by the last key of ``path`` (a per-note table), or None."""
+        try:
+            return notes.parse_note(str(path[-1]))
+        except notes.NoteError as exc:
+            self.problems.append(Problem(self.doc.key_at(path), f"{label}: {exc.message}",
+                                         exc.hint, "units"))
+            return None
+
     def at(self, path: Path) -> Position:
         return self.doc.at(path)
 
@@ -135,11 +144,8 @@ def _tuning(r: _Reader) -> model.Tuning:
     offsets: list[tuple[int, float]] = []
     for key in sorted(r.get((*base, "offsets")) or {}):
         path = (*base, "offsets", key)
-        try:
-            note = notes.parse_note(key)
-        except notes.NoteError as exc:
-            r.problems.append(Problem(r.doc.key_at(path), f"tuning.offsets: {exc.message}",
-                                      exc.hint, "units"))
+        note = r.key_note(path, "tuning.offsets")
+        if note is None:
             continue
         offsets.append((note, r.convert(path, units.parse_cents, 0.0)))
     return model.Tuning(
@@ -326,11 +332,8 @@ def _scale(r: _Reader, base: Path) -> model.Scale:
     table: list[tuple[int, float, float | None]] = []
     for key in sorted(r.get((*s, "table")) or {}):
         path = (*s, "table", key)
-        try:
-            note = notes.parse_note(key)
-        except notes.NoteError as exc:
-            r.problems.append(Problem(r.doc.key_at(path), f"{_name(s)}.table: {exc.message}",
-                                      exc.hint, "units"))
+        note = r.key_note(path, f"{_name(s)}.table")
+        if note is None:
             continue
         value = r.get(path)
         if isinstance(value, str) and "x" in value.lower():

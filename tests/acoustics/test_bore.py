@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from reference_air import AIR
 from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 from scipy.special import jv
@@ -29,11 +30,6 @@ from compiler.acoustics.bore import (
     shear_number,
 )
 
-# Air at 20 °C from the linearised constants of Benade, JASA 44(2) (1968), also used by
-# Keefe (1984); values computed from those formulas.
-AIR = Air(
-    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
-)
 # Benade's (1968) constants at 300 K, where the linearisation is centred (Keefe 1984 uses them).
 AIR_300K = Air(300.0, 101325.0, 0.0, 0.0004, "benade", 347.23, 1.1769, 1.846e-5, 1.4017, 0.841**2)
 

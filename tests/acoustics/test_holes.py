@@ -15,8 +15,8 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from reference_air import AIR
 
-from compiler.acoustics.air import Air
 from compiler.acoustics.holes import (
     downstream_for_shortening,
     effective_length,
@@ -31,9 +31,6 @@ from compiler.acoustics.holes import (
 from compiler.acoustics.impedance import Bore, Head, Hole, Instrument
 from compiler.acoustics.playing import resonances
 
-AIR = Air(
-    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
-)
 A = 0.0095
 
 

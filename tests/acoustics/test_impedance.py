@@ -14,9 +14,9 @@ from collections.abc import Callable
 
 import numpy as np
 import pytest
+from reference_air import AIR
 from scipy.optimize import brentq
 
-from compiler.acoustics.air import Air
 from compiler.acoustics.bore import characteristic
 from compiler.acoustics.impedance import (
     Bore,
@@ -31,9 +31,6 @@ from compiler.acoustics.impedance import (
 )
 from compiler.acoustics.playing import resonances
 
-AIR = Air(
-    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
-)
 C = AIR.speed_m_s
 LS = 0.6133  # Levine & Schwinger (1948)
 

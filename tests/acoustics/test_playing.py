@@ -10,15 +10,11 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from reference_air import AIR
 from scipy.optimize import brentq
 
-from compiler.acoustics.air import Air
 from compiler.acoustics.impedance import Bore, Head, Hole, Instrument, input_impedance
 from compiler.acoustics.playing import default_range, log_grid, resonances, spectrum
-
-AIR = Air(
-    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
-)
 
 
 def cents(f: float, ref: float) -> float:

@@ -11,8 +11,8 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from reference_air import AIR
 
-from compiler.acoustics.air import Air
 from compiler.acoustics.impedance import Bore, Head, Hole, Instrument
 from compiler.acoustics.playing import resonances
 from compiler.acoustics.solve import (
@@ -23,9 +23,6 @@ from compiler.acoustics.solve import (
     design_holes,
 )
 
-AIR = Air(
-    293.15, 101325.0, 0.0, 0.0004, "benade", 343.282, 1.20391, 1.81439e-5, 1.40189, 0.84215**2
-)
 DRILLS = tuple(np.round(np.arange(2.0, 13.01, 0.5), 1) / 1000)  # metric, 0.5 mm steps
 
 
