@@ -18,6 +18,7 @@ from compiler.acoustics.radiation import (
     end_correction,
     flanged_end_correction_ratio,
     radiation_impedance,
+    thick_wall_end_correction,
     unflanged_end_correction_ratio,
     unflanged_reflection_magnitude,
 )
@@ -111,3 +112,17 @@ def test_unknown_model_and_bad_radius_are_refused() -> None:
         end_correction("baffled", A)
     with pytest.raises(ValueError, match="positive radius"):
         end_correction("unflanged", 0.0)
+
+
+def test_thick_wall_end_correction_limits_and_trend() -> None:
+    # Dalmont, Nederveen & Joly (2001), J. Sound Vib. 244(3): the interpolation runs from the
+    # thin-wall value 0.6133a (Levine & Schwinger 1948) at b = a to the infinite-flange value
+    # 0.8216a (Norris & Sheng 1989) as the outer radius b grows (formula from memory).
+    assert float(thick_wall_end_correction(A, A)) == pytest.approx(0.6133 * A, rel=1e-12)
+    assert float(thick_wall_end_correction(A, 1e4 * A)) == pytest.approx(0.8216 * A, rel=1e-4)
+    ratios = thick_wall_end_correction(A, A * np.array([1.0, 1.05, 1.21, 2.0, 5.0])) / A
+    assert np.all(np.diff(ratios) > 0)
+    # Values at b/a = 1.05 and 1.21 from the formula as recalled, to 4 digits (computed here):
+    # 0.8216 - 0.2083/1.05 + 0.057/1.05 (1 - 1.05^-5) = 0.6350; the same at 1.21: 0.6784.
+    assert ratios[1] == pytest.approx(0.6350, abs=1e-4)
+    assert ratios[2] == pytest.approx(0.6784, abs=1e-4)
