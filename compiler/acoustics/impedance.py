@@ -28,6 +28,11 @@ Model (transfer-matrix method, as in Keefe 1990, "Woodwind air column models", J
 - Head kind ``"open"``: the exciting end is a plain open end of the bore, Z_total = Z_down + Zr
   with the instrument's end model (an open pipe driven at its end; used for checks and plain
   tubes).
+- Head kind ``"closed"``: the exciting end is closed at the mouth position (a reed or a
+  mouthpiece): Z_total = 1/Y_j, the input impedance there, with any head cavity above it (a
+  reed's and mouthpiece's equivalent volume, as a closed length of bore) in parallel. A
+  pressure-driven end sounds near the MAXIMA of |Z_total|; ``compiler.acoustics.playing``
+  takes care of that (``played``).
 
 Everything is vectorised over instruments × fingerings × frequencies; the only Python loops
 run along the bore (pieces and holes).
@@ -57,7 +62,7 @@ from compiler.acoustics.radiation import (
     radiation_impedance,
 )
 
-HEAD_KINDS: tuple[str, ...] = ("duct", "embouchure", "open")
+HEAD_KINDS: tuple[str, ...] = ("duct", "embouchure", "open", "closed")
 
 Complex = NDArray[np.complex128]
 Float = NDArray[np.float64]
@@ -157,11 +162,13 @@ class Head:
     kind: ``"duct"`` (window of window_length_m along the tube × window_width_m across, in a wall
     of window_thickness_m at the labium), ``"embouchure"`` (hole of embouchure_radius_m with a
     chimney or riser of embouchure_chimney_m, of which the lip covers the fraction lip_coverage of
-    the area: common practice, from memory, a quarter to a third), or ``"open"`` (a plain open
-    end, see the module docstring). mouth_position_m: centre of the window or embouchure hole,
-    from the top end. cavity_length_m: closed head cavity above the mouth centre (to the cork or
-    block face). extra_length_m: a calibration term, extra inertance at the mouth expressed as a
-    length of bore (0 unless fitted to measured pitches).
+    the area: common practice, from memory, a quarter to a third), ``"open"`` (a plain open
+    end) or ``"closed"`` (a closed, reed-driven end; see the module docstring).
+    mouth_position_m: centre of the window or embouchure hole, or where a closed end sits, from
+    the top end. cavity_length_m: closed head cavity above the mouth centre (to the cork or
+    block face; for a closed end, the reed's equivalent volume as a length of bore; the tube
+    and its bore profile must reach that far up). extra_length_m: a calibration term, extra
+    inertance at the mouth expressed as a length of bore (0 unless fitted to measured pitches).
     """
 
     kind: str
@@ -371,6 +378,8 @@ def impedance_batch(
         for A, B, C, D in _piece_matrices(instrument, air, omega, np.array(top), x_m):
             cp, cu = D * cp + B * cu, C * cp + A * cu
         y_j = y_j + cu / cp
+    if head.kind == "closed":
+        return np.broadcast_to(1.0 / y_j, shape).astype(np.complex128)
     a_m = float(bore.radius_at(head.mouth_position_m))
     if head.kind == "open":
         z = 1.0 / y_j + radiation_impedance(

@@ -7,6 +7,10 @@ minimum (in the lossless limit exactly the peak of |Y|); at impedance maxima the
 crosses zero downward, so they are never taken. The jet's own phase delay is not modelled: the
 frequencies are those of the air column as the jet drives it.
 
+A closed, pressure-driven end (head kind ``"closed"``: a reed or a mouthpiece) sounds near the
+maxima of |Z| instead; there the susceptance Im(1/Z) crosses zero upward, so for such an end
+every function here looks at 1/Z (``played``) and the definition above applies unchanged.
+
 Method: scan a logarithmic grid (vectorised over fingerings), bracket each crossing, then refine
 all brackets at once by safeguarded Newton iterations on Im Z(f) (finite-difference slope,
 bisection when a step leaves its bracket) to a relative 1e-10 (far below 0.01 cent).
@@ -21,7 +25,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from compiler.acoustics.air import Air
-from compiler.acoustics.impedance import Instrument, impedance_batch, input_admittance
+from compiler.acoustics.impedance import Instrument, impedance_batch, input_impedance
 from compiler.acoustics.tuning import cents
 
 Float = NDArray[np.float64]
@@ -45,6 +49,15 @@ class Resonances:
 
     frequencies_hz: Float
     octave_cents: Float
+
+
+def played(instrument: Instrument, z_total: NDArray[np.complex128]) -> NDArray[np.complex128]:
+    """The quantity whose upward reactance crossings are played: Z_total for a flow-driven
+    mouth (flue instruments sound near its minima), 1/Z_total for a closed, pressure-driven
+    end (a reed sounds near the maxima of Z; see the module docstring)."""
+    if instrument.head.kind == "closed":
+        return np.asarray(1.0 / z_total, dtype=np.complex128)
+    return z_total
 
 
 def default_range(instrument: Instrument, air: Air) -> tuple[float, float]:
@@ -187,7 +200,7 @@ def resonances(
     closed, back = np.unique(closed_rows, axis=0, return_inverse=True)
 
     def evaluate(freqs: Float) -> NDArray[np.complex128]:
-        return impedance_batch(instrument, air, freqs, closed)
+        return played(instrument, impedance_batch(instrument, air, freqs, closed))
 
     lo_default, hi_default = default_range(instrument, air)
     grid = log_grid(f_min_hz or lo_default, f_max_hz or hi_default)
@@ -210,10 +223,11 @@ def spectrum(
     n: int = 2000,
 ) -> tuple[Float, Float]:
     """(freqs, |Y|) for plots: n linearly spaced frequencies (Hz) and the admittance magnitude
-    seen by the jet, shape (n_fingerings, n), m³/(Pa·s)."""
+    seen by the jet, shape (n_fingerings, n), m³/(Pa·s). For a closed (reed) end, whose playing
+    frequencies are impedance peaks, |Z| instead (Pa·s/m³): the curve peaks where it plays."""
     freqs = np.linspace(f_min_hz, f_max_hz, n)
     closed = _fingerings(instrument, fingerings)
-    return freqs, np.abs(input_admittance(instrument, air, freqs, closed))
+    return freqs, np.abs(1.0 / played(instrument, input_impedance(instrument, air, freqs, closed)))
 
 
 def _fingerings(instrument: Instrument, fingerings: ArrayLike | None) -> NDArray[np.bool_]:
