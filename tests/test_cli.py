@@ -74,7 +74,7 @@ def test_resolve_table_shows_inches_for_inch_specs(tmp_path: Path,
                                                    capsys: pytest.CaptureFixture[str]) -> None:
     # 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
     spec = tmp_path / "inch.yaml"
-    spec.write_text((ROOT / "specs_examples" / "chime-tubes.yaml").read_text()
+    spec.write_text((ROOT / "specs_examples" / "blown-stopped-tubes.yaml").read_text()
                     .replace("units: mm", "units: in"))
     assert main(["resolve", str(spec)]) == 0
     lines = capsys.readouterr().out.splitlines()

@@ -45,7 +45,7 @@ def test_same_spec_same_bytes(tmp_path: Path) -> None:
 
 
 def test_failed_build_keeps_the_previous_output(tmp_path: Path) -> None:
-    spec = next(p for p in EXAMPLES if p.stem == "chime-tubes")
+    spec = next(p for p in EXAMPLES if p.stem == "blown-stopped-tubes")
     folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions())
     before = _tree(folder)
     broken = spec.read_text().replace("count: 15", "count: 30")  # notes no tube can reach
@@ -56,7 +56,7 @@ def test_failed_build_keeps_the_previous_output(tmp_path: Path) -> None:
 
 
 def test_unchanged_rebuild_is_skipped_and_a_damaged_output_is_rebuilt(tmp_path: Path) -> None:
-    spec = next(p for p in EXAMPLES if p.stem == "chime-tubes")
+    spec = next(p for p in EXAMPLES if p.stem == "blown-stopped-tubes")
     messages: list[str] = []
     folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
     before = _tree(folder)

@@ -27,7 +27,7 @@ from compiler.options import BuildOptions
 
 ROOT = Path(__file__).resolve().parents[1]
 EXAMPLE = ROOT / "specs_examples" / "practice-organ-610.yaml"
-SMALL = ROOT / "specs_examples" / "chime-tubes.yaml"
+SMALL = ROOT / "specs_examples" / "blown-stopped-tubes.yaml"
 POLL_S = 0.005
 
 

@@ -83,7 +83,7 @@ stock:
   ply: {{material: birch-ply, sheet: {{thickness: 4 mm, size: 600 x 300 mm}}}}
   tin: {{material: {material}, sheet: {{thickness: 0.5 mm, size: 1200 x 600 mm}}}}
 tube_sets:
-  - {{id: chimes, family: stopped-tube, stock: alu, notes: G5..A5, holder: {{stock: ply}}}}
+  - {{id: tubes, family: stopped-tube, stock: alu, notes: G5..A5, holder: {{stock: ply}}}}
 ranks:
   - id: pipe
     family: open-flue
@@ -135,7 +135,7 @@ def test_part_files_land_inside_the_output_folder(tmp_path: Path) -> None:
     folder = build(_spec("../../Parts test", material="../../../sheet"), "safety.yaml", out,
                    BuildOptions(part_files=True))
     parts = sorted((folder / "parts").glob("*.dxf"))
-    assert {p.stem for p in parts} >= {"chimes-holder", "pipe-C6-body"}
+    assert {p.stem for p in parts} >= {"tubes-holder", "pipe-C6-body"}
     for path in _everything(tmp_path):
         assert path == out or _inside(out, path), path
     for path in parts:

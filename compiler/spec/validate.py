@@ -42,7 +42,7 @@ def _schema_text(name: str) -> str:
 def _ecma_pattern(pattern: str) -> re.Pattern[str]:
     """A JSON Schema ``pattern`` for Python's ``re``: in ECMA-262 (the dialect JSON Schema
     names) an unescaped ``$`` matches only at the very end of the text, while Python's also
-    matches before a final newline, which would let `"chimes\\n"` through as an id."""
+    matches before a final newline, which would let `"tubes\\n"` through as an id."""
     return re.compile(re.sub(r"(?<!\\)\$", r"\\Z", pattern))
 
 

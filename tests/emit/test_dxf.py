@@ -224,8 +224,8 @@ def test_gdal_reads_the_same_coordinates(model: Resolved, parts: Parts,
                                          tmp_path: pathlib.Path) -> None:
     dxf.write(model, parts, BuildOptions(part_files=True), tmp_path)
     # Holder plate: GDAL turns each CIRCLE into a closed line string of points on it.
-    holder = parts.part("chimes-holder")
-    feats = _ogr_features(tmp_path / "parts" / "chimes-holder.dxf")
+    holder = parts.part("tubes-holder")
+    feats = _ogr_features(tmp_path / "parts" / "tubes-holder.dxf")
     rings = [f for f in feats if f["properties"]["Layer"] == "cut-inner"]  # type: ignore[index]
     ours = sorted((e for e in holder.entities if isinstance(e, Circle)
                    and e.operation == "cut-inner"), key=lambda c: c.center[0])

@@ -95,10 +95,10 @@ def stopped_wood_pipe() -> Pipe:
 TUBE_NOTES = (("C5", 523.251, 0.1684), ("E5", 659.255, 0.1347), ("G5", 783.991, 0.1140))
 
 
-def chime_pipes() -> list[Pipe]:
+def tube_set_pipes() -> list[Pipe]:
     """Three stopped aluminium tubes, 25 × 1 mm, with a 12 mm plug."""
     return [
-        _pipe(id=f"chimes-{note}", group="chimes", family="stopped-tube",
+        _pipe(id=f"tubes-{note}", group="tubes", family="stopped-tube",
               construction="stock-tube", note=note, stock="alu-25", material="aluminium",
               target_hz=hz, section="round", inside_diameter_m=0.023,
               outside_diameter_m=0.025, wall_m=0.001, speaking_length_m=cut - 0.012,
@@ -157,9 +157,9 @@ def wood_model() -> Resolved:
     return resolved([p], [_group("stopped-wood", "rank", "stopped-flue", "boards", [p])])
 
 
-def chimes_model(holder: Holder | None = HOLDER) -> Resolved:
-    ps = chime_pipes()
-    return resolved(ps, [_group("chimes", "tube-set", "stopped-tube", "stock-tube", ps,
+def tube_set_model(holder: Holder | None = HOLDER) -> Resolved:
+    ps = tube_set_pipes()
+    return resolved(ps, [_group("tubes", "tube-set", "stopped-tube", "stock-tube", ps,
                                 holder)])
 
 
@@ -171,14 +171,14 @@ def flute_model() -> Resolved:
 def everything() -> Resolved:
     """All four sample instruments in one model."""
     metal, wood = open_metal_pipe(), stopped_wood_pipe()
-    chimes, flute = chime_pipes(), duct_flute()
+    tubes, flute = tube_set_pipes(), duct_flute()
     groups = [
         _group("principal-4", "rank", "open-flue", "rolled-sheet", [metal]),
         _group("stopped-wood", "rank", "stopped-flue", "boards", [wood]),
-        _group("chimes", "tube-set", "stopped-tube", "stock-tube", chimes, HOLDER),
+        _group("tubes", "tube-set", "stopped-tube", "stock-tube", tubes, HOLDER),
         _group("whistle-d", "flute", "duct-flute", "stock-tube", [flute]),
     ]
-    return resolved([metal, wood, *chimes, flute], groups)
+    return resolved([metal, wood, *tubes, flute], groups)
 
 
 def metal_rank(count: int) -> Resolved:

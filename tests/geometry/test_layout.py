@@ -34,9 +34,9 @@ def test_parts_of_each_construction(parts: Parts) -> None:
         "stopped-wood-C3-front", "stopped-wood-C3-back", "stopped-wood-C3-side",
         "stopped-wood-C3-block", "stopped-wood-C3-cap", "stopped-wood-C3-stopper",
         "stopped-wood-C3-handle", "whistle-d-template", "whistle-d-duct-block",
-        "chimes-holder",
+        "tubes-holder",
     ]
-    assert [c.pipe_id for c in parts.tube_cuts] == ["chimes-C5", "chimes-E5", "chimes-G5",
+    assert [c.pipe_id for c in parts.tube_cuts] == ["tubes-C5", "tubes-E5", "tubes-G5",
                                                     "whistle-d"]
     assert len({p.id for p in parts.parts}) == len(parts.parts)
 
@@ -61,7 +61,7 @@ def test_cut_paths_are_closed_and_one_outline_a_part(parts: Parts) -> None:
     ("principal-4-C3-languid", {"cut-outer": 1, "mark": 1, "engrave": 1}),
     ("stopped-wood-C3-side", {"cut-outer": 1, "mark": 2, "engrave": 1}),
     ("stopped-wood-C3-handle", {"cut-outer": 1, "cut-inner": 1, "engrave": 1}),
-    ("chimes-holder", {"cut-outer": 1, "cut-inner": 3, "engrave": 3}),
+    ("tubes-holder", {"cut-outer": 1, "cut-inner": 3, "engrave": 3}),
 ])
 def test_entities_per_operation(parts: Parts, part_id: str, counts: dict[str, int]) -> None:
     assert Counter(e.operation for e in parts.part(part_id).entities) == counts

@@ -55,17 +55,17 @@ def test_board_longer_than_its_stock_cannot_turn() -> None:
 
 def test_holder_openings_closer_than_the_web() -> None:
     holder = replace(samples.HOLDER, spacing_m=0.003)  # 3 mm in 6 mm ply
-    err = _error(samples.chimes_model(holder))
+    err = _error(samples.tube_set_model(holder))
     assert len(err.problems) == 2  # C5–E5 and E5–G5
     for problem in err.problems:
-        assert "`chimes-holder`" in problem.message
+        assert "`tubes-holder`" in problem.message
         assert "6.0 mm web" in problem.message
         assert problem.position == Position(samples.SPEC, 60, 9)
 
 
 def test_holder_margin_below_the_web() -> None:
     holder = replace(samples.HOLDER, margin_m=0.002)
-    err = _error(samples.chimes_model(holder))
+    err = _error(samples.tube_set_model(holder))
     assert all("to the edge" in p.message for p in err.problems)
 
 
@@ -90,7 +90,7 @@ def test_mouth_wider_than_a_wooden_pipe() -> None:
 
 def test_kerf_wider_than_an_opening() -> None:
     wide_kerf = replace(samples.FABRICATION, kerf_m=0.026)
-    err = _error(replace(samples.chimes_model(), fabrication=wide_kerf))
+    err = _error(replace(samples.tube_set_model(), fabrication=wide_kerf))
     assert any("kerf of 26 mm cannot be applied" in p.message for p in err.problems)
 
 

@@ -127,8 +127,8 @@ def test_duct_block_profile() -> None:
 
 
 def test_holder_plate() -> None:
-    parts = layout(samples.chimes_model(), BuildOptions())
-    holder = parts.part("chimes-holder")
+    parts = layout(samples.tube_set_model(), BuildOptions())
+    holder = parts.part("tubes-holder")
     assert holder.kind == "sheet" and holder.material == "birch-ply"
     openings = sorted((e for e in holder.entities if e.operation == "cut-inner"),
                       key=lambda c: c.center[0])  # type: ignore[union-attr]
@@ -152,29 +152,29 @@ def test_holder_plate() -> None:
 def test_holder_row_splits_to_fit_a_small_sheet() -> None:
     small = tuple(replace(s, length_m=0.12, width_m=0.08) if s.name == "ply-6" else s
                   for s in samples.STOCK)
-    model = replace(samples.chimes_model(), stock=small)
+    model = replace(samples.tube_set_model(), stock=small)
     parts = layout(model, BuildOptions())
     holders = [p for p in parts.parts if p.name.startswith("holder")]
-    assert [p.id for p in holders] == ["chimes-holder-1", "chimes-holder-2"]
+    assert [p.id for p in holders] == ["tubes-holder-1", "tubes-holder-2"]
     assert sum(1 for p in holders for e in p.entities if e.operation == "cut-inner") == 3
     # Two openings take 2·15 + 2·25.5 + 12 = 93 mm of the 120 − 2·5 mm the sheet allows.
     assert [p.width_mm for p in holders] == pytest.approx([93.0, 55.5])
 
 
 def test_tube_cuts_and_no_template_without_holes() -> None:
-    parts = layout(samples.chimes_model(holder=None), BuildOptions())
+    parts = layout(samples.tube_set_model(holder=None), BuildOptions())
     assert parts.parts == () and parts.sheets == ()
     assert [(c.pipe_id, c.length_mm) for c in parts.tube_cuts] == [
-        (f"chimes-{note}", pytest.approx(cut * 1000)) for note, _, cut in samples.TUBE_NOTES]
+        (f"tubes-{note}", pytest.approx(cut * 1000)) for note, _, cut in samples.TUBE_NOTES]
     assert all(c.outside_diameter_mm == pytest.approx(25.0) for c in parts.tube_cuts)
 
 
 def test_holder_on_board_stock_keeps_the_grain() -> None:
     stock = (*samples.STOCK, StockItem("oak-10", "board", "oak", 0.010, None, None, 1.0, 0.2))
     holder = replace(samples.HOLDER, stock="oak-10", material="oak", thickness_m=0.010)
-    model = samples.chimes_model(holder)
+    model = samples.tube_set_model(holder)
     model = replace(model, stock=stock)
     parts = layout(model, BuildOptions())
-    plate = parts.part("chimes-holder")
+    plate = parts.part("tubes-holder")
     assert plate.kind == "board" and plate.grain_along_x
     assert not any(pl.rotated for s in parts.sheets for pl in s.placements)

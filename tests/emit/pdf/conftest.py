@@ -145,7 +145,7 @@ def tube_set() -> tuple[Group, tuple[Pipe, ...]]:
         speaking = acoustic - end
         p = f * 2.0 ** (error / 1200.0)
         pipes.append(Pipe(
-            id=f"chimes-{note_name(midi)}", group="chimes", family="stopped-tube",
+            id=f"tubes-{note_name(midi)}", group="tubes", family="stopped-tube",
             construction="stock-tube", note=note_name(midi), harmonic=1, stock="alu-25",
             material="aluminium", target_hz=f, predicted_hz=p, error_cents=error,
             harmonics_hz=(p, 3.0 * p * 0.996), cents_per_mm=-LOG_C / (acoustic * 1000.0),
@@ -155,7 +155,7 @@ def tube_set() -> tuple[Group, tuple[Pipe, ...]]:
             cut_length_m=speaking + 0.015, mouth=None, foot=None, block=None,
             stopper=Stopper(speaking, 0.015, 0.005), head=None, holes=(), fingerings=(),
             curves=(), source=_where(70 + midi - 67)))
-    group = Group("chimes", "tube-set", "stopped-tube", "stock-tube", room(), "unflanged",
+    group = Group("tubes", "tube-set", "stopped-tube", "stock-tube", room(), "unflanged",
                   Calibration(False, "end correction scale", 1.0, (), 0.0),
                   Holder("birch-6", "birch-ply", 0.006, 0.032, 0.015, 0.0005),
                   tuple(p.id for p in pipes))
@@ -300,7 +300,7 @@ def holder(tubes: tuple[Pipe, ...]) -> Part:
     w, h = 15.0 * 2 + 32.0 * (len(tubes) - 1) + 25.0, 55.0
     ents: list[Circle | Polyline | Text] = [rect("cut-outer", 0.0, 0.0, w, h)]
     ents += [Circle("cut-inner", (27.5 + 32.0 * i, 27.5), 12.75) for i in range(len(tubes))]
-    return Part("chimes-holder", None, "chimes", "holder plate", "birch-ply", "birch-6", 6.0,
+    return Part("tubes-holder", None, "tubes", "holder plate", "birch-ply", "birch-6", 6.0,
                 "sheet", w, h, tuple(ents))
 
 
@@ -310,7 +310,7 @@ def small_parts(resolved: Resolved) -> Parts:
     for pid in ("principal-4-C3", "principal-4-C#3", "principal-4-D3"):
         parts += flue_parts(by_id[pid])
     parts += wood_parts(by_id["bourdon-8-C3"])
-    tubes = tuple(p for p in resolved.pipes if p.group == "chimes")
+    tubes = tuple(p for p in resolved.pipes if p.group == "tubes")
     parts.append(holder(tubes))
     parts.append(drilling_template(by_id["duct-flute-d5"]))
     metal = [p for p in parts if p.stock == "spotted-08"]
@@ -323,7 +323,7 @@ def small_parts(resolved: Resolved) -> Parts:
               tuple(Placement(p.id, 0.0, 0.0, False) for p in parts if p.stock == "pine-15"),
               0.64),
         Sheet("birch-6-1", "birch-6", "birch-ply", 6.0, 600.0, 300.0,
-              (Placement("chimes-holder", 0.0, 0.0, False),), 0.09),
+              (Placement("tubes-holder", 0.0, 0.0, False),), 0.09),
     )
     cuts = tuple(TubeCut(p.id, p.stock, p.material, p.cut_length_m * 1000.0,
                          (p.outside_diameter_m or 0.0) * 1000.0)

@@ -155,6 +155,6 @@ def test_template_choice(small: tuple[Resolved, Parts]) -> None:
     chosen, left_out = templates.choose(parts, frame_for("a4"))
     ids = {c.part.id for c in chosen}
     assert "duct-flute-d5-drilling" in ids
-    assert {"principal-4-C3-languid", "principal-4-C3-foot", "chimes-holder"} <= ids
+    assert {"principal-4-C3-languid", "principal-4-C3-foot", "tubes-holder"} <= ids
     assert not any(i.endswith(("-body", "-front", "-back", "-side", "-block")) for i in ids)
     assert left_out == 3  # the three rolled bodies need more than OUTLINE_TILES tiles
