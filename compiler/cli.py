@@ -1,4 +1,4 @@
-"""Command line: ``boresmith check|resolve|build|diff|new``.
+"""Command line: ``boresmith check|resolve|build|diff|new|schema``.
 
 All file access, terminal output and exit codes live here; the stages are pure.
 Exit codes: 0 success, 1 the spec is wrong (or, for ``diff``, something changed),
@@ -48,7 +48,8 @@ def cmd_check(args: argparse.Namespace) -> int:
         except SpecError as exc:
             everything.extend(exc.problems)
     if args.json:
-        print(json.dumps([p.as_dict() for p in everything], indent=2, sort_keys=True))
+        _write_json(json.dumps([p.as_dict() for p in everything], indent=2, sort_keys=True,
+                               ensure_ascii=False) + "\n")
     else:
         _report(everything)
         if not everything:
@@ -81,7 +82,7 @@ def cmd_resolve(args: argparse.Namespace) -> int:
     resolved = _load(args.spec, args.strict)
     _warn(resolved)
     if args.json:
-        sys.stdout.write(resolved_json.dumps(resolved))
+        _write_json(resolved_json.dumps(resolved))
     else:
         sys.stdout.write(table.render(resolved))
     return EXIT_OK
@@ -137,6 +138,23 @@ def cmd_new(args: argparse.Namespace) -> int:
     return code
 
 
+def cmd_schema(args: argparse.Namespace) -> int:
+    from compiler.starters import schema_text, write_schema
+
+    if args.write is None:
+        sys.stdout.write(schema_text(args.which))
+        return EXIT_OK
+    folder = Path(args.write)
+    if not folder.is_dir():
+        raise UsageError(f"{args.write}: no such folder")
+    try:
+        written = write_schema(folder, args.which)
+    except OSError as exc:
+        raise UsageError(f"cannot write into {args.write}: {exc.strerror}") from None
+    print(f"boresmith: wrote {written}", file=sys.stderr)
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="boresmith",
@@ -187,10 +205,42 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("file", nargs="?", metavar="FILE",
                      help="write the starter here (never over an existing file)")
     new.set_defaults(run=cmd_new)
+
+    from compiler.starters import SCHEMAS
+
+    schema = sub.add_parser("schema", help="print the JSON Schema of the spec language (or of "
+                            "resolved.json), or write it into a folder for your editor")
+    schema.add_argument("which", nargs="?", default="spec", choices=tuple(SCHEMAS),
+                        help="spec (default) or resolved")
+    schema.add_argument("--write", metavar="DIR",
+                        help="write DIR/<schema file> (replacing an older copy) instead of "
+                        "printing it; a spec's first line `# yaml-language-server: "
+                        "$schema=boresmith-spec.schema.json` then finds it beside the spec")
+    schema.set_defaults(run=cmd_schema)
     return parser
 
 
+def _tolerant_streams() -> None:
+    """A terminal that cannot show a character (``PYTHONIOENCODING=ascii``, a C locale)
+    gets it escaped (``\\u2032``) instead of a traceback half way through the output."""
+    for stream in (sys.stdout, sys.stderr):
+        reconfigure = getattr(stream, "reconfigure", None)
+        if reconfigure is not None:
+            reconfigure(errors="backslashreplace")
+
+
+def _write_json(text: str) -> None:
+    """JSON on stdout, as ``\\u`` escapes where the terminal's encoding lacks a character
+    (``backslashreplace`` alone would write ``\\U0001f600``, which is not JSON)."""
+    try:
+        text.encode(sys.stdout.encoding or "utf-8")
+    except (UnicodeEncodeError, LookupError):
+        text = json.dumps(json.loads(text), indent=2, sort_keys=True, ensure_ascii=True) + "\n"
+    sys.stdout.write(text)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
+    _tolerant_streams()
     parser = build_parser()
     try:
         args = parser.parse_args(argv)

@@ -4,7 +4,8 @@ Each starter is valid as written and resolves: a small set (a few pipes or one f
 invented scenario, with every key explained by a short comment. Optional keys are shown
 commented out, at their place and indentation, so deleting the ``# `` turns them on. The
 first line is the schema modeline for editors that read JSON Schema; it names the schema
-by its ``$id``, since the starter may be written anywhere.
+file beside the spec, which ``boresmith new`` writes there with the starter (and
+``boresmith schema --write DIR`` writes or refreshes).
 """
 
 from __future__ import annotations
@@ -367,34 +368,46 @@ FAMILIES: tuple[str, ...] = tuple(_BODIES)
 """The instrument families, in the order the design lists them."""
 
 
-def schema_file() -> Path:
-    """The spec schema shipped with this boresmith (in the package, or the checkout)."""
-    from compiler.spec.validate import SPEC_SCHEMA
+SCHEMAS: Mapping[str, str] = MappingProxyType({
+    "spec": "boresmith-spec.schema.json",
+    "resolved": "boresmith-resolved.schema.json",
+})
+"""``boresmith schema [WHICH]``: the spec language, or the shape of resolved.json."""
 
-    here = Path(__file__).resolve().parent
-    for candidate in (here / "schemas" / SPEC_SCHEMA, here.parent / "schemas" / SPEC_SCHEMA):
-        if candidate.is_file():
-            return candidate
-    raise FileNotFoundError(SPEC_SCHEMA)
+MODELINE = f"# yaml-language-server: $schema={SCHEMAS['spec']}"
+"""The editor's schema line: the schema file beside the spec. A path into the installed
+package would point into a virtual environment that moves or disappears; a copy beside
+the specs (``boresmith schema --write DIR``) stays where the specs are, and is refreshed
+the same way after an upgrade."""
 
-
-def modeline(folder: Path | None = None) -> str:
-    """The editor's schema line. It names the schema file that ships with boresmith, so an
-    editor can read it without a network: relative to ``folder`` (where the starter is
-    written) when that is possible, else by its absolute path."""
-    target = schema_file()
-    where = target.as_posix()
-    if folder is not None:
-        try:
-            where = Path(os.path.relpath(target, folder.resolve())).as_posix()
-        except ValueError:  # another drive (Windows)
-            where = target.as_posix()
-    return f"# yaml-language-server: $schema={where}"
+_SCHEMA_NOTE = """\
+# The line above lets an editor with a YAML language server complete keys and show help:
+# it reads boresmith-spec.schema.json beside this file (`boresmith schema --write .`).
+"""
 
 
-def starter(family: str, folder: Path | None = None) -> str:
+def schema_text(which: str = "spec") -> str:
+    """The text of a schema shipped with this boresmith; ``KeyError`` for an unknown one."""
+    from compiler.spec.validate import schema_text as shipped
+
+    return shipped(SCHEMAS[which])
+
+
+def write_schema(folder: Path, which: str = "spec") -> Path:
+    """Write (or refresh) ``folder/<schema file>``, atomically; return its path."""
+    target = folder / SCHEMAS[which]
+    temp = folder / f".{SCHEMAS[which]}.tmp-{os.getpid()}"
+    try:
+        temp.write_text(schema_text(which), encoding="utf-8", newline="\n")
+        os.replace(temp, target)
+    finally:
+        temp.unlink(missing_ok=True)
+    return target
+
+
+def starter(family: str) -> str:
     """The starter spec for ``family`` (one of ``FAMILIES``); ``KeyError`` for another."""
-    return f"{modeline(folder)}\n{_BODIES[family]}"
+    return f"{MODELINE}\n{_SCHEMA_NOTE}{_BODIES[family]}"
 
 
 def run_new(family: str, file: Path | None) -> tuple[int, str]:
@@ -409,7 +422,7 @@ def run_new(family: str, file: Path | None) -> tuple[int, str]:
                             + ", ".join(FAMILIES))
     if file is None:
         return EXIT_OK, starter(family)
-    text = starter(family, file.parent if file.parent.is_dir() else None)
+    text = starter(family)
     try:
         with file.open("x", encoding="utf-8", newline="\n") as out:
             out.write(text)
@@ -420,4 +433,22 @@ def run_new(family: str, file: Path | None) -> tuple[int, str]:
     except OSError as exc:
         return EXIT_USAGE, f"{file}: cannot write ({exc.strerror})"
     article = "an" if family[0] in "aeiou" else "a"
-    return EXIT_OK, f"wrote {file}: {article} {family} starter; try `boresmith check {file}`"
+    note = f"wrote {file}: {article} {family} starter; try `boresmith check {file}`"
+    return EXIT_OK, note + _schema_beside(file.parent)
+
+
+def _schema_beside(folder: Path) -> str:
+    """Put the spec schema beside a new starter if none is there (the modeline names it)."""
+    target = folder / SCHEMAS["spec"]
+    if target.exists():
+        try:
+            same = target.read_text(encoding="utf-8") == schema_text()
+        except (OSError, UnicodeDecodeError):
+            same = False
+        return "" if same else (f"\n{target} differs from this boresmith's schema; refresh "
+                                f"it with `boresmith schema --write {folder}`")
+    try:
+        write_schema(folder)
+    except OSError as exc:
+        return f"\nthe schema could not be written beside it ({exc.strerror})"
+    return f"\nwrote {target}: the schema your editor reads (named on the first line)"

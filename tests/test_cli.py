@@ -93,3 +93,35 @@ def test_build_into_a_file_is_a_usage_error(tmp_path: Path,
     err = capsys.readouterr().err
     assert "cannot write the output" in err and "Traceback" not in err
     assert blocker.read_text() == "x"
+
+
+def _ascii_terminal(args: list[str], cwd: Path) -> subprocess.CompletedProcess[str]:
+    import os
+
+    env = {**os.environ, "PYTHONIOENCODING": "ascii"}
+    return subprocess.run([sys.executable, "-m", "compiler", *args], capture_output=True,
+                          text=True, encoding="ascii", errors="strict", cwd=cwd, env=env,
+                          check=False)
+
+
+def test_a_terminal_without_the_characters_gets_escapes_not_a_traceback(tmp_path: Path) -> None:
+    # PYTHONIOENCODING=ascii stands for a terminal that cannot show ′ or ö.
+    text = (ROOT / "specs_examples" / "blown-stopped-tubes.yaml").read_text(encoding="utf-8")
+    spec = tmp_path / "tubes.yaml"
+    spec.write_text(text.replace("instrument: Riverside workshop stopped tubes",
+                                 "instrument: Röhren für 4′ und 2′ 😀"), encoding="utf-8")
+    table = _ascii_terminal(["resolve", str(spec)], tmp_path)
+    assert table.returncode == 0 and "Traceback" not in table.stderr
+    assert "R\\xf6hren f\\xfcr 4\\u2032" in table.stdout
+    as_json = _ascii_terminal(["resolve", "--json", str(spec)], tmp_path)
+    assert as_json.returncode == 0, as_json.stderr
+    assert json.loads(as_json.stdout)["instrument"] == "Röhren für 4′ und 2′ 😀"
+    bad = tmp_path / "bad.yaml"
+    bad.write_text(text.replace("environment:", "größe: 4′\nenvironment:"), encoding="utf-8")
+    check = _ascii_terminal(["check", str(bad)], tmp_path)
+    assert check.returncode == 1 and "Traceback" not in check.stderr
+    assert "unknown key `gr\\xf6\\xdfe`" in check.stderr
+    problems = _ascii_terminal(["check", "--json", str(bad)], tmp_path)
+    assert json.loads(problems.stdout)[0]["message"] == "unknown key `größe` in the spec"
+    built = _ascii_terminal(["build", str(spec), "-o", str(tmp_path / "out")], tmp_path)
+    assert built.returncode == 0 and "Traceback" not in built.stderr

@@ -11,10 +11,11 @@ import yaml
 from jsonschema import Draft202012Validator
 
 from compiler.build import build
+from compiler.cli import main
 from compiler.options import BuildOptions
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
-from compiler.starters import FAMILIES, run_new, schema_file, starter
+from compiler.starters import FAMILIES, MODELINE, run_new, schema_text, starter
 
 ROOT = Path(__file__).resolve().parents[1]
 SCHEMA = json.loads((ROOT / "schemas" / "boresmith-spec.schema.json").read_text("utf-8"))
@@ -42,10 +43,10 @@ def test_the_families_are_the_designs_six() -> None:
 def test_starter_is_valid_as_written_and_resolves(family: str) -> None:
     text = starter(family)
     first = text.splitlines()[0]
-    # The modeline names the schema file shipped with boresmith (no network needed).
-    assert first.startswith("# yaml-language-server: $schema=")
-    named = Path(first.split("$schema=", 1)[1])
-    assert named.is_absolute() and json.loads(named.read_text()) == SCHEMA
+    # The modeline names the schema beside the spec, never a path into the installation
+    # (a virtual environment moves or disappears); it is the shipped schema, verbatim.
+    assert first == "# yaml-language-server: $schema=boresmith-spec.schema.json"
+    assert json.loads(schema_text()) == SCHEMA
     # Checked by the general-purpose JSON Schema validator, not only by our loader.
     Draft202012Validator(SCHEMA).validate(yaml.safe_load(text))
     resolved = resolve(load_spec(text, f"{family}.yaml"))
@@ -87,11 +88,17 @@ def test_run_new_writes_and_never_overwrites(tmp_path: Path) -> None:
     code, message = run_new("stopped-flue", target)
     assert code == 0 and str(target) in message
     written = target.read_text(encoding="utf-8")
-    assert written == starter("stopped-flue", tmp_path)
-    # written to a file, the modeline names the shipped schema relative to that file
+    assert written == starter("stopped-flue")
+    # the schema the modeline names is written beside the new spec, once
     named = tmp_path / written.splitlines()[0].split("$schema=", 1)[1]
-    assert not Path(written.splitlines()[0].split("$schema=", 1)[1]).is_absolute()
-    assert named.resolve() == schema_file()
+    assert json.loads(named.read_text(encoding="utf-8")) == SCHEMA
+    assert "wrote" in message and named.name in message
+    code, message = run_new("open-tube", tmp_path / "second.yaml")
+    assert code == 0 and named.name not in message
+    named.write_text("{}", encoding="utf-8")  # an older boresmith's schema
+    code, message = run_new("open-tube", tmp_path / "third.yaml")
+    assert code == 0 and "boresmith schema --write" in message
+    assert named.read_text(encoding="utf-8") == "{}"  # never replaced behind the maker's back
     target.write_text("my own work\n", encoding="utf-8")
     code, message = run_new("open-flue", target)
     assert code == 2 and "already exists" in message
@@ -104,3 +111,30 @@ def test_run_new_errors(tmp_path: Path) -> None:
     assert all(family in message for family in FAMILIES)
     code, message = run_new("duct-flute", tmp_path / "no-such-folder" / "flute.yaml")
     assert code == 2 and "does not exist" in message
+
+
+def test_schema_command_prints_and_writes(tmp_path: Path,
+                                          capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["schema"]) == 0
+    assert json.loads(capsys.readouterr().out) == SCHEMA
+    assert main(["schema", "resolved"]) == 0
+    resolved_schema = json.loads(capsys.readouterr().out)
+    assert resolved_schema["title"] == "boresmith resolved model"
+    stale = tmp_path / "boresmith-spec.schema.json"
+    stale.write_text("{}", encoding="utf-8")
+    assert main(["schema", "--write", str(tmp_path)]) == 0
+    assert json.loads(stale.read_text(encoding="utf-8")) == SCHEMA  # refreshed
+    assert str(stale) in capsys.readouterr().err
+    assert sorted(p.name for p in tmp_path.iterdir()) == [stale.name]  # no temporary left
+    assert main(["schema", "--write", str(tmp_path / "nowhere")]) == 2
+    assert "no such folder" in capsys.readouterr().err
+
+
+def test_modeline_finds_the_written_schema(tmp_path: Path) -> None:
+    # What an editor does with the first line: resolve the name against the spec's folder.
+    assert main(["new", "duct-flute", str(tmp_path / "flute.yaml")]) == 0
+    first = (tmp_path / "flute.yaml").read_text(encoding="utf-8").splitlines()[0]
+    assert first == MODELINE
+    schema = json.loads((tmp_path / first.split("$schema=", 1)[1]).read_text(encoding="utf-8"))
+    Draft202012Validator(schema).validate(
+        yaml.safe_load((tmp_path / "flute.yaml").read_text(encoding="utf-8")))

@@ -26,12 +26,13 @@ SPEC_SCHEMA = "boresmith-spec.schema.json"
 
 def read_schema(name: str) -> dict[str, Any]:
     """Load a schema shipped with the package (falls back to the checkout's schemas/)."""
-    loaded: dict[str, Any] = json.loads(_schema_text(name))
+    loaded: dict[str, Any] = json.loads(schema_text(name))
     return loaded
 
 
 @lru_cache(maxsize=4)
-def _schema_text(name: str) -> str:
+def schema_text(name: str) -> str:
+    """The text of a schema shipped with the package (or the checkout's schemas/)."""
     packaged = resources.files("compiler").joinpath("schemas", name)
     if packaged.is_file():
         return packaged.read_text(encoding="utf-8")
