@@ -1,12 +1,14 @@
 """Air: speed of sound by named models, and the properties loss models need.
 
-Speed of sound, three named models (``SOUND_SPEED_MODELS``):
+Speed of sound, three named models (``SOUND_SPEED_MODELS``) or a measured value:
 
 - ``linear``: 331.3 + 0.606 t, dry air (common practice);
 - ``ideal-gas``: 331.3 sqrt(1 + t/273.15), dry air;
 - ``cramer-1993``: Cramer's fit in temperature, pressure, water vapour and CO2
   (O. Cramer, J. Acoust. Soc. Am. 93(5), 2510-2516, 1993, p. 2514), with the water-vapour
-  mole fraction from relative humidity after Davis (1992) / Giacomo (1982).
+  mole fraction from relative humidity after Davis (1992) / Giacomo (1982);
+- ``measured`` (``MEASURED``): a speed the maker measured in the room at a known temperature,
+  carried to other temperatures as c ∝ √T (``speed_from_measurement``).
 
 Density comes from the ideal-gas law with the molar mass of moist air; viscosity, the ratio
 of specific heats and the Prandtl number from the Benade (1968) / Keefe (1984) linearisation
@@ -21,6 +23,13 @@ from dataclasses import dataclass
 from types import MappingProxyType
 
 SOUND_SPEED_MODELS = ("linear", "ideal-gas", "cramer-1993")
+MEASURED = "measured"
+"""The model name of a speed given as a measurement rather than computed."""
+
+LINEAR_SPEED_0C = 331.3
+"""The linear rule's speed at 0 degrees C, m/s (common practice; gamma = 1.4 exactly)."""
+LINEAR_SLOPE = 0.606
+"""The linear rule's slope, m/s per degree C: 331.3 / (2 * 273.15) rounded (common practice)."""
 
 ZERO_CELSIUS_K = 273.15
 MOLAR_GAS_CONSTANT = 8.314462618
@@ -97,7 +106,7 @@ def speed_linear(t_c: float) -> float:
     Common practice; the first-order Taylor expansion of ``speed_ideal_gas`` about 0 degrees C
     (331.3 / (2 * 273.15) = 0.6064). Roughly valid from -20 to +40 degrees C.
     """
-    return 331.3 + 0.606 * t_c
+    return LINEAR_SPEED_0C + LINEAR_SLOPE * t_c
 
 
 def speed_ideal_gas(t_c: float) -> float:
@@ -109,6 +118,37 @@ def speed_ideal_gas(t_c: float) -> float:
     if t_c <= -ZERO_CELSIUS_K:
         raise ValueError(f"temperature {t_c} degrees C is at or below absolute zero")
     return 331.3 * math.sqrt(1.0 + t_c / ZERO_CELSIUS_K)
+
+
+def speed_from_measurement(speed_m_s: float, measured_at_k: float, temperature_k: float) -> float:
+    """A measured speed of sound carried to another temperature: c = c_m·sqrt(T / T_m)  (m/s).
+
+    The ideal-gas law at fixed composition: c = sqrt(gamma R T / M), so c ∝ sqrt(T) (standard
+    physics texts). Temperatures in K. Used for sensitivities and for prototypes measured at
+    another temperature than the one the speed was measured at.
+    """
+    if measured_at_k <= 0.0 or temperature_k <= 0.0:
+        raise ValueError("temperatures must be above absolute zero")
+    return speed_m_s * math.sqrt(temperature_k / measured_at_k)
+
+
+def formula(model: str, speed_m_s: float = 0.0, temperature_c: float = 0.0) -> str:
+    """The rule behind a speed of sound, in words and numbers, for the output.
+
+    The linear and ideal-gas rules show their coefficients; a measured speed shows the value
+    and the temperature it was measured at (``speed_m_s``, ``temperature_c``).
+    """
+    if model == "linear":
+        return f"c = {LINEAR_SPEED_0C} + {LINEAR_SLOPE}·t m/s (t in °C), dry air"
+    if model == "ideal-gas":
+        return f"c = {LINEAR_SPEED_0C}·sqrt(1 + t/273.15) m/s (t in °C), dry air"
+    if model == "cramer-1993":
+        return ("Cramer (1993) in temperature, pressure, humidity and CO2, water vapour after "
+                "Davis (1992)")
+    if model == MEASURED:
+        return (f"measured {speed_m_s:.2f} m/s at {temperature_c:.1f} °C, "
+                "carried to other temperatures as c proportional to sqrt(T in K)")
+    raise ValueError(f"unknown sound-speed model {model!r}")
 
 
 def saturation_vapour_pressure(t_k: float) -> float:
@@ -249,6 +289,7 @@ def air_state(
     humidity: float = 0.5,
     co2: float = 0.0004,
     model: str = "cramer-1993",
+    speed_m_s: float | None = None,
 ) -> Air:
     """The state of the air: speed by the named model, density, viscosity, gamma, Prandtl.
 
@@ -257,9 +298,13 @@ def air_state(
     ``vapour_mole_fraction`` (for every model: humidity does change the mass of the air);
     viscosity, gamma and Prandtl number from the Benade (1968) / Keefe (1984) linearisation.
     Raises ValueError for an unknown model or a non-physical state. Leaving Cramer's validity
-    range is not an error here: callers check ``cramer_in_range`` and warn.
+    range is not an error here: callers check ``cramer_in_range`` and warn. ``model=MEASURED``
+    takes the speed from ``speed_m_s`` (a measurement, m/s) instead of a model.
     """
-    if model not in SOUND_SPEED_MODELS:
+    if model == MEASURED:
+        if speed_m_s is None or not speed_m_s > 0.0:
+            raise ValueError("a measured speed of sound needs a positive speed_m_s")
+    elif model not in SOUND_SPEED_MODELS:
         names = ", ".join(SOUND_SPEED_MODELS)
         raise ValueError(f"unknown sound-speed model {model!r}; choose one of: {names}")
     if not temperature_k > 0.0:
@@ -276,7 +321,8 @@ def air_state(
         humidity=humidity,
         co2=co2,
         model=model,
-        speed_m_s=sound_speed(model, temperature_k, pressure_pa, humidity, co2),
+        speed_m_s=(speed_m_s if model == MEASURED and speed_m_s is not None
+                   else sound_speed(model, temperature_k, pressure_pa, humidity, co2)),
         density_kg_m3=density(temperature_k, pressure_pa, xw, co2),
         viscosity_pa_s=viscosity(temperature_k),
         gamma=gamma(temperature_k),

@@ -38,6 +38,11 @@ class PipeAcoustics:
     """Radius used by the end-correction model (an equivalent radius for square pipes)."""
     end_model: str
     k: float = 0.3
+    end_ratio: float | None = None
+    """Low-frequency Δ/a of the open end(s) with the stock's wall (``wall_end_ratio``), or
+    None for a thin wall (Levine & Schwinger's 0.6133). Applies to the ``unflanged`` and
+    ``frequency-dependent`` models; ``flanged`` already assumes an infinite wall, and
+    ``rule-of-thumb`` is the maker's own k·d."""
     mouth_m: float = 0.0
     """Mouth end correction (flue pipes), see ``mouth_correction``."""
     scale: float = 1.0
@@ -62,10 +67,36 @@ def mouth_correction(
     return pipe_area_m2 / mouth_area_m2 * (lip_thickness_m + alpha * math.sqrt(mouth_area_m2))
 
 
-def end_corrections(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) -> float:
-    """Total correction (m) added to the physical length: open ends plus mouth, scaled."""
+def wall_end_ratio(inner_radius_m: float, outer_radius_m: float | None) -> float | None:
+    """Δ/a of an open end whose wall is known (outer radius), or None when it is not.
+
+    The low-frequency end correction of an unflanged pipe with a wall of finite thickness
+    (``radiation.thick_wall_end_correction``, Dalmont, Nederveen & Joly 2001) over the radius.
+    """
+    if outer_radius_m is None:
+        return None
+    return float(radiation.thick_wall_end_correction(inner_radius_m, outer_radius_m)
+                 / inner_radius_m)
+
+
+def open_end_correction(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) -> float:
+    """End correction (m) of one open end of the pipe, unscaled.
+
+    The end model's value for a thin wall; where the wall is known (``end_ratio``) the
+    unflanged models take it instead of 0.6133·a, the frequency-dependent one in proportion
+    (Δ(ka) · end_ratio / 0.6133: our choice, as Dalmont et al. 2001 give the wall's effect only
+    at low frequency).
+    """
     ka = 2.0 * math.pi * frequency_hz * pipe.radius_m / speed_m_s
     per_end = float(radiation.end_correction(pipe.end_model, pipe.radius_m, k=pipe.k, ka=ka))
+    if pipe.end_ratio is not None and pipe.end_model in ("unflanged", "frequency-dependent"):
+        per_end *= pipe.end_ratio / radiation.UNFLANGED_RATIO
+    return per_end
+
+
+def end_corrections(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) -> float:
+    """Total correction (m) added to the physical length: open ends plus mouth, scaled."""
+    per_end = open_end_correction(pipe, frequency_hz, speed_m_s) if pipe.open_ends else 0.0
     return pipe.scale * (pipe.open_ends * per_end + pipe.mouth_m)
 
 

@@ -46,6 +46,8 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
              f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
              f"c = {air.speed_m_s:.2f} m/s ({air.sound_speed_model}); "
              + _calibration(group)]
+    if air.sound_speed_formula:
+        lines.append(f"  speed of sound: {air.sound_speed_formula}")
     header = ["note", "target Hz", "predicted Hz", "cents", "speaking mm", "cut mm",
               "section mm", "mouth mm", "cut-up mm", "toe mm", "stock"]
     rows = [header]

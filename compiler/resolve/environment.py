@@ -20,9 +20,13 @@ class GroupAir:
     warnings: tuple[Note, ...]
 
     def at_temperature(self, temperature_k: float) -> airmod.Air:
-        """The same air at another temperature (for sensitivities and calibration)."""
+        """The same air at another temperature (for sensitivities and calibration); a measured
+        speed is carried there as c ∝ √T."""
         s = self.state
-        return airmod.air_state(temperature_k, s.pressure_pa, s.humidity, s.co2, s.model)
+        speed = None
+        if s.model == airmod.MEASURED:
+            speed = airmod.speed_from_measurement(s.speed_m_s, s.temperature_k, temperature_k)
+        return airmod.air_state(temperature_k, s.pressure_pa, s.humidity, s.co2, s.model, speed)
 
 
 def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
@@ -30,6 +34,7 @@ def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
     preset = "breath" if family in BREATH_FAMILIES else "room"
     base = dict(airmod.BREATH_AIR if preset == "breath" else airmod.ROOM_AIR)
     values: dict[str, float | str] = {**base, "model": "cramer-1993"}
+    speed: float | None = None
     given: set[str] = set()
     for env in layers:
         for field, key in (("temperature_k", "temperature_k"), ("humidity", "humidity"),
@@ -39,13 +44,17 @@ def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
             if value is not None:
                 values[key] = value
                 given.add(key)
+        if env.sound_speed is not None:
+            speed = env.sound_speed_m_s
     state = airmod.air_state(float(values["temperature_k"]), float(values["pressure_pa"]),
                              float(values["humidity"]), float(values["co2"]),
-                             str(values["model"]))
+                             str(values["model"]), speed)
     names = {"temperature_k": "temperature", "humidity": "humidity", "pressure_pa": "pressure",
              "co2": "co2", "model": "sound_speed"}
     defaults = tuple(sorted(names[k] for k in names if k not in given))
     warnings: list[Note] = []
+    if state.model == airmod.MEASURED:
+        warnings += _check_measured(state, layers)
     if state.model == "cramer-1993":
         xw = airmod.vapour_mole_fraction(state.humidity, state.temperature_c, state.pressure_pa)
         if not airmod.cramer_in_range(state.temperature_c, state.pressure_pa, xw, state.co2):
@@ -64,5 +73,28 @@ def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
         speed_m_s=state.speed_m_s,
         density_kg_m3=state.density_kg_m3,
         defaults=defaults,
+        sound_speed_formula=airmod.formula(state.model, state.speed_m_s, state.temperature_c),
     )
     return GroupAir(state, report, tuple(warnings))
+
+
+MEASURED_TOLERANCE = 0.01
+"""A measured speed more than 1 % (about 17 cents) from Cramer's (1993) for the same air is
+worth a second look: Cramer's fit is good to about 300 ppm, so the measurement, its unit or the
+temperature is the likelier culprit. Our threshold."""
+
+
+def _check_measured(state: airmod.Air, layers: tuple[spec_model.Environment, ...]
+                    ) -> list[Note]:
+    model = airmod.sound_speed("cramer-1993", state.temperature_k, state.pressure_pa,
+                               state.humidity, state.co2)
+    off = state.speed_m_s / model - 1.0
+    if abs(off) <= MEASURED_TOLERANCE:
+        return []
+    where = next((env.where["sound_speed"] for env in reversed(layers)
+                  if "sound_speed" in env.where), None)
+    if where is None:
+        return []
+    return [Note(where, f"the measured speed of sound {state.speed_m_s:.1f} m/s is "
+                 f"{100 * off:+.1f} % from Cramer (1993) for this air ({model:.1f} m/s at "
+                 f"{state.temperature_c:.1f} C): check the measurement and the temperature")]

@@ -165,12 +165,15 @@ def _check_rank(rank: spec_model.Rank) -> None:
 
 
 def _acoustics(rank: spec_model.Rank, section: Section, mouth_width: float, cutup: float,
-               lip: float, scale: float) -> simple.PipeAcoustics:
+               lip: float, wall: float, scale: float) -> simple.PipeAcoustics:
     stopped = rank.family == "stopped-flue"
     mouth_area = mouth_width * cutup
+    # A rolled body's open top has the sheet as its wall.
+    end_ratio = simple.wall_end_ratio(section.radius_m, section.radius_m + wall) if (
+        section.round) else None
     return simple.PipeAcoustics(
         stopped=stopped, open_ends=0 if stopped else 1, radius_m=section.radius_m,
-        end_model=rank.end_correction.model, k=rank.end_correction.k,
+        end_model=rank.end_correction.model, k=rank.end_correction.k, end_ratio=end_ratio,
         mouth_m=simple.mouth_correction(section.area_m2, mouth_area, lip), scale=scale)
 
 
@@ -194,7 +197,7 @@ def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model
     _, _, width, cutup, lip = _mouth_numbers(rank, m.note, section, stock.thickness_m, step)
     override = _override(rank, m.note)
     target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
-    base = _acoustics(rank, section, width, cutup, lip, 1.0)
+    base = _acoustics(rank, section, width, cutup, lip, stock.thickness_m, 1.0)
     return plain.observation(base, m, target, rank.harmonic, air, step)
 
 
@@ -238,7 +241,7 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
                              f"rank `{rank.id}`: cut-up {cf:.2f} × mouth width is outside the "
                              f"usual {USUAL_CUTUP[0]}-{USUAL_CUTUP[1]}"))
     target = target_hz(spec.tuning, note, override.frequency_hz if override else None)
-    acoustics = _acoustics(rank, section, width, cutup, lip, scale)
+    acoustics = _acoustics(rank, section, width, cutup, lip, t, scale)
     solved = plain.solve_plain(
         acoustics, target, rank.harmonic, air, spec.fabrication.precision_m, label, where,
         "use a narrower scale or a smaller mouth for the highest pipes, or leave them out")

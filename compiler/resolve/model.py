@@ -33,6 +33,9 @@ class AirReport:
     speed_m_s: float
     density_kg_m3: float
     defaults: tuple[str, ...]
+    sound_speed_formula: str = ""
+    """The rule behind ``speed_m_s`` with its coefficients (``c = 331.3 + 0.606·t m/s ...``),
+    or the measured value and its temperature."""
 
 
 @dataclass(frozen=True)

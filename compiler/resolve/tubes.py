@@ -28,9 +28,12 @@ def _acoustics(tubes: spec_model.TubeSet, stock: spec_model.Stock,
                scale: float) -> simple.PipeAcoustics:
     stopped = tubes.family == "stopped-tube"
     assert stock.inside_diameter_m is not None
+    radius = stock.inside_diameter_m / 2
+    outer = None if stock.outside_diameter_m is None else stock.outside_diameter_m / 2
     return simple.PipeAcoustics(
-        stopped=stopped, open_ends=1 if stopped else 2, radius_m=stock.inside_diameter_m / 2,
-        end_model=tubes.end_correction.model, k=tubes.end_correction.k, scale=scale)
+        stopped=stopped, open_ends=1 if stopped else 2, radius_m=radius,
+        end_model=tubes.end_correction.model, k=tubes.end_correction.k,
+        end_ratio=simple.wall_end_ratio(radius, outer), scale=scale)
 
 
 def _plug(tubes: spec_model.TubeSet, stock: spec_model.Stock) -> float:

@@ -27,6 +27,9 @@ class Environment:
     pressure_pa: float | None = None
     co2: float | None = None
     sound_speed: str | None = None
+    """A model name (``cramer-1993``, ``ideal-gas``, ``linear``) or ``measured``."""
+    sound_speed_m_s: float | None = None
+    """The measured speed when ``sound_speed`` is ``measured``."""
     where: Mapping[str, Position] = field(default_factory=_frozen)
 
 

@@ -15,6 +15,12 @@ from compiler.spec.loader import Document, Path
 
 T = TypeVar("T")
 
+SOUND_SPEED_MODELS = ("cramer-1993", "ideal-gas", "linear")
+"""The schema's names of speed-of-sound models (anything else is a measured speed)."""
+SPEED_RANGE = (290.0, 410.0)
+"""Speeds of sound a measurement in air can give, m/s: 290 m/s is dry air at about -63 C and
+410 m/s at about +147 C (ideal-gas law c = 331.3·sqrt(T/273.15), standard physics)."""
+
 PITCH_CLASS_KEYS = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "G#", "A", "Bb", "B")
 
 
@@ -121,12 +127,26 @@ def normalize(document: Document) -> model.Spec:
 
 
 def _environment(r: _Reader, base: Path) -> model.Environment:
+    raw = r.get((*base, "sound_speed"))
+    measured = None
+    if raw is not None and raw not in SOUND_SPEED_MODELS:
+        # Not a model's name: a measured speed (the schema lets only numbers through here).
+        measured = r.convert((*base, "sound_speed"), units.parse_speed, None)
+        if measured is not None and not SPEED_RANGE[0] <= measured <= SPEED_RANGE[1]:
+            r.fail((*base, "sound_speed"), f"{_name((*base, 'sound_speed'))}: {measured:g} m/s "
+                   "is not a speed of sound in air",
+                   f"air carries sound at {SPEED_RANGE[0]:g} to {SPEED_RANGE[1]:g} m/s between "
+                   "about -60 and +145 C; check the unit, or name a model such as "
+                   "`cramer-1993`")
+            measured = None
     return model.Environment(
         temperature_k=r.temperature((*base, "temperature")),
         humidity=r.convert((*base, "humidity"), units.parse_humidity, None),
         pressure_pa=r.convert((*base, "pressure"), units.parse_pressure, None),
         co2=r.convert((*base, "co2"), units.parse_co2, None),
-        sound_speed=r.get((*base, "sound_speed")),
+        sound_speed="measured" if measured is not None else (
+            raw if raw in SOUND_SPEED_MODELS else None),
+        sound_speed_m_s=measured,
         where=model._frozen(r.where(base, "temperature", "humidity", "pressure", "co2",
                                     "sound_speed")),
     )

@@ -154,8 +154,15 @@ _CENTS = _Kind(
     ("cents",),
     "write a pitch offset in cents such as `+3.5 cents` or `-2 c`",
 )
+_SPEED = _Kind(
+    "speed",
+    "speed",
+    _table({"m/s mps": 1, "ft/s fps": 12 * _INCH}),
+    ("m/s", "ft/s"),
+    "write a speed of sound with its unit such as `344.1 m/s` or `1129 ft/s`",
+)
 # One kind per dimension, to tell "wrong kind" apart from "unknown".
-_DIMENSIONS = (_LENGTH, _FREQUENCY, _TEMPERATURE, _PRESSURE, _CO2, _ANGLE, _CENTS)
+_DIMENSIONS = (_LENGTH, _FREQUENCY, _TEMPERATURE, _PRESSURE, _CO2, _ANGLE, _CENTS, _SPEED)
 
 LENGTH_UNITS: Mapping[str, float] = MappingProxyType(
     {unit: float(scale) for unit, (scale, _) in _LENGTH.units.items()}
@@ -367,6 +374,14 @@ def parse_humidity(value: object) -> float:
 def parse_co2(value: object) -> float:
     """CO2 mole fraction, 0 <= x < 1, written in ppm (1e-6) or % (1e-2)."""
     return _checked(value, _CO2, None, lambda x: 0 <= x < 1, "must be at least 0 and below 100 %")
+
+
+def parse_speed(value: object) -> float:
+    """A speed in m/s, greater than zero; the unit (m/s, ft/s) is required.
+
+    1 ft/s = 0.3048 m/s exactly (international yard and pound agreement, 1959).
+    """
+    return _checked(value, _SPEED, None, _positive, _POSITIVE)
 
 
 def parse_angle(value: object) -> float:

@@ -17,6 +17,9 @@ import pytest
 
 from compiler.acoustics.air import (
     BREATH_AIR,
+    LINEAR_SLOPE,
+    LINEAR_SPEED_0C,
+    MEASURED,
     ROOM_AIR,
     SOUND_SPEED_MODELS,
     Air,
@@ -24,10 +27,12 @@ from compiler.acoustics.air import (
     cramer_in_range,
     density,
     enhancement_factor,
+    formula,
     gamma,
     prandtl,
     saturation_vapour_pressure,
     speed_cramer,
+    speed_from_measurement,
     speed_ideal_gas,
     speed_linear,
     vapour_mole_fraction,
@@ -216,3 +221,26 @@ def test_air_is_frozen() -> None:
     with pytest.raises(dataclasses.FrozenInstanceError):
         air.speed_m_s = 1.0  # type: ignore[misc]
     assert air.temperature_c == pytest.approx(20.0)
+
+
+def test_measured_speed_follows_the_ideal_gas_law_with_temperature() -> None:
+    # The ideal-gas law c ∝ sqrt(T) (standard physics texts; ISO 9613-1 Annex A writes it as
+    # c = 343.2·sqrt(T/293.15)): check values 343.215 m/s at 20 °C and 346.129 m/s at 25 °C,
+    # computed from c = 331.3·sqrt(T/273.15).
+    assert speed_from_measurement(343.215, 293.15, 298.15) == pytest.approx(346.129, abs=1e-3)
+    air = air_state(291.15, P0, 0.55, 0.0004, MEASURED, 344.1)
+    assert air.model == MEASURED and air.speed_m_s == 344.1
+    # Density and the loss properties still come from the state of the air.
+    assert air.density_kg_m3 == air_state(291.15, P0, 0.55, 0.0004).density_kg_m3
+    with pytest.raises(ValueError, match="measured"):
+        air_state(291.15, model=MEASURED)
+
+
+def test_formulas_show_their_coefficients() -> None:
+    # The linear rule c = 331.3 + 0.606 t (common practice) is shown with its coefficients,
+    # so a maker can check the number by hand.
+    assert formula("linear") == "c = 331.3 + 0.606·t m/s (t in °C), dry air"
+    assert "331.3" in formula("ideal-gas") and "273.15" in formula("ideal-gas")
+    assert "Cramer (1993)" in formula("cramer-1993")
+    assert formula(MEASURED, 344.1, 18.0).startswith("measured 344.10 m/s at 18.0 °C")
+    assert speed_linear(20.0) == LINEAR_SPEED_0C + 20 * LINEAR_SLOPE

@@ -10,10 +10,14 @@ from pathlib import Path
 import jsonschema
 import pytest
 
+from compiler.acoustics import air
+from compiler.acoustics.radiation import thick_wall_end_correction
 from compiler.emit.resolved_json import to_dict
+from compiler.emit.table import render
 from compiler.errors import PhysicsError
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
+from compiler.spec.normalize import SOUND_SPEED_MODELS as SPEC_SPEED_MODELS
 
 SCHEMAS = Path(__file__).resolve().parents[2] / "schemas"
 
@@ -25,6 +29,7 @@ def _spec(body: str, environment: str = "{temperature: 20 C, sound_speed: linear
             "stock:\n"
             "  tube-20: {material: aluminium, tube: {inside_diameter: 20 mm, wall: 1 mm}}\n"
             "  tube-30: {material: aluminium, tube: {inside_diameter: 30 mm, wall: 1 mm}}\n"
+            "  foil-20: {material: aluminium, tube: {inside_diameter: 20 mm, wall: 0.001 mm}}\n"
             "  tin: {material: spotted-metal, sheet: {thickness: 0.8 mm}}\n"
             "  pine: {material: pine, board: {thickness: 15 mm}}\n" + body)
 
@@ -33,8 +38,9 @@ def _resolve(text: str):  # type: ignore[no-untyped-def]
     return resolve(load_spec(text, "bench.yaml"))
 
 
-def _tube_set(family: str, model: str, notes: str = "[A4]", extra: str = "") -> str:
-    return _spec(f"tube_sets:\n  - id: t\n    family: {family}\n    stock: tube-20\n"
+def _tube_set(family: str, model: str, notes: str = "[A4]", extra: str = "",
+              stock: str = "foil-20") -> str:
+    return _spec(f"tube_sets:\n  - id: t\n    family: {family}\n    stock: {stock}\n"
                  f"    notes: {notes}\n    end_correction: {model}\n{extra}")
 
 
@@ -55,11 +61,31 @@ def test_rule_of_thumb_and_linear_speed_match_hand_calculation() -> None:
 
 @pytest.mark.parametrize(("model", "ratio"), [("unflanged", 0.6133), ("flanged", 0.8216)])
 def test_levine_schwinger_and_flanged_end_corrections(model: str, ratio: float) -> None:
-    # Levine & Schwinger 1948: 0.6133 a unflanged; Norris & Sheng 1989 via Dalmont et al.
-    # 2001: 0.8216 a flanged. An open tube has two open ends.
+    # Levine & Schwinger 1948: 0.6133 a unflanged (a wall of zero thickness: the foil tube's
+    # 0.001 mm wall moves it by 1e-4 relative); Norris & Sheng 1989 via Dalmont et al. 2001:
+    # 0.8216 a flanged. An open tube has two open ends.
     pipe = _resolve(_tube_set("open-tube", f"{{model: {model}}}")).pipes[0]
-    assert pipe.end_correction_m == pytest.approx(2 * ratio * 0.010, rel=1e-9)
-    assert pipe.acoustic_length_m == pytest.approx(pipe.speaking_length_m + 2 * ratio * 0.010)
+    assert pipe.end_correction_m == pytest.approx(2 * ratio * 0.010, rel=2e-4)
+    assert pipe.acoustic_length_m == pytest.approx(pipe.speaking_length_m + 2 * ratio * 0.010,
+                                                   rel=1e-5)
+
+
+def test_the_tube_wall_lengthens_the_end_correction() -> None:
+    # A wall of finite thickness puts the end correction between the thin-wall 0.6133a
+    # (Levine & Schwinger 1948) and the infinite flange's 0.8216a (Norris & Sheng 1989), rising
+    # with the outer radius (Dalmont, Nederveen & Joly 2001, J. Sound Vib. 244(3), 505–534).
+    per_end = {}
+    for name, wall in (("foil-20", 0.000001), ("tube-20", 0.001), ("thick-20", 0.005)):
+        text = _tube_set("open-tube", "{model: unflanged}", stock=name).replace(
+            "stock:\n", "stock:\n  thick-20: {material: brass, tube: {inside_diameter: "
+            "20 mm, wall: 5 mm}}\n")
+        per_end[wall] = _resolve(text).pipes[0].end_correction_m / 2 / 0.010
+    ratios = [per_end[w] for w in sorted(per_end)]
+    assert ratios[0] == pytest.approx(0.6133, abs=1e-4)
+    assert 0.6133 < ratios[1] < ratios[2] < 0.8216
+    # b/a = 1.1 (1 mm wall on a 10 mm radius): 0.8216 - 0.2083/1.1 + 0.057/1.1·(1 - 1.1^-5)
+    # = 0.6518 (computed here from the interpolation as recalled, from memory).
+    assert ratios[1] == pytest.approx(0.6518, abs=2e-4)
 
 
 def test_stopped_tube_quarter_wave() -> None:
@@ -68,8 +94,9 @@ def test_stopped_tube_quarter_wave() -> None:
     # the open-end correction 0.6133a of Levine & Schwinger 1948, Phys. Rev. 73, 383.
     pipe = _resolve(_tube_set("stopped-tube", "{model: unflanged}")).pipes[0]
     c = 343.42
+    # (the foil tube's 0.001 mm wall adds 1e-4 of the end correction: 3e-6 of the pitch)
     assert pipe.predicted_hz == pytest.approx(c / (4 * (pipe.speaking_length_m + 0.6133 * 0.01)),
-                                              rel=1e-12)
+                                              rel=1e-5)
     assert pipe.target_hz == pytest.approx(440.0)
     # the plug sits below the speaking length: cut = speaking length + plug; the default plug
     # is half the bore, 10 mm minimum (common practice, from memory), so 10 mm here
@@ -130,7 +157,8 @@ def test_sensitivities() -> None:
 
 def test_calibration_recovers_a_known_factor() -> None:
     # Synthetic prototypes: open tubes built 300 and 200 mm long, measured at 20 °C where the
-    # true end correction is 1.25 × Levine–Schwinger: f = c/(2(L + 1.25·2·0.6133a)).
+    # true end correction is 1.25 × Levine–Schwinger: f = c/(2(L + 1.25·2·0.6133a)). (The
+    # foil tube's 0.001 mm wall makes the model's own end 1e-4 longer than Levine–Schwinger.)
     c = 343.42
     measured = [(note, length, c / (2 * (length + 1.25 * 2 * 0.6133 * 0.010)))
                 for note, length in (("A4", 0.300), ("A5", 0.200))]
@@ -140,7 +168,7 @@ def test_calibration_recovers_a_known_factor() -> None:
                            extra="    measured:\n" + rows))
     fit = r.groups[0].calibration
     assert fit.calibrated
-    assert fit.value == pytest.approx(1.25, abs=1e-6)
+    assert fit.value == pytest.approx(1.25, rel=2e-4)
     assert fit.rms_cents == pytest.approx(0.0, abs=1e-4)
     assert r.pipes[0].end_correction_m == pytest.approx(1.25 * 2 * 0.6133 * 0.010, rel=1e-6)
 
@@ -199,8 +227,11 @@ def test_mouth_and_its_correction() -> None:
     assert pipe.mouth.cutup_m == pytest.approx(cutup, abs=1e-12)
     expected = (math.pi * d * d / 4) / area * (0.0008 + 0.9 * math.sqrt(area))
     assert pipe.mouth.correction_m == pytest.approx(expected, rel=1e-12)
-    # open flue: top correction (Levine & Schwinger 1948, 0.6133a, the default) plus the mouth
-    assert pipe.end_correction_m == pytest.approx(0.6133 * d / 2 + expected, rel=1e-9)
+    # open flue: top correction (unflanged, the default, with the 0.8 mm sheet as its wall:
+    # Dalmont, Nederveen & Joly 2001, checked in tests/acoustics/test_radiation.py) plus the mouth
+    top = float(thick_wall_end_correction(d / 2, d / 2 + 0.0008))
+    assert 0.6133 * d / 2 < top < 0.6133 * d / 2 * 1.02
+    assert pipe.end_correction_m == pytest.approx(top + expected, rel=1e-9)
 
 
 def test_tuning_allowance_adds_to_the_cut_length() -> None:
@@ -288,3 +319,38 @@ def test_reference_pitch_far_from_any_standard_is_flagged(a4: str, warned: bool)
         text = text.replace("tube-20, notes: [A4]", "tube-30, notes: [A6]")
     notes = [n.message for n in _resolve(text).warnings]
     assert any("far from any pitch standard" in m for m in notes) == warned
+
+
+def test_a_measured_speed_of_sound_is_used_as_given() -> None:
+    # A speed measured in the room at 18 °C; at other temperatures the ideal-gas law c ∝ sqrt(T)
+    # (standard physics texts) carries it, so the pitch of a pipe whose corrections do not
+    # depend on frequency moves by 1200/ln2 · 1/(2T) cents per kelvin (the derivative of
+    # 1200·log2 sqrt(T)).
+    env = "{temperature: 18 C, sound_speed: 344.1 m/s}"
+    r = resolve(load_spec(_spec("tube_sets:\n  - {id: t, family: open-tube, stock: foil-20, "
+                                "notes: [A4]}\n", environment=env), "b.yaml"))
+    air = r.groups[0].air
+    assert air.speed_m_s == 344.1 and air.sound_speed_model == "measured"
+    assert air.sound_speed_formula.startswith("measured 344.10 m/s at 18.0 °C")
+    assert r.pipes[0].cents_per_c == pytest.approx(1200 / math.log(2) / (2 * 291.15), rel=1e-4)
+    assert not r.warnings
+    # 1.5 % away from Cramer (1993) for this air (342.8 m/s): worth a second look.
+    far = resolve(load_spec(_spec("tube_sets:\n  - {id: t, family: open-tube, stock: foil-20, "
+                                  "notes: [A4]}\n", environment=env.replace("344.1", "348")),
+                            "b.yaml"))
+    assert [(n.position.line, n.position.col) for n in far.warnings] == [(3, 47)]
+    assert "from Cramer (1993)" in far.warnings[0].message
+
+
+def test_the_linear_rule_shows_its_coefficients() -> None:
+    # The linear rule c = 331.3 + 0.606·t (common practice) is reported with its numbers.
+    r = _resolve(_tube_set("open-tube", "{model: unflanged}"))
+    assert r.groups[0].air.sound_speed_formula == "c = 331.3 + 0.606·t m/s (t in °C), dry air"
+    assert "speed of sound: c = 331.3 + 0.606·t m/s" in render(r)
+
+
+def test_speed_models_agree_between_the_schema_the_spec_reader_and_the_physics() -> None:
+    schema = json.loads((SCHEMAS / "boresmith-spec.schema.json").read_text())
+    branches = schema["$defs"]["environment"]["properties"]["sound_speed"]["oneOf"]
+    assert set(branches[0]["enum"]) == set(SPEC_SPEED_MODELS) == set(
+        air.SOUND_SPEED_MODELS)

@@ -78,6 +78,10 @@ def _air_blocks(resolved: Resolved) -> list[Block]:
                   f"{fixed(air.co2_ppm, 1)} ppm", speed(air.speed_m_s), air.sound_speed_model)
                  for air, ids in ((a, i) for a, i in alike.items() if isinstance(a, AirReport)))
     out: list[Block] = [Table(cols, rows, size=8)]
+    rules = sorted({g.air.sound_speed_formula for g in resolved.groups
+                    if g.air.sound_speed_formula})
+    if rules:
+        out.append(Paragraph("Speed of sound: " + "; ".join(rules) + ".", 8, colour=GREY))
     defaults = sorted({name for g in resolved.groups for name in g.air.defaults})
     if defaults:
         out.append(Paragraph("Not given in the spec, so taken from the defaults for room air "
