@@ -1,4 +1,4 @@
-"""Command line: ``boresmith check|resolve|build|diff|new|schema``.
+"""Command line: ``boresmith check|resolve|build|diff|new|schema|measure``.
 
 All file access, terminal output and exit codes live here; the stages are pure.
 Exit codes: 0 success, 1 the spec is wrong (or, for ``diff``, something changed),
@@ -138,6 +138,73 @@ def cmd_new(args: argparse.Namespace) -> int:
     return code
 
 
+def _per_recording(values: list[str] | None, count: int, option: str) -> list[str | None]:
+    if not values:
+        return [None] * count
+    if len(values) != count:
+        raise UsageError(f"{option} is given {len(values)} times for {count} recordings: give "
+                         "it once per recording, in the same order")
+    return list(values)
+
+
+def cmd_measure(args: argparse.Namespace) -> int:
+    from compiler.recordings import RecordingError, analyse, as_dicts, entries
+    from compiler.spec.units import (
+        UnitParseError,
+        parse_frequency,
+        parse_positive_length,
+        parse_temperature,
+    )
+
+    try:
+        kelvin = parse_temperature(args.temperature)
+        a4 = parse_frequency(args.a4)
+        for length in args.length or []:
+            parse_positive_length(length, None)
+    except UnitParseError as exc:
+        raise UsageError(f"{exc.message} ({exc.hint})" if exc.hint else exc.message) from None
+    notes = _per_recording(args.note, len(args.recordings), "--note")
+    lengths = _per_recording(args.length, len(args.recordings), "--length")
+    for name in args.recordings:
+        if not Path(name).is_file():
+            raise UsageError(f"{name}: " + ("is a folder, not a recording" if Path(name).is_dir()
+                                            else "no such file"))
+    takes, failed = [], 0
+    for name, note, length in zip(args.recordings, notes, lengths, strict=True):
+        try:
+            takes.append(analyse(Path(name), name, note, length, a4))
+        except RecordingError as exc:
+            failed += 1
+            print(f"{name}: error: {exc.message}" + (f"\n    hint: {exc.hint}" if exc.hint
+                                                      else ""), file=sys.stderr)
+    if failed:
+        print(f"boresmith: {failed} of {len(args.recordings)} recordings could not be "
+              "used; nothing was written", file=sys.stderr)
+        return EXIT_SPEC
+    temperature = " ".join(args.temperature.split())
+    if args.json:
+        text = json.dumps(as_dicts(takes, kelvin - 273.15), indent=2, sort_keys=True,
+                          ensure_ascii=False) + "\n"
+    else:
+        text = entries(takes, temperature)
+    if args.out is None:
+        if args.json:
+            _write_json(text)
+        else:
+            sys.stdout.write(text)
+        return EXIT_OK
+    try:
+        with open(args.out, "x", encoding="utf-8", newline="\n") as out:
+            out.write(text)
+    except FileExistsError:
+        raise UsageError(f"{args.out}: already exists; boresmith measure does not overwrite "
+                         "files") from None
+    except OSError as exc:
+        raise UsageError(f"{args.out}: cannot write ({exc.strerror})") from None
+    print(f"boresmith: wrote {args.out} ({len(takes)} measured entries)", file=sys.stderr)
+    return EXIT_OK
+
+
 def cmd_schema(args: argparse.Namespace) -> int:
     from compiler.starters import schema_text, write_schema
 
@@ -205,6 +272,29 @@ def build_parser() -> argparse.ArgumentParser:
     new.add_argument("file", nargs="?", metavar="FILE",
                      help="write the starter here (never over an existing file)")
     new.set_defaults(run=cmd_new)
+
+    measure = sub.add_parser(
+        "measure", help="find the pitch of recorded pipes (WAV or FLAC) and print their "
+        "`measured:` entries for the spec, ready to paste")
+    measure.add_argument("recordings", nargs="+", metavar="RECORDING",
+                         help="a WAV (PCM or float, mono or stereo) or FLAC file per pipe or "
+                         "fingering; a note in the file name (G2.wav, rank-F#3.wav) names it")
+    measure.add_argument("-t", "--temperature", required=True, metavar="TEMP",
+                         help="the air temperature when recorded, e.g. '19 C' or '66 F'")
+    measure.add_argument("--note", action="append", metavar="NOTE",
+                         help="the note of the recording (once per recording, in order); "
+                         "else the file name's, else the nearest note (flagged)")
+    measure.add_argument("--length", action="append", metavar="LENGTH",
+                         help="the speaking length as built, with its unit (once per "
+                         "recording, in order), if it differs from what boresmith gave")
+    measure.add_argument("--a4", default="440 Hz", metavar="FREQ",
+                         help="reference pitch for guessing a note from the pitch "
+                         "(default 440 Hz)")
+    measure.add_argument("-o", "--out", metavar="FILE",
+                         help="write the entries to FILE (never over an existing file)")
+    measure.add_argument("--json", action="store_true",
+                         help="print the pitches, uncertainties and findings as JSON")
+    measure.set_defaults(run=cmd_measure)
 
     from compiler.starters import SCHEMAS
 

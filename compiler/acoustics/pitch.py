@@ -1,0 +1,337 @@
+"""The sounding pitch of a recorded pipe: the fundamental of its steady tone, with an
+uncertainty in cents.
+
+Pure functions on samples (numpy arrays scaled to full scale ±1) and a sample rate; the
+file formats are read in ``compiler.recordings``. The steps:
+
+1. *Checks*: a recording too short to hold a steady tone, silent (peak below −60 dBFS),
+   or clipped (flat tops: runs of samples stuck at the recording's extreme, near full
+   scale) is refused with a ``RecordingProblem`` saying what to do instead.
+2. *The steady part*: the longest stretch whose level (RMS in 30 ms frames) stays within
+   3 dB of the loud level (the 95th percentile frame); a slow attack and the release are
+   left out, and 50 ms more at each end.
+3. *A first pitch* in frames of that stretch, by YIN (A. de Cheveigné and H. Kawahara
+   2002, "YIN, a fundamental frequency estimator for speech and music", J. Acoust. Soc.
+   Am. 111(4), 1917–1930): the cumulative-mean-normalised difference function, its first
+   dip below an absolute threshold (or, in noise, the first dip within 0.1 of the deepest).
+   The period of the whole waveform, not the strongest partial: a weak or missing
+   fundamental (a stopped pipe's strong 3rd partial, a loud octave) gives the right pitch.
+   Frames that sounded another pitch (the pipe overblowing to its octave for a moment)
+   are counted and left out: the pitch held longest wins.
+4. *The fine pitch*: the tone counts from the first frame within 2 cents of that pitch
+   (a pipe often speaks sharp or flat and settles). In the Hann-windowed, zero-padded
+   spectrum of the settled tone every harmonic h·f0 above the local noise is located by
+   parabolic interpolation of the log magnitude (J. O. Smith, "Spectral Audio Signal
+   Processing", 2011, "Quadratic interpolation of spectral peaks"), and f0 is the weighted
+   least-squares fit of f_h = h·f0 (weights: the partial's power).
+5. *Its uncertainty*: the same fit in blocks of about 0.25 s gives the scatter
+   (``spread_cents``, the pipe's wander); the uncertainty is the standard error of the
+   blocks' mean (one standard deviation), or the distance of that mean from the whole
+   tone's pitch where larger (a tone that drifts), and at least 0.01 cent.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+Samples = NDArray[np.float64]
+
+LOWEST_HZ = 25.0
+"""Lowest fundamental looked for (a 16 ft C1 is 32.7 Hz)."""
+HIGHEST_HZ = 5000.0
+"""Highest fundamental looked for (C8 is 4186 Hz)."""
+MIN_STEADY_S = 0.3
+"""Shortest steady tone accepted: about 10 periods of the lowest pipes, and enough blocks
+to tell the pitch's scatter."""
+SILENT_PEAK = 10 ** (-60 / 20)
+"""A recording whose loudest sample is below −60 dBFS holds no usable tone."""
+CLIP_LEVEL = 0.99
+CLIP_RUN = 4
+CLIP_RUNS = 3
+"""Clipped: at least CLIP_RUNS flat tops of CLIP_RUN or more samples exactly at the
+recording's extreme, where that extreme is within 1 % of full scale. (A sine peaking at
+full scale repeats its top code on at most 3 samples at 44.1 kHz down to 30 Hz in 16 bits.)"""
+STEADY_DB = 3.0
+FRAME_S, HOP_S, EDGE_S = 0.03, 0.01, 0.05
+BLOCK_S = 0.25
+MAX_BLOCKS = 16
+MAX_ANALYSED_S = 8.0
+"""Of a longer steady tone, the middle 8 s are analysed (enough for 0.01 cent)."""
+YIN_THRESHOLD = 0.15
+YIN_APERIODIC = 0.5
+"""A frame whose deepest normalised dip stays above this holds no clear period."""
+SAME_PITCH_CENTS = 50.0
+SETTLED_CENTS = 2.0
+HARMONICS = 24
+PEAK_OVER_NOISE = 10.0
+"""A partial is used when its peak stands 20 dB above the median of the spectrum near it."""
+UNCERTAINTY_FLOOR_CENTS = 0.01
+
+
+class RecordingProblem(Exception):
+    """A recording that holds no usable tone: ``message`` says why, ``hint`` what to do."""
+
+    def __init__(self, message: str, hint: str) -> None:
+        super().__init__(message)
+        self.message = message
+        self.hint = hint
+
+
+@dataclass(frozen=True)
+class PitchEstimate:
+    frequency_hz: float
+    uncertainty_cents: float
+    """Standard error of the mean over the blocks (one standard deviation)."""
+    spread_cents: float
+    """Standard deviation of the blocks' pitches: how much the tone wandered."""
+    steady_from_s: float
+    steady_to_s: float
+    blocks: int
+    partials: int
+    """Partials found above the noise in the whole steady part."""
+    other_pitch_share: float
+    """Share of the steady part that sounded another pitch (left out), 0..1."""
+    other_pitch_ratio: float
+    """That other pitch over the one reported (2.0: the octave), or 0 when none."""
+
+
+def cents(ratio: float) -> float:
+    """1200·log2(ratio): the cent (A. J. Ellis 1885)."""
+    return 1200.0 * math.log2(ratio)
+
+
+def check_samples(samples: Samples, rate: float) -> None:
+    """Refuse a recording that is too short, silent or clipped."""
+    duration = len(samples) / rate
+    if duration < MIN_STEADY_S:
+        raise RecordingProblem(
+            f"too short: {duration:.2f} s of sound (at least {MIN_STEADY_S:g} s of steady "
+            "tone is needed)", "record each pipe for 2 s or more after it has spoken")
+    peak = float(np.max(np.abs(samples))) if len(samples) else 0.0
+    if peak < SILENT_PEAK:
+        level = "no sound at all" if peak == 0 else f"peak {20 * math.log10(peak):.0f} dBFS"
+        raise RecordingProblem(f"silent: {level}",
+                               "check the microphone and the input level, then record again")
+    flat = _flat_tops(samples)
+    if flat >= CLIP_RUNS:
+        raise RecordingProblem(
+            f"clipped: {flat} flat tops at full scale (the tone's peaks were cut off)",
+            "record again with less input gain, or the microphone further from the pipe; "
+            "keep the peaks below about −6 dBFS")
+
+
+def _flat_tops(samples: Samples) -> int:
+    count = 0
+    for extreme in (float(np.max(samples)), float(np.min(samples))):
+        if abs(extreme) < CLIP_LEVEL:
+            continue
+        stuck = np.concatenate(([0], (samples == extreme).astype(np.int8), [0]))
+        edges = np.flatnonzero(np.diff(stuck))
+        runs = edges[1::2] - edges[::2]
+        count += int(np.sum(runs >= CLIP_RUN))
+    return count
+
+
+def steady_part(samples: Samples, rate: float) -> tuple[int, int]:
+    """First and last+1 sample of the steady tone (see the module's step 2)."""
+    frame, hop = max(int(FRAME_S * rate), 16), max(int(HOP_S * rate), 1)
+    count = 1 + max(len(samples) - frame, 0) // hop
+    power = np.cumsum(np.concatenate(([0.0], samples * samples)))
+    starts = np.arange(count) * hop
+    ends = np.minimum(starts + frame, len(samples))
+    rms = np.sqrt((power[ends] - power[starts]) / (ends - starts))
+    loud = float(np.percentile(rms, 95))
+    steady = rms >= loud * 10 ** (-STEADY_DB / 20)
+    padded = np.concatenate(([False], steady, [False])).astype(np.int8)
+    edges = np.flatnonzero(np.diff(padded))
+    runs = list(zip(edges[::2], edges[1::2], strict=True))
+    first, last = max(runs, key=lambda r: (r[1] - r[0], -r[0]))
+    edge = int(EDGE_S * rate)
+    begin = int(starts[first]) + edge
+    end = int(ends[last - 1]) - edge
+    return begin, max(begin, end)
+
+
+def _difference(frame: Samples, longest: int) -> Samples:
+    """YIN's difference function d(τ) = Σ (x_j − x_{j+τ})², j < W, for τ = 0..longest."""
+    width = len(frame) - longest
+    size = 1 << (2 * len(frame) - 1).bit_length()
+    spectrum = np.fft.rfft(frame, size)
+    head = np.fft.rfft(frame[:width], size)
+    correlation = np.fft.irfft(spectrum * np.conj(head), size)[: longest + 1]
+    energy = np.cumsum(np.concatenate(([0.0], frame * frame)))
+    lags = np.arange(longest + 1)
+    shifted = energy[lags + width] - energy[lags]
+    difference: Samples = np.maximum(energy[width] + shifted - 2.0 * correlation, 0.0)
+    return difference
+
+
+def yin_period(frame: Samples, shortest: int, longest: int) -> tuple[float, float]:
+    """(period in samples, depth of its normalised dip); period 0 when none is found."""
+    d = _difference(frame, longest)
+    running = np.cumsum(d[1:])
+    normalised = np.ones_like(d)
+    normalised[1:] = d[1:] * np.arange(1, len(d)) / np.maximum(running, 1e-300)
+    window = normalised[shortest: longest]
+    if len(window) < 3:
+        return 0.0, 1.0
+    inner = window[1:-1]
+    minima = np.flatnonzero((inner <= window[:-2]) & (inner < window[2:])) + 1
+    if not len(minima):
+        return 0.0, 1.0
+    deepest = float(np.min(window[minima]))
+    if deepest > YIN_APERIODIC:
+        return 0.0, deepest
+    limit = max(YIN_THRESHOLD, deepest + 0.1)
+    chosen = int(minima[np.argmax(window[minima] <= limit)])
+    tau = shortest + chosen
+    before, at, after = normalised[tau - 1], normalised[tau], normalised[tau + 1]
+    bend = before - 2.0 * at + after
+    offset = 0.5 * (before - after) / bend if bend > 0 else 0.0
+    return tau + offset, float(at)
+
+
+def _first_pitches(part: Samples, rate: float) -> tuple[Samples, Samples]:
+    """YIN pitch (Hz) of frames spread over ``part`` (0 where a frame has no clear period),
+    and each frame's centre (sample index)."""
+    longest = min(int(rate / LOWEST_HZ) + 1, len(part) // 2 - 1)
+    shortest = max(int(rate / HIGHEST_HZ), 2)
+    width = 2 * longest
+    if longest <= shortest + 2 or width > len(part):
+        raise RecordingProblem("too short: the steady tone is shorter than two periods of "
+                               "the lowest pitch looked for",
+                               "record each pipe for 2 s or more after it has spoken")
+    count = int(min(64, max(8, (len(part) - width) / (0.05 * rate))))
+    starts = np.linspace(0, len(part) - width, count).astype(int)
+    found = []
+    for start in starts:
+        tau, _ = yin_period(part[start: start + width], shortest, longest)
+        found.append(rate / tau if tau > 0 else 0.0)
+    return np.asarray(found), starts + width / 2
+
+
+def _held_pitch(pitches: Samples) -> tuple[float, float, float]:
+    """The pitch held longest among the frames, the share of frames at another pitch, and
+    that other pitch's ratio to it (0 when none)."""
+    clear = pitches[pitches > 0]
+    if len(clear) < max(3, len(pitches) // 2):
+        raise RecordingProblem("no steady pitch: the recording sounds like noise, or like "
+                               "several pipes at once",
+                               "record one pipe at a time, close to its mouth, in a quiet room")
+    groups: list[list[float]] = []
+    for f in sorted(clear):
+        if groups and abs(cents(f / float(np.median(groups[-1])))) <= SAME_PITCH_CENTS:
+            groups[-1].append(f)
+        else:
+            groups.append([f])
+    groups.sort(key=lambda g: (-len(g), float(np.median(g))))
+    held = float(np.median(groups[0]))
+    others = len(pitches) - len(groups[0])
+    ratio = float(np.median(groups[1])) / held if len(groups) > 1 else 0.0
+    return held, others / len(pitches), ratio
+
+
+def _spectrum(part: Samples, rate: float) -> tuple[Samples, float]:
+    """Log magnitude of the Hann-windowed part, zero-padded 8 times; and Hz per bin."""
+    size = 1 << (8 * len(part) - 1).bit_length()
+    window = np.hanning(len(part))
+    magnitude = np.abs(np.fft.rfft((part - np.mean(part)) * window, size))
+    return np.log(np.maximum(magnitude, 1e-300)), rate / size
+
+
+def fine_pitch(part: Samples, rate: float, near_hz: float) -> tuple[float, int]:
+    """Weighted least-squares f0 from the harmonics of ``part`` near multiples of
+    ``near_hz``; and the number of harmonics used (0: none stood above the noise)."""
+    log_mag, step = _spectrum(part, rate)
+    top = min(0.45 * rate, 12000.0)
+    numerator = denominator = 0.0
+    used = 0
+    for h in range(1, HARMONICS + 1):
+        centre = h * near_hz
+        if centre > top:
+            break
+        half = max(min(0.03 * centre, 0.4 * near_hz), 3 * step)
+        lo, hi = int((centre - half) / step), int((centre + half) / step) + 1
+        band = log_mag[max(lo, 1): hi]
+        if len(band) < 3:
+            continue
+        k = int(np.argmax(band)) + max(lo, 1)
+        if k <= 0 or k >= len(log_mag) - 1:
+            continue
+        wide = log_mag[max(int((centre - near_hz / 2) / step), 1): int((centre + near_hz / 2)
+                                                                      / step) + 1]
+        if log_mag[k] - float(np.median(wide)) < math.log(PEAK_OVER_NOISE):
+            continue
+        a, b, c = log_mag[k - 1], log_mag[k], log_mag[k + 1]
+        bend = a - 2.0 * b + c
+        offset = 0.5 * (a - c) / bend if bend < 0 else 0.0
+        frequency = (k + offset) * step
+        weight = math.exp(2.0 * (b - 0.25 * (a - c) * offset))
+        numerator += weight * h * frequency
+        denominator += weight * h * h
+        used += 1
+    return (numerator / denominator if denominator else 0.0), used
+
+
+def estimate(samples: Samples, rate: float) -> PitchEstimate:
+    """The fundamental of the steady tone in ``samples`` (mono, full scale ±1) at ``rate``
+    samples per second; ``RecordingProblem`` when there is none to be had."""
+    samples = np.asarray(samples, dtype=np.float64)
+    check_samples(samples, rate)
+    samples = samples - float(np.mean(samples))
+    begin, end = steady_part(samples, rate)
+    longest = int(MAX_ANALYSED_S * rate)
+    if end - begin > longest:
+        begin += (end - begin - longest) // 2
+        end = begin + longest
+    if (end - begin) / rate < MIN_STEADY_S:
+        raise RecordingProblem(
+            f"too short: the steady tone lasts {(end - begin) / rate:.2f} s (at least "
+            f"{MIN_STEADY_S:g} s is needed)",
+            "hold the note longer, and record 2 s or more after the pipe has spoken")
+    part = samples[begin:end]
+    pitches, centres = _first_pitches(part, rate)
+    held, share, ratio = _held_pitch(pitches)
+    # A pipe often speaks sharp or flat and settles: the tone counts from the first frame
+    # within SETTLED_CENTS of the pitch held longest.
+    settled = np.flatnonzero(np.abs(1200 * np.log2(np.maximum(pitches, 1e-9) / held))
+                             <= SETTLED_CENTS)
+    skip = int(centres[settled[0]]) if len(settled) and settled[0] > 0 else 0
+    if (len(part) - skip) / rate >= MIN_STEADY_S:
+        part, begin = part[skip:], begin + skip
+        keep = centres >= skip
+        pitches, centres = pitches[keep], centres[keep] - skip
+    count = int(min(MAX_BLOCKS, max(3, len(part) / (BLOCK_S * rate))))
+    size = len(part) // count
+    blocks = []
+    for i in range(count):
+        inside = pitches[(centres >= i * size) & (centres < (i + 1) * size)]
+        if len(inside) and not np.any(
+                (inside > 0) & (np.abs(1200 * np.log2(np.maximum(inside, 1e-9) / held))
+                                <= SAME_PITCH_CENTS)):
+            continue  # this block sounded another pitch (or none): left out
+        f, used = fine_pitch(part[i * size: (i + 1) * size], rate, held)
+        if used and abs(cents(f / held)) <= SAME_PITCH_CENTS:
+            blocks.append(f)
+    whole, partials = fine_pitch(part, rate, held)
+    if not blocks or not partials:
+        raise RecordingProblem("no steady pitch: no partial stands clear of the noise",
+                               "record closer to the pipe, in a quieter room")
+    offsets = np.array([cents(f / whole) for f in blocks])
+    spread = float(np.std(offsets, ddof=1)) if len(offsets) > 1 else 0.0
+    error = max(spread / math.sqrt(len(offsets)), abs(float(np.mean(offsets))))
+    return PitchEstimate(
+        frequency_hz=float(whole),
+        uncertainty_cents=max(error, UNCERTAINTY_FLOOR_CENTS),
+        spread_cents=spread,
+        steady_from_s=begin / rate,
+        steady_to_s=(begin + len(part)) / rate,
+        blocks=len(offsets),
+        partials=partials,
+        other_pitch_share=share,
+        other_pitch_ratio=ratio,
+    )
