@@ -172,7 +172,8 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         "spec_file": compiled.resolved.spec_file,
         "spec_sha256": compiled.resolved.spec_sha256,
         "build_key": build_key,
-        "warnings": [f"{n.position}: warning: {n.message}" for n in compiled.resolved.warnings],
+        "warnings": [f"{n.position.shown()}: warning: {n.message}"
+                     for n in compiled.resolved.warnings],
         "files": [{"path": f, "sha256": _sha256(folder / f), "bytes": (folder / f).stat().st_size}
                   for f in names_written],
     }
@@ -256,8 +257,12 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
             target, manifest = done
             _clean_leftovers(out_root, target.name)
             say("up to date")
+            shown = Path(filename).name
             for line in manifest.get("warnings", []):
-                tell(str(line))
+                # The manifest names the spec file without its folder: put back the path
+                # the user gave, so the warning still leads to the file.
+                text = str(line)
+                tell(filename + text[len(shown):] if text.startswith(shown + ":") else text)
             return target
     from compiler.resolve.resolver import slug
     from compiler.spec import load_spec

@@ -24,12 +24,13 @@ FOLDER = ".boresmith-cache"
 
 @lru_cache(maxsize=1)
 def fingerprint() -> str:
-    """sha256 over boresmith's own source and schema files (a code change empties the cache)."""
+    """sha256 over boresmith's own source, schema and font files (a change empties the
+    cache)."""
     package = Path(__file__).resolve().parent
     digest = hashlib.sha256()
     roots = [package, package / "schemas", package.parent / "schemas"]
     files = sorted({p for root in roots if root.is_dir() for p in root.rglob("*")
-                    if p.suffix in (".py", ".json") and "__pycache__" not in p.parts})
+                    if p.suffix in (".py", ".json", ".ttf") and "__pycache__" not in p.parts})
     for path in files:
         digest.update(path.name.encode())
         digest.update(path.read_bytes())
@@ -81,6 +82,13 @@ class Cache:
         with os.fdopen(handle, "wb") as stream:
             stream.write(data)
         os.replace(temp, path)
+
+    def forget(self, kind: str, key: str) -> None:
+        """Drop one entry (made, but not fit to be reused)."""
+        path = self._path(kind, key)
+        if path is not None:
+            self.used.discard(path.name)
+            path.unlink(missing_ok=True)
 
     def prune(self, keep: set[str] | None = None) -> None:
         """Remove the entries this build did not use (and ``keep`` names)."""

@@ -20,6 +20,12 @@ class Position:
     def __str__(self) -> str:
         return f"{self.file}:{self.line}:{self.col}"
 
+    def shown(self) -> str:
+        """``FILE:LINE:COL`` with the file's name only, for output files: a build's
+        outputs never carry the folder the spec was read from."""
+        name = self.file.replace("\\", "/").rsplit("/", 1)[-1]
+        return f"{name}:{self.line}:{self.col}"
+
 
 UNKNOWN = Position("<unknown>", 0, 0)
 

@@ -18,7 +18,8 @@ COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantit
 
 def render(parts: Parts) -> str:
     """CSV text, by stock, then in the order of the pipes (as in the spec: low to high);
-    sheet parts name the sheet they are nested on."""
+    sheet parts name the sheet they are nested on. ``length_mm`` × ``width_mm`` is the size
+    order of every output (``Part.length_by_width``)."""
     placed = {pl.part_id: sheet.id for sheet in parts.sheets for pl in sheet.placements}
     order: dict[str, int] = {}
     for p in parts.parts:
@@ -29,9 +30,10 @@ def render(parts: Parts) -> str:
     for p in parts.parts:
         if p.kind == "template":
             continue
+        length, width = p.length_by_width
         rows.append((p.stock, p.material, f"{p.thickness_mm:.2f}", p.id, p.pipe_id or "",
-                     p.name, str(p.quantity), f"{max(p.width_mm, p.height_mm):.2f}",
-                     f"{min(p.width_mm, p.height_mm):.2f}", placed.get(p.id, ""), p.note))
+                     p.name, str(p.quantity), f"{length:.2f}", f"{width:.2f}",
+                     placed.get(p.id, ""), p.note))
     for cut in parts.tube_cuts:
         rows.append((cut.stock, cut.material, "", f"{cut.pipe_id}-tube", cut.pipe_id,
                      "tube", "1", f"{cut.length_mm:.2f}", f"{cut.outside_diameter_mm:.2f}",

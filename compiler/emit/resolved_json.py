@@ -67,7 +67,7 @@ def _convert(name: str, value: Any) -> tuple[str, Any]:
 
 def _plain(value: Any) -> Any:
     if isinstance(value, Position):
-        return str(value)
+        return value.shown()
     if dataclasses.is_dataclass(value) and not isinstance(value, type):
         out = {}
         for f in dataclasses.fields(value):

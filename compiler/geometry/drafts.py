@@ -47,6 +47,9 @@ class Draft:
     grain_along_x: bool = False
     quantity: int = 1
     note: str = ""
+    length_along_x: bool | None = None
+    """See :attr:`compiler.geometry.model.Part.length_along_x`; boards default to their
+    grain's direction."""
 
     @property
     def is_cut(self) -> bool:
@@ -116,4 +119,6 @@ def finish(draft: Draft, kerf_mm: float) -> Part:
         grain_along_x=draft.grain_along_x,
         quantity=draft.quantity,
         note=draft.note,
+        length_along_x=(draft.length_along_x if draft.length_along_x is not None
+                        else (True if draft.grain_along_x else None)),
     )

@@ -73,6 +73,18 @@ class Part:
     quantity: int = 1
     note: str = ""
     """A line for the cut list (e.g. ``roll to 92.5 mm inside``)."""
+    length_along_x: bool | None = None
+    """Where the part's *length* runs: along x (a board's grain, a holder's row of
+    openings), along y (a rolled body or a template: along the pipe), or None for parts
+    with no such direction (disks, the foot's sector), whose longer side is the length."""
+
+    @property
+    def length_by_width(self) -> tuple[float, float]:
+        """The part's size as every output names it: (length, width) in mm."""
+        w, h = self.width_mm, self.height_mm
+        if self.length_along_x is None:
+            return max(w, h), min(w, h)
+        return (w, h) if self.length_along_x else (h, w)
 
 
 @dataclass(frozen=True)

@@ -228,3 +228,13 @@ def placed(entities: tuple[Entity, ...], placement: Placement) -> tuple[Entity, 
 def snapped(entity: Entity) -> Entity:
     """``entity`` with its coordinates rounded to 1e-6 mm."""
     return moved(entity, 0.0, 0.0)
+
+
+def text_centre(text: Text) -> Point:
+    """The centre of a label's box (its approximate width × its height, turned with it):
+    the point both backends centre the label on, whatever the font's real widths."""
+    w, h = text_width(text.text, text.height), text.height
+    c = math.cos(math.radians(text.rotation_deg))
+    s = math.sin(math.radians(text.rotation_deg))
+    x, y = text.insert
+    return x + (w * c - h * s) / 2.0, y + (w * s + h * c) / 2.0

@@ -71,11 +71,11 @@ def frustum_pattern(small_d: float, large_d: float, height: float) -> SectorPatt
 
 
 def _draft(pipe: Pipe, name: str, width: float, height: float, outline: Polyline | Circle,
-           marks: tuple[Entity, ...], note: str) -> Draft:
+           marks: tuple[Entity, ...], note: str, along_x: bool | None = None) -> Draft:
     return Draft(id=f"{pipe.id}-{name}", pipe_id=pipe.id, group=pipe.group, name=name,
                  material=pipe.material, stock=pipe.stock, thickness_mm=mm(pipe.wall_m),
                  kind="sheet", width_mm=width, height_mm=height, outline=outline, openings=(),
-                 marks=marks, source=pipe.source, note=note)
+                 marks=marks, source=pipe.source, note=note, length_along_x=along_x)
 
 
 def body(pipe: Pipe, fab: FabricationReport) -> Draft:
@@ -111,7 +111,7 @@ def body(pipe: Pipe, fab: FabricationReport) -> Draft:
     return _draft(pipe, "body", width, height, closed("cut-outer", pts),
                   (*marks, *labels(lab)),
                   f"roll to {mm(pipe.inside_diameter_m):.1f} mm inside; "
-                       f"seam strip {seam:.1f} mm on the right-hand edge")
+                       f"seam strip {seam:.1f} mm on the right-hand edge", along_x=False)
 
 
 def _sector(pattern: SectorPattern, seam: float) -> tuple[Polyline, float]:
@@ -175,7 +175,7 @@ def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
     first = shifted[0]
     assert isinstance(first, Polyline)
     return _draft(pipe, "foot", box[2] - box[0], box[3] - box[1], first, tuple(shifted[1:]),
-                  note)
+                  note, along_x=False)
 
 
 def languid(pipe: Pipe) -> Draft:

@@ -155,7 +155,8 @@ def template(pipe: Pipe) -> Draft:
                  material="paper", stock=pipe.stock, thickness_mm=0.0, kind="template",
                  width_mm=circ, height_mm=length, outline=rect("cut-outer", 0, 0, circ, length),
                  openings=(), marks=(*marks, *labels(lab), top), source=pipe.source,
-                 note=f"wrap round the {od:.1f} mm tube, front line to the front, top end up")
+                 note=f"wrap round the {od:.1f} mm tube, front line to the front, top end up",
+                 length_along_x=False)
 
 
 def duct_block(pipe: Pipe) -> Draft | None:
@@ -244,4 +245,5 @@ def _plate(group: Group, row: list[tuple[Pipe, float]], name: str, kind: str,
                  thickness_mm=mm(group.holder.thickness_m), kind=kind, width_mm=width,
                  height_mm=height, outline=outline, openings=tuple(openings),
                  marks=tuple(texts), source=source, grain_along_x=kind == "board",
+                 length_along_x=True,
                  note=f"{len(row)} openings: " + ", ".join(p.note for p, _ in row))

@@ -21,10 +21,20 @@ from compiler.resolve.model import (
 from compiler.resolve.targets import tonic_name
 from compiler.spec import model as spec_model
 
+TRANSLITERATION = str.maketrans({
+    "ß": "ss", "ẞ": "ss", "Ł": "L", "ł": "l", "Đ": "D", "đ": "d", "Ø": "O", "ø": "o",
+    "Æ": "AE", "æ": "ae", "Œ": "OE", "œ": "oe", "Þ": "TH", "þ": "th", "Ð": "D", "ð": "d",
+    "ı": "i", "Ħ": "H", "ħ": "h", "Ŧ": "T", "ŧ": "t", "Ŋ": "NG", "ŋ": "ng",
+})
+"""Latin letters that Unicode does not decompose into a base letter and an accent; every
+other accented letter loses its accent by NFKD decomposition (Dvořák → dvorak)."""
+
 
 def slug(name: str) -> str:
-    """A folder name from the instrument's name: lower case ASCII words joined by ``-``."""
-    text = unicodedata.normalize("NFKD", name).encode("ascii", "ignore").decode("ascii")
+    """A folder name from the instrument's name: lower case ASCII words joined by ``-``;
+    letters are transliterated (Große → grosse, Łódź → lodz), other characters dropped."""
+    text = unicodedata.normalize("NFKD", name.translate(TRANSLITERATION))
+    text = text.encode("ascii", "ignore").decode("ascii")
     text = re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")
     return text[:80].strip("-") or "instrument"
 

@@ -19,7 +19,7 @@ from reportlab.pdfgen.canvas import Canvas
 from compiler.cache import Cache, key_of
 from compiler.emit.pdf import cautions, cover, cutlist, pipes, templates
 from compiler.emit.pdf.document import Page, draw_chrome
-from compiler.emit.pdf.style import Frame, frame_for, safe
+from compiler.emit.pdf.style import FONT, REPERTOIRE, Frame, frame_for, register_fonts, safe
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
@@ -56,16 +56,40 @@ def plan(resolved: Resolved, parts: Parts, options: BuildOptions) -> list[Page]:
     return front + [page for _, found in sections for page in found]
 
 
-def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache) -> None:
+def _seed_fonts(canvas: Canvas) -> int | None:
+    """Give the characters of ``REPERTOIRE`` their codes in a fixed order, before anything is
+    drawn; returns how many characters the fonts have codes for then (None: not possible with
+    this reportlab, and no page body may be replayed)."""
+    doc = getattr(canvas, "_doc", None)
+    if doc is None:
+        return None
+    for font in register_fonts():
+        font.splitString(REPERTOIRE, doc)
+    return _codes(canvas)
+
+
+def _codes(canvas: Canvas) -> int | None:
+    try:
+        return sum(len(font.state[canvas._doc].assignments) for font in register_fonts())
+    except (AttributeError, KeyError, TypeError):
+        return None
+
+
+def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache,
+               seeded: int | None) -> None:
     """Draw a page's body, or replay its drawing from an earlier build.
 
     A body's drawing is a run of PDF content operators. It depends only on ``page.key`` and
     the frame, and starts from the state the header leaves (fonts registered in the same
     order in every build), so the operators recorded for the same key can stand in for
-    drawing it again. reportlab keeps a page's operators in ``Canvas._code``; where that
-    is missing (another reportlab), every body is drawn."""
+    drawing it again. The embedded fonts number their characters in the order of first use:
+    a body is recorded only while every character used so far in the document is one of
+    the ``REPERTOIRE``, whose codes are fixed before the first page (``seeded`` codes), so
+    its operators mean the same in any build. reportlab keeps a page's operators in
+    ``Canvas._code``; where that is missing (another reportlab), every body is drawn."""
     code = getattr(canvas, "_code", None)
-    if page.key is None or store.folder is None or not isinstance(code, list):
+    if (page.key is None or store.folder is None or not isinstance(code, list)
+            or seeded is None):
         page.draw(canvas, frame)
         return
 
@@ -77,7 +101,13 @@ def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache) -> None:
         drawn.append(True)
         return "\n".join(code[start:]).encode("utf-8")
 
-    recorded = store.data("pdf-page", key_of("pdf-page", frame, page.key), make)
+    key = key_of("pdf-page", frame, page.key)
+    if _codes(canvas) != seeded:
+        page.draw(canvas, frame)
+        return
+    recorded = store.data("pdf-page", key, make)
+    if drawn and _codes(canvas) != seeded:
+        store.forget("pdf-page", key)  # it used a character outside the fixed codes
     if not drawn and recorded:
         # The page's operators are joined with newlines when it is written, so one joined
         # entry gives the same bytes as the entries it was made from.
@@ -94,7 +124,10 @@ def render(resolved: Resolved, parts: Parts, options: BuildOptions,
     pages = plan(resolved, parts, options)
     buffer = io.BytesIO()
     canvas = Canvas(buffer, pagesize=(frame.width, frame.height), invariant=1,
-                    pageCompression=1)
+                    pageCompression=1, initialFontName=FONT)
+    seeded = _seed_fonts(canvas)
+    # Templates are full size: ask the viewer not to fit the page to the printer's margins.
+    canvas.setViewerPreference("PrintScaling", "None")
     canvas.setTitle(safe(resolved.instrument))
     canvas.setAuthor("boresmith")
     canvas.setCreator("boresmith")
@@ -106,7 +139,7 @@ def render(resolved: Resolved, parts: Parts, options: BuildOptions,
             canvas.bookmarkPage(key)
             canvas.addOutlineEntry(safe(page.bookmark), key, level=0)
         draw_chrome(canvas, frame, resolved.instrument, page, number, len(pages), footer)
-        _draw_body(canvas, frame, page, store)
+        _draw_body(canvas, frame, page, store, seeded)
         canvas.showPage()
     canvas.save()
     return buffer.getvalue()

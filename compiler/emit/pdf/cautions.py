@@ -25,6 +25,11 @@ GENERAL = (
      "chlorine-containing plastic with a laser: the beam releases hydrogen chloride and other "
      "chlorine compounds that harm the lungs and corrode the machine. Saw or knife them by "
      "hand, with ventilation, and keep the dust off skin and out of lungs."),
+    ("Lead-bearing metal: never laser or plasma cut", "Never cut spotted metal, organ "
+     "metal or any other lead-bearing sheet with a laser or a plasma cutter: the heat gives "
+     "off lead fume, which is poisonous to breathe and settles as dust. Cut it cold: with "
+     "shears, a knife or a waterjet (the DXF files drive a knife plotter or a waterjet as "
+     "well, or print them at 1:1 as templates)."),
     ("Lead-bearing pipe metal", "Spotted metal, organ metal, some pewter and old solders "
      "contain lead. Do not eat, drink or smoke at the bench; wash your hands before breaks; "
      "never sand, grind or blow lead dust about; collect scraps and filings for proper "
@@ -74,9 +79,11 @@ def specific(resolved: Resolved, parts: Parts) -> list[Block]:
                              colour=WARN, boxed=True))
     lead = _matching(names, LEADED)
     if lead:
-        out.append(Paragraph(f"This build uses {', '.join(lead)}, which contains lead: follow "
-                             "the lead notes below at every step, and keep the offcuts for "
-                             "proper recycling.", 10, bold=True, colour=WARN, boxed=True))
+        out.append(Paragraph(f"This build uses {', '.join(lead)}, which contains lead. NEVER "
+                             "cut it with a laser or a plasma cutter (lead fume): use shears, "
+                             "a knife or a waterjet. Follow the lead notes below at every "
+                             "step, and keep the offcuts for proper recycling.", 10,
+                             bold=True, colour=WARN, boxed=True))
     wood = _matching(names, WOODS)
     if wood:
         out.append(Paragraph(f"Wood in this build ({', '.join(wood)}): extract the dust; "

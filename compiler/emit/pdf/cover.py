@@ -33,6 +33,29 @@ SECTION = "Cover"
 WARNINGS_SHOWN = 12
 
 
+def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
+    """The fabrication settings that apply to this build: sheet, spacing and seam only where
+    parts are nested on sheets or rolled; the tuning allowance only where it is added."""
+    fab = resolved.fabrication
+    inches = uses_inches(fab.units)
+    constructions = {p.construction for p in resolved.pipes}
+    nested = bool(constructions & {"rolled-sheet", "boards"}) or any(
+        g.holder is not None for g in resolved.groups)
+    items = [("work to", f"{length(fab.precision_m, inches)} (fabrication precision)")]
+    if nested:
+        items += [("sheet size", f"{length(fab.sheet_length_m, inches)} × "
+                                 f"{length(fab.sheet_width_m, inches)} (length × width)"),
+                  ("kerf, spacing", f"{length(fab.kerf_m, inches)}, "
+                                    f"{length(fab.spacing_m, inches)}")]
+    elif constructions & {"stock-tube"}:
+        items.append(("kerf", length(fab.kerf_m, inches)))
+    if "rolled-sheet" in constructions:
+        items.append(("seam allowance", length(fab.seam_allowance_m, inches)))
+    if any(g.kind != "flute" for g in resolved.groups):
+        items.append(("tuning allowance", fab.tuning_allowance))
+    return tuple(items)
+
+
 def _title_blocks(resolved: Resolved) -> list[Block]:
     fab = resolved.fabrication
     inches = uses_inches(fab.units)
@@ -46,12 +69,7 @@ def _title_blocks(resolved: Resolved) -> list[Block]:
             ("spec sha256", resolved.spec_sha256),
             ("lengths", "millimetres" + (", inches beside them" if inches else "")
              + f" (spec written in {fab.units})"),
-            ("work to", f"{length(fab.precision_m, inches)} (fabrication precision)"),
-            ("sheet size", f"{length(fab.sheet_length_m, inches)} × "
-                           f"{length(fab.sheet_width_m, inches)}"),
-            ("kerf, spacing", f"{length(fab.kerf_m, inches)}, {length(fab.spacing_m, inches)}"),
-            ("seam allowance", length(fab.seam_allowance_m, inches)),
-            ("tuning allowance", fab.tuning_allowance),
+            *_settings(resolved),
             ("tuning", f"A4 = {hz(resolved.tuning.a4_hz)} Hz, {resolved.tuning.temperament} "
                        f"temperament, tonic {resolved.tuning.tonic}"),
         ), 9.5, 0.22),
@@ -90,9 +108,9 @@ def _air_blocks(resolved: Resolved) -> list[Block]:
 
 
 def _calibration_table(resolved: Resolved) -> Table:
-    cols = (Column("groups", 2.1), Column("status", 1.1), Column("fitted", 1.7),
+    cols = (Column("groups", 2.0), Column("status", 1.4), Column("fitted", 2.4),
             Column("value", 0.8, "right"), Column("rms cents", 0.9, "right"),
-            Column("measured minus predicted (cents)", 3.0))
+            Column("measured minus predicted (cents)", 2.5))
     rows = []
     plain = [g.id for g in resolved.groups if not g.calibration.calibrated]
     if plain:
@@ -147,7 +165,7 @@ def pages(resolved: Resolved, frame: Frame, contents: Sequence[tuple[str, int]])
     if resolved.warnings:
         blocks += [Spacer(2 * MM), Heading("Notes from the resolver", 12)]
         for note in resolved.warnings[:WARNINGS_SHOWN]:
-            blocks.append(Paragraph(f"{note.position}: {note.message}", 8.5))
+            blocks.append(Paragraph(f"{note.position.shown()}: {note.message}", 8.5))
         extra = len(resolved.warnings) - WARNINGS_SHOWN
         if extra > 0:
             blocks.append(Paragraph(f"... and {extra} more (boresmith resolve lists them "

@@ -13,7 +13,6 @@ from collections.abc import Sequence
 from compiler.emit.pdf.document import Block, Column, Heading, Page, Paragraph, Spacer, Table
 from compiler.emit.pdf.document import flow_pages as _flow_pages
 from compiler.emit.pdf.style import (
-    GREY,
     MM,
     Frame,
     inch_of,
@@ -47,11 +46,13 @@ def _stock_line(name: str, item: StockItem | None, inches: bool, material: str) 
 
 
 def _inches(part: Part) -> str:
-    return f"{inch_of(part.width_mm)} × {inch_of(part.height_mm)} in"
+    length, width = part.length_by_width
+    return f"{inch_of(length)} × {inch_of(width)} in"
 
 
 def _size(part: Part) -> str:
-    text = f"{mm_of(part.width_mm)} × {mm_of(part.height_mm)}"
+    length, width = part.length_by_width
+    text = f"{mm_of(length)} × {mm_of(width)}"
     return f"{part.quantity}× {text}" if part.quantity > 1 else text
 
 
@@ -59,8 +60,9 @@ def _sheet_names(parts: Sequence[Part], sheets: Sequence[Sheet], stock: str) -> 
     """Part id → the sheet(s) it is nested on (``1``, ``2, 3``)."""
     where: dict[str, list[str]] = {}
     for sheet in sheets:
-        # ``sheet-3-spotted-metal`` -> ``sheet-3``: the material heads the table already
-        short = "-".join(sheet.id.split("-")[:2]) if sheet.id.startswith("sheet-") else sheet.id
+        # ``sheet-03-spotted-metal`` -> ``03``: the material heads the table already, and the
+        # column says "sheet no."
+        short = sheet.id.split("-")[1] if sheet.id.startswith("sheet-") else sheet.id
         for pl in sheet.placements:
             names = where.setdefault(pl.part_id, [])
             if short not in names:
@@ -68,7 +70,19 @@ def _sheet_names(parts: Sequence[Part], sheets: Sequence[Sheet], stock: str) -> 
     return {p.id: ", ".join(where.get(p.id, [])) or "-" for p in parts}
 
 
-def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Table | None:
+def _shared_notes(parts: Sequence[Part]) -> dict[str, str]:
+    """Part name → its note, where every part of that name has the same one (said once
+    under the table rather than in every row)."""
+    notes: dict[str, set[str]] = {}
+    for p in parts:
+        notes.setdefault(p.name, set()).add(p.note)
+    return {name: next(iter(found)) for name, found in notes.items()
+            if len(found) == 1 and next(iter(found)) and
+            sum(1 for p in parts if p.name == name) > 1}
+
+
+def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool
+           ) -> list[Block] | None:
     names: list[str] = []
     for p in parts:
         if p.name not in names:
@@ -85,8 +99,9 @@ def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Tab
         if p.name in rows_by[key]:
             return None  # two parts of one name for a pipe: the pivot would hide one
         rows_by[key][p.name] = p
-    cols = (Column("pipe", 1.5),) + tuple(Column(f"{n}\nW × H mm", 1.7) for n in names) + (
-        Column("on sheet", 0.9),)
+    shared = _shared_notes(parts)
+    cols = (Column("pipe", 1.5),) + tuple(Column(f"{n}\nlength × width mm", 1.7)
+                                          for n in names) + (Column("sheet no.", 0.9),)
     rows, sub = [], []
     for key in order:
         found = rows_by[key]
@@ -95,30 +110,47 @@ def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Tab
                         key=lambda s: (len(s), s))
         row.append(", ".join(s for s in sheets if s != "-") or "-")
         rows.append(tuple(row))
-        sub.append(("",) + tuple(_second_line(found.get(n), inches) for n in names) + ("",))
+        sub.append(("",) + tuple(_second_line(found.get(n), inches, n in shared)
+                                 for n in names) + ("",))
     has_notes = any(any(cell for cell in s) for s in sub)
-    return Table(cols, tuple(rows), tuple(sub) if has_notes else (), size=8, title_rows=2)
+    out: list[Block] = [Table(cols, tuple(rows), tuple(sub) if has_notes else (), size=8,
+                              title_rows=2)]
+    for name in names:
+        if name in shared:
+            out.append(Paragraph(f"Every {name}: {shared[name]}.", 8.5))
+    return out
 
 
-def _second_line(part: Part | None, inches: bool) -> str:
-    """Under a size: the inches (spec in inches) and the part's note."""
+def _second_line(part: Part | None, inches: bool, shared: bool) -> str:
+    """Under a size: the inches (spec in inches) and the part's note (unless it is the
+    same for every pipe and said under the table)."""
     if part is None:
         return ""
-    return " · ".join(t for t in ((_inches(part) if inches else ""), part.note) if t)
+    note = "" if shared else part.note
+    return " · ".join(t for t in ((_inches(part) if inches else ""), note) if t)
 
 
-def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> Table:
-    cols = (Column("part", 2.2), Column("pipe", 1.4), Column("qty", 0.5, "right"),
-            Column("W × H mm", 1.6), Column("on sheet", 0.9), Column("note", 2.2))
-    rows = tuple((p.id, p.pipe_id or "-", str(p.quantity),
-                  f"{mm_of(p.width_mm)} × {mm_of(p.height_mm)}", sheet_of[p.id], p.note)
+def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> list[Block]:
+    """One row per part (pipe, part name); notes the same for every part of a name are
+    said once under the table."""
+    shared = _shared_notes(parts)
+    cols = (Column("pipe", 1.4), Column("part", 0.9), Column("qty", 0.4, "right"),
+            Column("length × width mm", 1.5), Column("sheet no.", 0.8), Column("note", 3.6))
+    rows = tuple((p.pipe_id or p.id, p.name if p.pipe_id else "-", str(p.quantity),
+                  "{} × {}".format(*map(mm_of, p.length_by_width)), sheet_of[p.id],
+                  "" if p.name in shared else p.note)
                  for p in parts)
     sub = tuple(("", "", "", _inches(p), "", "") for p in parts) if inches else ()
-    return Table(cols, rows, sub, size=8)
+    out: list[Block] = [Table(cols, rows, sub, size=8)]
+    names = list(dict.fromkeys(p.name for p in parts))
+    out += [Paragraph(f"Every {name}: {shared[name]}.", 8.5) for name in names
+            if name in shared]
+    return out
 
 
 def _sheets_table(sheets: Sequence[Sheet]) -> Table:
-    cols = (Column("sheet", 1.6), Column("size mm", 1.6), Column("parts", 0.7, "right"),
+    cols = (Column("sheet", 2.4), Column("length × width mm", 1.6),
+            Column("parts", 0.7, "right"),
             Column("utilisation", 1.0, "right"))
     rows = tuple((s.id, f"{mm_of(s.length_mm)} × {mm_of(s.width_mm)}", str(len(s.placements)),
                   percent(s.utilisation)) for s in sheets)
@@ -148,9 +180,12 @@ def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
     tube_notes = {p.pipe_id: p.note for p in parts.parts if p.kind == "tube" and p.pipe_id}
     stocks = sorted({p.stock for p in cut_parts} | {t.stock for t in parts.tube_cuts})
     out: list[Block] = [Heading("Cut list", 15),
-                        Paragraph("Sizes are the bounding box of each flat part in mm (W "
-                                  "across, H along the pipe); \"2×\" means cut two. Sheet "
-                                  "numbers refer to the sheets' DXF files.", 8.5, colour=GREY)]
+                        Paragraph("Sizes are length × width of each flat part's bounding box "
+                                  "in mm, everywhere (this sheet, cut-list.csv, the DXF files): "
+                                  "the length runs along the pipe (along the grain for wood), "
+                                  "or is the longer side of a disk or plate; \"2×\" means cut "
+                                  "two. Sheet numbers are those of the sheets' DXF files "
+                                  "(sheet-NN-material.dxf).", 8.5)]
     for stock in stocks:
         mine = [p for p in cut_parts if p.stock == stock]
         tubes = [t for t in parts.tube_cuts if t.stock == stock]
@@ -160,7 +195,7 @@ def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
         if mine:
             sheets = [s for s in parts.sheets if s.stock == stock]
             sheet_of = _sheet_names(mine, sheets, stock)
-            out.append(_pivot(mine, sheet_of, inches) or _per_part(mine, sheet_of, inches))
+            out += _pivot(mine, sheet_of, inches) or _per_part(mine, sheet_of, inches)
             if sheets:
                 out += [Spacer(1.5 * MM), _sheets_table(sheets)]
         if tubes:
@@ -169,9 +204,11 @@ def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
     if templates:
         out += [Spacer(2 * MM), Heading("Paper templates (printed in the Templates section)",
                                         11),
-                Table((Column("template", 2.0), Column("for", 1.5), Column("W × H mm", 1.4)),
-                      tuple((p.id, p.pipe_id or p.group, f"{mm_of(p.width_mm)} × "
-                             f"{mm_of(p.height_mm)}") for p in templates), size=8)]
+                Table((Column("template", 2.0), Column("for", 1.5),
+                       Column("length × width mm", 1.4)),
+                      tuple((p.id, p.pipe_id or p.group,
+                             "{} × {}".format(*map(mm_of, p.length_by_width)))
+                            for p in templates), size=8)]
     if len(out) == 2:
         out.append(Paragraph("Nothing to cut: the parts list is empty.", 9.5))
     return out

@@ -49,18 +49,9 @@ class Page:
     a rebuild can reuse the drawn body; ``None``: always drawn."""
 
 
-def fit_text(text: str, font: str, size: float, width: float) -> str:
-    """``text`` cut short with an ellipsis so that it fits ``width`` points."""
-    text = safe(text)
-    if stringWidth(text, font, size) <= width:
-        return text
-    while text and stringWidth(text + "...", font, size) > width:
-        text = text[:-1]
-    return text + "..."
-
-
 def wrap(text: str, font: str, size: float, width: float) -> list[str]:
-    """Lines of ``text`` broken at spaces to fit ``width`` points."""
+    """Lines of ``text`` broken at spaces to fit ``width`` points; a word longer than a line
+    is broken after a hyphen, else between characters: nothing is cut off."""
     return list(_wrapped(text, font, size, width))
 
 
@@ -68,7 +59,33 @@ def wrap(text: str, font: str, size: float, width: float) -> list[str]:
 def _wrapped(text: str, font: str, size: float, width: float) -> tuple[str, ...]:
     # Tables measure their rows again for every page split; text metrics are pure, so
     # each (text, font, size, width) is measured once.
-    return tuple(simpleSplit(safe(text), font, size, width)) or ("",)
+    lines: list[str] = []
+    for line in simpleSplit(safe(text), font, size, width):
+        lines += _break_word(line, font, size, width)
+    return tuple(lines) or ("",)
+
+
+def _break_word(line: str, font: str, size: float, width: float) -> list[str]:
+    """``line`` (one over-long word, or a line that fits) in pieces that fit ``width``."""
+    out: list[str] = []
+    while stringWidth(line, font, size) > width and len(line) > 1:
+        cut = len(line) - 1
+        while cut > 1 and stringWidth(line[:cut], font, size) > width:
+            cut -= 1
+        hyphen = line.rfind("-", 0, cut)
+        if hyphen > 0:
+            cut = hyphen + 1
+        out.append(line[:cut])
+        line = line[cut:]
+    return out + [line]
+
+
+def fit_size(text: str, font: str, size: float, width: float, smallest: float) -> float:
+    """The largest size from ``size`` down to ``smallest`` at which ``text`` fits ``width``
+    (``smallest`` if none does: the caller wraps then)."""
+    while size > smallest and stringWidth(safe(text), font, size) > width:
+        size = max(smallest, size - 0.25)
+    return size
 
 
 class Block:
@@ -155,8 +172,9 @@ class Paragraph(Block):
         c.setFillColor(INK)
 
 
-SUB_LINES = 3
-"""Most lines a table cell's second line may wrap onto."""
+SUB_MIN_SIZE = 8.0
+"""Smallest size of a table's second lines: they carry inches and bench notes, which a cut
+depends on."""
 
 
 @dataclass(frozen=True)
@@ -172,9 +190,9 @@ class Column:
 class Table(Block):
     """Rows of text cells under a shaded header; splits between rows, repeating the header.
 
-    A row may carry a second line (``sub``): smaller, grey, e.g. the inches beside
-    millimetres, or a note for the bench; a long one wraps onto up to ``SUB_LINES`` lines
-    and the row grows to fit.
+    Nothing is cut short: a cell's text wraps at spaces onto as many lines as it needs and
+    the row grows to fit. A row may carry a second line (``sub``, e.g. the inches beside
+    millimetres, or a note for the bench), which wraps the same way under the first.
     """
 
     columns: tuple[Column, ...]
@@ -183,44 +201,65 @@ class Table(Block):
     size: float = 8.5
     min_rows: int = 3
     title_rows: int = 1
+    """Lines the header has at least (titles with ``\\n`` or long words may need more)."""
     shade: tuple[int, ...] = field(default=())
     """Indices of rows drawn bold on a light band (totals, register headings)."""
 
-    @property
-    def row_height(self) -> float:
-        """The height of a row with at most one line under it."""
-        return self.size * (2.45 if self.sub else 1.55)
+    PAD = 1.0 * MM
 
-    def _sub_lines(self, i: int, widths: list[float]) -> list[list[str]]:
-        if not self.sub or i >= len(self.sub):
-            return []
-        size = self.size * 0.85
-        lines = []
+    @property
+    def sub_size(self) -> float:
+        return max(SUB_MIN_SIZE, self.size * 0.85)
+
+    def _widths(self, width: float) -> list[float]:
+        return list(_column_widths(self, width))
+
+    def _cells(self, i: int, widths: list[float]) -> tuple[list[list[str]], list[list[str]]]:
+        """The wrapped lines of row ``i``: first lines and second lines, per column."""
+        font = FONT_BOLD if i in self.shade else FONT
+        row = self.rows[i]
+        subs = self.sub[i] if self.sub and i < len(self.sub) else ()
+        main, under = [], []
         for k, w in enumerate(widths):
-            text = self.sub[i][k] if k < len(self.sub[i]) else ""
-            found = wrap(text, FONT, size, w - 2.4 * MM) if text else []
-            if len(found) > SUB_LINES:
-                found = found[:SUB_LINES - 1] + [fit_text(" ".join(found[SUB_LINES - 1:]),
-                                                          FONT, size, w - 2.4 * MM)]
-            lines.append(found)
-        return lines
+            text = row[k] if k < len(row) else ""
+            main.append(wrap(text, font, self.size, w - 2 * self.PAD) if text else [])
+            extra = subs[k] if k < len(subs) else ""
+            under.append(wrap(extra, FONT, self.sub_size, w - 2 * self.PAD) if extra else [])
+        return main, under
+
+    def _row_height(self, i: int, widths: list[float]) -> float:
+        main, under = self._cells(i, widths)
+        return max(self._cell_height(len(first), len(second))
+                   for first, second in zip(main, under, strict=True))
+
+    def _cell_height(self, lines: int, subs: int) -> float:
+        """A cell's height: its first lines, then its second lines right under them."""
+        return self.size * (1.55 + 1.2 * (max(lines, 1) - 1)) + self.sub_size * 1.12 * subs
 
     def _row_heights(self, width: float) -> list[float]:
-        if not self.sub:
-            return [self.size * 1.55] * len(self.rows)
         widths = self._widths(width)
-        return [self.size * 1.55 + self.size * 0.9 * max(
-            [1] + [len(c) for c in self._sub_lines(i, widths)]) for i in range(len(self.rows))]
+        return [self._row_height(i, widths) for i in range(len(self.rows))]
 
-    @property
-    def header_height(self) -> float:
-        return self.size * 1.25 * self.title_rows + self.size * 0.6
+    def _title_size(self, title: str, width: float) -> float:
+        """The header's size in a column: made smaller (to 3/4) so its longest word fits."""
+        longest = max(title.replace("\n", " ").split(" "), key=len, default="")
+        return fit_size(longest, FONT_BOLD, self.size, width - 2 * self.PAD, self.size * 0.75)
+
+    def _titles(self, widths: list[float]) -> list[list[str]]:
+        return [[line for part in col.title.split("\n")
+                 for line in wrap(part, FONT_BOLD, self._title_size(col.title, w),
+                                  w - 2 * self.PAD)]
+                for col, w in zip(self.columns, widths, strict=True)]
+
+    def _header_height(self, width: float) -> float:
+        lines = max([self.title_rows] + [len(t) for t in self._titles(self._widths(width))])
+        return self.size * 1.25 * lines + self.size * 0.6
 
     def height(self, width: float) -> float:
-        return self.header_height + sum(self._row_heights(width)) + 2.0
+        return self._header_height(width) + sum(self._row_heights(width)) + 2.0
 
     def split(self, width: float, available: float) -> tuple[Block, Block] | None:
-        room = available - self.header_height - 2.0
+        room = available - self._header_height(width) - 2.0
         n = 0
         for h in self._row_heights(width):
             if room < h:
@@ -235,33 +274,23 @@ class Table(Block):
                        shade=tuple(i - n for i in self.shade if i >= n))
         return first, rest
 
-    def _widths(self, width: float) -> list[float]:
-        total = sum(col.width for col in self.columns)
-        return [col.width / total * width for col in self.columns]
-
     def draw(self, c: Canvas, x: float, y_top: float, width: float) -> None:
         widths = self._widths(width)
-        pad = 1.2 * MM
-        hh = self.header_height
+        pad = self.PAD
+        hh = self._header_height(width)
         c.setFillColor(LIGHT)
         c.rect(x, y_top - hh, width, hh, stroke=0, fill=1)
         c.setFillColor(INK)
-        c.setFont(FONT_BOLD, self.size)
         cx = x
-        for col, w in zip(self.columns, widths, strict=True):
-            parts = col.title.split("\n")
-            for k, part in enumerate(parts):
-                ty = y_top - self.size * 1.15 - k * self.size * 1.25
-                fitted = self.size
-                while fitted > self.size * 0.75 and \
-                        stringWidth(safe(part), FONT_BOLD, fitted) > w - 2 * pad:
-                    fitted -= 0.25
-                _cell(c, part, col.align, cx, w, pad, ty, FONT_BOLD, fitted)
+        for col, w, titles in zip(self.columns, widths, self._titles(widths), strict=True):
+            size = self._title_size(col.title, w)
+            for k, line in enumerate(titles):
+                _cell(c, line, col.align, cx, w, pad, y_top - self.size * (1.15 + 1.25 * k),
+                      FONT_BOLD, size)
             cx += w
         y = y_top - hh
-        heights = self._row_heights(width)
-        for i, row in enumerate(self.rows):
-            rh = heights[i]
+        for i in range(len(self.rows)):
+            rh = self._row_height(i, widths)
             if i in self.shade:
                 c.setFillColor(LIGHT)
                 c.rect(x, y - rh, width, rh, stroke=0, fill=1)
@@ -270,17 +299,16 @@ class Table(Block):
                 c.rect(x, y - rh, width, rh, stroke=0, fill=1)
             c.setFillColor(INK)
             font = FONT_BOLD if i in self.shade else FONT
+            main, under = self._cells(i, widths)
             cx = x
-            for k, (col, w) in enumerate(zip(self.columns, widths, strict=True)):
-                text = row[k] if k < len(row) else ""
-                _cell(c, text, col.align, cx, w, pad, y - self.size * 1.1, font, self.size)
-                lines = self._sub_lines(i, widths)
-                if lines and lines[k]:
-                    c.setFillColor(GREY)
-                    for j, line in enumerate(lines[k]):
-                        _cell(c, line, col.align, cx, w, pad,
-                              y - self.size * 2.05 - j * self.size * 0.9, FONT, self.size * 0.85)
-                    c.setFillColor(INK)
+            for col, w, first, second in zip(self.columns, widths, main, under, strict=True):
+                for k, line in enumerate(first):
+                    _cell(c, line, col.align, cx, w, pad, y - self.size * (1.1 + 1.2 * k),
+                          font, self.size)
+                below = y - self.size * (1.1 + 1.2 * (max(len(first), 1) - 1))
+                for j, line in enumerate(second):
+                    _cell(c, line, col.align, cx, w, pad,
+                          below - self.sub_size * 1.12 * (j + 1), FONT, self.sub_size)
                 cx += w
             y -= rh
         c.setStrokeColor(GREY)
@@ -288,9 +316,41 @@ class Table(Block):
         c.line(x, y, x + width, y)
 
 
+@lru_cache(maxsize=256)
+def _column_widths(table: Table, width: float) -> tuple[float, ...]:
+    """Column widths (points) filling ``width``: each column at least as wide as its widest
+    word (numbers are never broken), the rest of the room shared by the columns' shares."""
+    shares = [col.width for col in table.columns]
+    need = []
+    for k, col in enumerate(table.columns):
+        words = [w for part in col.title.split("\n") for w in part.split(" ")]
+        widest = max((stringWidth(safe(w), FONT_BOLD, table.size * 0.75) for w in words),
+                     default=0.0)
+        for i, row in enumerate(table.rows):
+            font = FONT_BOLD if i in table.shade else FONT
+            if k < len(row):
+                for word in row[k].split(" "):
+                    widest = max(widest, stringWidth(safe(word), font, table.size))
+            if table.sub and i < len(table.sub) and k < len(table.sub[i]):
+                for word in table.sub[i][k].split(" "):
+                    widest = max(widest, stringWidth(safe(word), FONT, table.sub_size))
+        need.append(widest + 2 * Table.PAD + 0.5)
+    spare = width - sum(need)
+    if spare < 0:  # too many columns for the page: words may break, but the table fits
+        return tuple(n * width / sum(need) for n in need)
+    # share the room so that each column gets closest to its share of the width
+    target = [sh / sum(shares) * width for sh in shares]
+    extra = [max(0.0, t - n) for t, n in zip(target, need, strict=True)]
+    scale = spare / sum(extra) if sum(extra) > 0 else 0.0
+    widths = [n + e * scale for n, e in zip(need, extra, strict=True)]
+    if sum(extra) == 0:
+        widths = [n + spare / len(need) for n in need]
+    return tuple(widths)
+
+
 def _cell(c: Canvas, text: str, align: str, x: float, w: float, pad: float, y: float,
           font: str, size: float) -> None:
-    text = fit_text(text, font, size, w - 2 * pad)
+    text = safe(text)
     c.setFont(font, size)
     if align == "right":
         c.drawRightString(x + w - pad, y, text)
@@ -302,25 +362,36 @@ def _cell(c: Canvas, text: str, align: str, x: float, w: float, pad: float, y: f
 
 @dataclass(frozen=True)
 class KeyValues(Block):
-    """Label: value lines in two columns of text, labels in grey."""
+    """Label: value lines in two columns of text, labels in grey; long values wrap."""
 
     items: tuple[tuple[str, str], ...]
     size: float = 9.5
     label_share: float = 0.3
 
+    def _lines(self, width: float) -> list[tuple[list[str], list[str]]]:
+        lw = width * self.label_share
+        return [(wrap(label, FONT, self.size, lw - 2 * MM), wrap(value, FONT, self.size,
+                                                               width - lw))
+                for label, value in self.items]
+
     def height(self, width: float) -> float:
-        return len(self.items) * self.size * 1.45 + self.size * 0.4
+        rows = sum(max(len(a), len(b)) for a, b in self._lines(width))
+        return rows * self.size * 1.45 + self.size * 0.4
 
     def draw(self, c: Canvas, x: float, y_top: float, width: float) -> None:
         y = y_top - self.size * 1.1
         lw = width * self.label_share
-        for label, value in self.items:
-            c.setFont(FONT, self.size)
-            c.setFillColor(GREY)
-            c.drawString(x, y, fit_text(label, FONT, self.size, lw - 2 * MM))
-            c.setFillColor(INK)
-            c.drawString(x + lw, y, fit_text(value, FONT, self.size, width - lw))
-            y -= self.size * 1.45
+        c.setFont(FONT, self.size)
+        for labels, values in self._lines(width):
+            for k in range(max(len(labels), len(values))):
+                if k < len(labels):
+                    c.setFillColor(GREY)
+                    c.drawString(x, y, labels[k])
+                if k < len(values):
+                    c.setFillColor(INK)
+                    c.drawString(x + lw, y, values[k])
+                y -= self.size * 1.45
+        c.setFillColor(INK)
 
 
 def flow(blocks: Sequence[Block], width: float, height: float) -> list[list[Block]]:
@@ -372,26 +443,40 @@ def _draw_blocks(blocks: tuple[Block, ...], top_gap: float) -> Draw:
     return draw
 
 
+def _fitted(c: Canvas, text: str, font: str, size: float, x: float, y: float, width: float,
+            right: bool = False, upward: bool = True) -> None:
+    """``text`` at ``size`` or smaller (down to 6.5 pt) to fit ``width``; if even that does
+    not fit, on two or more lines (stacked upwards from ``y``, or downwards)."""
+    size = fit_size(text, font, size, width, 6.5)
+    lines = wrap(text, font, size, width)
+    c.setFont(font, size)
+    order = list(reversed(lines)) if upward else lines
+    for k, line in enumerate(order):
+        ly = y + k * size * 1.1 if upward else y - k * size * 1.1
+        if right:
+            c.drawRightString(x + width, ly, line)
+        else:
+            c.drawString(x, ly, line)
+
+
 def draw_chrome(c: Canvas, frame: Frame, instrument: str, page: Page, number: int,
                 total: int, footer: str) -> None:
     """Header (instrument, section) and footer (file, page N of M) around a page."""
     y = frame.top + 3.5 * MM
     c.setFillColor(INK)
-    c.setFont(FONT_BOLD, 9)
     right = page.section + (f" — {page.label}" if page.label else "")
-    right_w = min(stringWidth(safe(right), FONT, 9), frame.content_width * 0.55)
-    c.drawString(frame.left, y, fit_text(instrument, FONT_BOLD, 9,
-                                         frame.content_width - right_w - 6 * MM))
-    c.setFont(FONT, 9)
-    c.drawRightString(frame.right, y, fit_text(right, FONT, 9, frame.content_width * 0.55))
+    right_w = min(stringWidth(safe(right), FONT, 9) + 1.0, frame.content_width * 0.45)
+    left_w = frame.content_width - right_w - 6 * MM
+    _fitted(c, instrument, FONT_BOLD, 9, frame.left, y, left_w)
+    _fitted(c, right, FONT, 9, frame.right - right_w, y, right_w, right=True)
     c.setStrokeColor(GREY)
     c.setLineWidth(0.5)
     c.line(frame.left, y - 2 * MM, frame.right, y - 2 * MM)
     fy = frame.bottom - FOOTER_GAP
     c.line(frame.left, fy + 3.5 * MM, frame.right, fy + 3.5 * MM)
-    c.setFont(FONT, 7.5)
     c.setFillColor(GREY)
-    c.drawString(frame.left, fy, fit_text(footer, FONT, 7.5, frame.content_width * 0.7))
+    _fitted(c, footer, FONT, 7.5, frame.left, fy, frame.content_width * 0.75, upward=False)
+    c.setFont(FONT, 7.5)
     c.drawRightString(frame.right, fy, f"page {number} of {total}")
     c.setFillColor(INK)
 

@@ -17,7 +17,7 @@ from compiler.emit.pdf.document import (
     Page,
     Paragraph,
     Spacer,
-    fit_text,
+    fit_size,
     flow_pages,
 )
 from compiler.emit.pdf.plots import CurvePlot, ErrorPlot
@@ -85,10 +85,9 @@ class Chart(Block):
         c.setFont(FONT_BOLD, self.size)
         base = y_top - 5.5 * MM
         c.drawString(x + 1.5 * MM, base, "note")
-        c.setFont(FONT_BOLD, 7)
         for i, hole in enumerate(self.holes):
-            c.drawCentredString(x + note_w + 2 * MM + (i + 0.5) * PITCH, base,
-                                fit_text(hole.label, FONT_BOLD, 7, PITCH))
+            c.setFont(FONT_BOLD, fit_size(hole.label, FONT_BOLD, 7, PITCH - 0.5 * MM, 4))
+            c.drawCentredString(x + note_w + 2 * MM + (i + 0.5) * PITCH, base, safe(hole.label))
         c.setFont(FONT_BOLD, self.size)
         for k, title in enumerate(("target Hz", "predicted Hz", "error cents")):
             c.drawRightString(cols[k + 1] - 1.5 * MM, base, title)

@@ -22,7 +22,7 @@ from compiler.emit.pdf.document import (
     Page,
     Spacer,
     Table,
-    fit_text,
+    fit_size,
     flow,
     wrap,
 )
@@ -147,19 +147,21 @@ def holes_table(pipe: Pipe, inches: bool) -> Table:
 
 
 def _title(c: Canvas, frame: Frame, title: str, line: str) -> None:
+    """The page's title and a line under it, made smaller (and the line wrapped) to fit."""
     c.setFillColor(INK)
-    c.setFont(FONT_BOLD, 14)
-    c.drawString(frame.left, frame.top - 6 * MM, fit_text(title, FONT_BOLD, 14,
-                                                        frame.content_width))
-    c.setFont(FONT, 9)
+    c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 14, frame.content_width, 9))
+    c.drawString(frame.left, frame.top - 6 * MM, safe(title))
+    size = fit_size(line, FONT, 9, frame.content_width, 7)
+    c.setFont(FONT, size)
     c.setFillColor(GREY)
-    c.drawString(frame.left, frame.top - 11 * MM, fit_text(line, FONT, 9, frame.content_width))
+    for k, text in enumerate(wrap(line, FONT, size, frame.content_width)[:2]):
+        c.drawString(frame.left, frame.top - 10.5 * MM - k * size * 1.1, text)
     c.setFillColor(INK)
 
 
 def _pipe_page(pipe: Pipe, group: Group, inches: bool) -> Draw:
     def draw(c: Canvas, frame: Frame) -> None:
-        _title(c, frame, pipe.id, describe(pipe) + f" · spec {pipe.source}")
+        _title(c, frame, pipe.id, describe(pipe) + f" · spec {pipe.source.shown()}")
         top = frame.top - TITLE_BAND
         width = frame.content_width
         holes = holes_table(pipe, inches) if pipe.holes else None
@@ -213,7 +215,7 @@ def group_table(group: Group, pipes: Sequence[Pipe], inches: bool) -> Table:
             lead = ("",) * (5 if named else 4)
             sub.append(lead + tuple(inch(values[d.name]) if d.name in values else ""
                                     for d in keyed) + ("", "") + (("",) if stocks else ()))
-    return Table(tuple(cols), tuple(rows), tuple(sub), size=7.5, title_rows=2)
+    return Table(tuple(cols), tuple(rows), tuple(sub), size=8, title_rows=2)
 
 
 def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: bool
@@ -298,10 +300,9 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
         lines.append(f"Calibrated: {group.calibration.parameter} = "
                      f"{group.calibration.value:.4f}, rms {group.calibration.rms_cents:.2f} "
                      "cents.")
-    c.setFillColor(GREY)
-    c.setFont(FONT, 7.5)
+    c.setFillColor(INK)  # these lines carry dimensions the cuts depend on: 8 pt, black
+    c.setFont(FONT, 8)
     for text in lines:
-        for line in wrap(text, FONT, 7.5, width):
+        for line in wrap(text, FONT, 8, width):
             c.drawString(x, yy, line)
-            yy -= 3.4 * MM
-    c.setFillColor(INK)
+            yy -= 3.5 * MM

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 
-from compiler.emit.pdf.document import Block, fit_text
+from compiler.emit.pdf.document import Block, fit_size
 from compiler.emit.pdf.style import DASHES, FONT, FONT_BOLD, GREY, INK, LIGHT, MM, SERIES, safe
 from compiler.resolve.model import Curve
 
@@ -95,9 +95,9 @@ def _frame(c: Canvas, ax: Axes, y_ticks: Sequence[float], y_label: str, x_label:
 
 
 def _title(c: Canvas, x: float, y: float, title: str, width: float) -> None:
-    c.setFont(FONT_BOLD, 10)
+    c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 10, width, 6.5))
     c.setFillColor(INK)
-    c.drawString(x, y - 4 * MM, fit_text(title, FONT_BOLD, 10, width))
+    c.drawString(x, y - 4 * MM, title)
 
 
 @dataclass(frozen=True)
@@ -233,7 +233,7 @@ class CurvePlot(Block):
         lx = ax.x + ax.w
         c.setFont(FONT, 7.5)
         for k, cu in reversed(list(enumerate(self.curves))):
-            text = fit_text(cu.label, FONT, 7.5, 45 * MM)
+            text = cu.label
             lx -= stringWidth(text, FONT, 7.5) + 12 * MM
             c.setStrokeColor(SERIES[k % len(SERIES)])
             c.setLineWidth(1.0)

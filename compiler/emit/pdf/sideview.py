@@ -16,7 +16,7 @@ from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 
 from compiler.emit.pdf import dimensions as D
-from compiler.emit.pdf.document import fit_text
+from compiler.emit.pdf.document import wrap
 from compiler.emit.pdf.style import (
     ACCENT,
     FAINT,
@@ -239,8 +239,12 @@ def _dim_label(dim: D.Dim, inches: bool, key: bool) -> str:
     return text + (f" ({inch(dim.value_m)} in)" if inches else "")
 
 
+TEXT_PT = 8.0
+"""Dimension labels and callouts: at least 8 pt and black, since the cuts depend on them."""
+
+
 def _font(key: bool) -> tuple[str, float]:
-    return (FONT_BOLD, 10.0) if key else (FONT, 7.5)
+    return (FONT_BOLD, 10.0) if key else (FONT, TEXT_PT)
 
 
 def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
@@ -252,7 +256,8 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
     calls = [co for co in view.callouts if co.key_text or not key]
     labels = [_dim_label(v.dim, inches, key) for v in vdims]
     texts = [co.key_text if key else co.text for co in calls]
-    left = min(max((stringWidth(t, FONT, 7.5) for t in texts), default=0.0) + 9 * MM, w * 0.55)
+    left = min(max((stringWidth(t, FONT, TEXT_PT) for t in texts), default=0.0) + 9 * MM,
+               w * 0.55)
     if not texts:
         left = 4 * MM
     top_res = 3 * MM + LEVEL * sum(1 for d in hdims if d.above)
@@ -451,29 +456,34 @@ def _hdim(c: Canvas, x0: float, x1: float, fy: float, ly: float, label: str, fon
 
 def _callouts(c: Canvas, calls: list[Callout], texts: list[str], at: ToPage, x_min: float,
               text_right: float, y_min: float, y_max: float) -> None:
-    """Leader callouts on the left, spread apart so that no two labels touch."""
+    """Leader callouts on the left, spread apart so that no two labels touch; a label
+    wider than the room wraps onto more lines (never cut short)."""
     if not calls:
         return
-    size = 7.5
-    gap = size * 1.35
+    size = TEXT_PT
+    step = size * 1.15
+    gap = size * 0.35
+    lines = [wrap(t, FONT, size, max(text_right - x_min, 20 * MM)) for t in texts]
     targets = [at(co.x, co.y) for co in calls]
     order = sorted(range(len(calls)), key=lambda i: (-targets[i][1], i))
-    ys: dict[int, float] = {}
+    ys: dict[int, float] = {}  # the first line's baseline
     last = y_max - size
     for i in order:
         ys[i] = min(targets[i][1] - size * 0.35, last)
-        last = ys[i] - gap
+        last = ys[i] - (len(lines[i]) - 1) * step - step - gap
     low = y_min + size * 0.5
     for i in reversed(order):
-        if ys[i] < low:
-            ys[i] = low
-        low = ys[i] + gap
+        bottom = ys[i] - (len(lines[i]) - 1) * step
+        if bottom < low:
+            ys[i] += low - bottom
+        low = ys[i] + step + gap
     c.setFont(FONT, size)
     for i in order:
         tx, ty = targets[i]
         ly = ys[i]
         c.setFillColor(INK)
-        c.drawRightString(text_right, ly, fit_text(texts[i], FONT, size, text_right - x_min))
+        for k, line in enumerate(lines[i]):
+            c.drawRightString(text_right, ly - k * step, line)
         c.setStrokeColor(GREY)
         c.setLineWidth(0.35)
         c.line(text_right + 1.0 * MM, ly + size * 0.35, tx, ty)

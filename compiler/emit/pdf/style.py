@@ -15,8 +15,12 @@ negative zero shown as zero), so a value in ``resolved.json`` appears digit for 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
+from importlib import resources
 
 from reportlab.lib.colors import Color
+from reportlab.pdfbase import pdfmetrics
+from reportlab.pdfbase.ttfonts import TTFont
 
 MM = 72.0 / 25.4
 """Points per millimetre: the one scale between the page (points) and the drawings (mm)."""
@@ -26,9 +30,36 @@ INCH_M = 0.0254
 PAPER_MM: dict[str, tuple[float, float]] = {"a4": (210.0, 297.0), "letter": (215.9, 279.4)}
 """Portrait page sizes in millimetres (ISO 216 A4; ANSI letter, 8.5 × 11 in)."""
 
-FONT = "Helvetica"
-FONT_BOLD = "Helvetica-Bold"
-FONT_MONO = "Courier"
+FONT = "DejaVuSans"
+FONT_BOLD = "DejaVuSans-Bold"
+FONT_FILES = {FONT: "DejaVuSans.ttf", FONT_BOLD: "DejaVuSans-Bold.ttf"}
+"""DejaVu Sans, shipped in ``compiler/emit/pdf/fonts/`` with its licence (Bitstream Vera
+licence, free to redistribute) and embedded in every build sheet: the build never depends on
+the fonts of the machine, and the text covers the foot mark (8′), the degree and diameter
+signs and the Latin letters of Polish, Czech, German... names (Łódź, Dvořák, Große)."""
+
+REPERTOIRE = "".join(chr(c) for c in (*range(0xA1, 0x100), *range(0x100, 0x180))) + (
+    "′″‘’“”–—…•·×÷−±≈≤≥→←↑↓µΩπθΔ½¼¾⅛⅜⅝⅞⁄€")
+"""Characters given fixed codes at the start of every build sheet, in this order: Latin-1,
+Latin Extended-A and the signs the sheets use. reportlab numbers a TrueType font's characters
+in the order a document first uses them; fixing the order for these keeps a page body's
+drawing the same whatever came before it, so a rebuild can replay it (see ``__init__``)."""
+
+
+@lru_cache(maxsize=1)
+def register_fonts() -> tuple[TTFont, ...]:
+    """Register the shipped fonts with reportlab (once a process); returns them."""
+    folder = resources.files("compiler.emit.pdf") / "fonts"
+    fonts = []
+    for name, file in FONT_FILES.items():
+        with resources.as_file(folder / file) as path:
+            font = TTFont(name, str(path))
+        pdfmetrics.registerFont(font)
+        fonts.append(font)
+    return tuple(fonts)
+
+
+register_fonts()
 
 INK = Color(0, 0, 0)
 GREY = Color(0.45, 0.45, 0.45)
@@ -146,8 +177,15 @@ def uses_inches(units: str) -> bool:
 
 
 def safe(text: str) -> str:
-    """Text the standard PDF fonts can show (Windows-1252); other characters become ``?``."""
-    return text.encode("cp1252", errors="replace").decode("cp1252")
+    """Text the embedded font can show; a character it has no glyph for becomes ``?``."""
+    glyphs = _glyphs()
+    return "".join(ch if ord(ch) in glyphs or ch in "\n\t" else "?" for ch in text)
+
+
+@lru_cache(maxsize=1)
+def _glyphs() -> frozenset[int]:
+    regular, bold = register_fonts()
+    return frozenset(regular.face.charToGlyph) & frozenset(bold.face.charToGlyph)
 
 
 def strip_prefix(pipe_id: str, group: str) -> str:

@@ -22,7 +22,18 @@ from dataclasses import dataclass
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.pdfgen.pathobject import PDFPathObject
 
-from compiler.emit.pdf.document import Draw, Page, fit_text, wrap
+from compiler.emit.pdf.document import (
+    Block,
+    Column,
+    Draw,
+    Heading,
+    Page,
+    Paragraph,
+    Table,
+    fit_size,
+    flow,
+    wrap,
+)
 from compiler.emit.pdf.style import (
     FAINT,
     FONT,
@@ -35,6 +46,7 @@ from compiler.emit.pdf.style import (
     safe,
 )
 from compiler.geometry.model import Circle, Part, Parts, Polyline, Text
+from compiler.geometry.paths import text_centre
 
 SECTION = "Templates"
 OVERLAP_MM = 10.0
@@ -42,11 +54,21 @@ INSET_MM = 4.0
 """Paper left around the part inside the tiled area."""
 OUTLINE_TILES = 4
 OUTLINE_PAGES = 24
-TITLE_BAND = 13 * MM
+TITLE_BAND = 18 * MM
 BAR_BAND = 22 * MM
 BAR_MM = 100.0
 BAR_IN_MM = 4 * 25.4
 NOTE = "Print at 100 % (actual size); check this bar before cutting"
+CAPTION_PT = 8.0
+CAPTION_MIN_MM = 50.0
+"""Small templates share a page; each has a caption under it at least this wide."""
+GAP_MM = 4.0
+
+
+def size_text(part: Part) -> str:
+    """``length × width`` in mm, the one size order of every output."""
+    length, width = part.length_by_width
+    return f"{mm_of(length)} × {mm_of(width)}"
 
 
 @dataclass(frozen=True)
@@ -137,8 +159,8 @@ class Choice:
     used_by: tuple[str, ...]
 
 
-def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], int]:
-    """The templates to print, and how many distinct outlines were left to the DXF files."""
+def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
+    """The templates to print, and the parts whose outlines were left to the DXF files."""
     ww, wh = window_size(frame)
     chosen: list[Choice] = []
     for part in parts.parts:
@@ -155,32 +177,112 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], int]:
             seen[sig] = []
             order.append(part)
         seen[sig].append(part.id)
-    pages, left_out = 0, 0
-    # Parts that fit one page first (languids, small feet, blocks): more of them make it
-    # into the page budget than if a few large tiled outlines came first.
+    left_out: list[str] = []
+    # Parts that fit one page first (languids, small feet, blocks): several share a page,
+    # so more of them make it into the page budget than if large tiled outlines came first.
     order.sort(key=lambda p: _tile_count(tiling(p.width_mm, p.height_mm, ww, wh)))
-    for part in order:
-        t = tiling(part.width_mm, part.height_mm, ww, wh)
-        need = t.rows * t.cols + (1 if t.rows * t.cols > 1 else 0)
-        if t.rows * t.cols > OUTLINE_TILES or pages + need > OUTLINE_PAGES:
-            left_out += 1
-            continue
-        pages += need
-        chosen.append(Choice(part, t, tuple(seen[_signature(part)])))
+    outlines = [Choice(p, tiling(p.width_mm, p.height_mm, ww, wh), tuple(seen[_signature(p)]))
+                for p in order]
+    small = [ch for ch in outlines if _tile_count(ch.tiles) == 1]
+    papers = [ch for ch in chosen if _tile_count(ch.tiles) == 1]
+    base = len(share_pages(papers, frame))
+
+    def pages_for(n: int) -> int:
+        return len(share_pages(papers + small[:n], frame)) - base
+
+    # the most small outlines whose shared pages stay within the budget (pages grow with n)
+    lo, hi = 0, len(small)
+    while lo < hi:
+        mid = (lo + hi + 1) // 2
+        lo, hi = (mid, hi) if pages_for(mid) <= OUTLINE_PAGES else (lo, mid - 1)
+    pages = pages_for(lo)
+    taken = {ch.part.id for ch in small[:lo]}
+    for ch in outlines:
+        tiles = _tile_count(ch.tiles)
+        if tiles == 1:
+            fits = ch.part.id in taken
+        else:
+            fits = tiles <= OUTLINE_TILES and pages + tiles + 1 <= OUTLINE_PAGES
+            pages += tiles + 1 if fits else 0
+        if fits:
+            chosen.append(ch)
+        else:
+            left_out += ch.used_by
     return chosen, left_out
 
 
+def _caption(part: Part, alike: int, width_mm: float) -> list[tuple[str, str]]:
+    """Caption lines under a small template: (font, text)."""
+    head = f"{part.id} ({part.name})"
+    size = f"{size_text(part)} mm at 1:1" + (f", also for {alike} more alike" if alike else "")
+    out = [(FONT_BOLD, line) for line in wrap(head, FONT_BOLD, CAPTION_PT, width_mm * MM)]
+    out += [(FONT, line) for line in wrap(size, FONT, CAPTION_PT, width_mm * MM)]
+    if part.note:
+        out += [(FONT, line) for line in wrap(part.note, FONT, CAPTION_PT, width_mm * MM)]
+    return out
+
+
+def _item_size(part: Part, alike: int = 0) -> tuple[float, float, float]:
+    """A small template's room on a shared page (mm): width, height, caption height."""
+    width = max(part.width_mm + 2 * INSET_MM, CAPTION_MIN_MM)
+    caption = len(_caption(part, alike, width)) * CAPTION_PT * 1.2 / MM + 1.0
+    return width, part.height_mm + 2 * INSET_MM + caption, caption
+
+
+@dataclass(frozen=True)
+class Spot:
+    """A small template's place on a shared page: its room's lower-left corner (mm, in the
+    drawing window)."""
+
+    choice: Choice
+    x: float
+    y: float
+
+
+def share_pages(singles: list[Choice], frame: Frame) -> list[tuple[Spot, ...]]:
+    """Small templates packed several to a page: shelves from the top, kind by kind (all
+    handles together: a change to one kind of part leaves the other kinds' pages as they
+    were), tallest first."""
+    ww, wh = window_size(frame)
+    items = sorted(singles, key=lambda ch: (ch.part.kind != "template", ch.part.name,
+                                            -_item_size(ch.part, len(ch.used_by) - 1)[1],
+                                            ch.part.id))
+    pages: list[list[Spot]] = []
+    shelf_top = shelf_h = x = 0.0
+    for ch in items:
+        w, h, _ = _item_size(ch.part, len(ch.used_by) - 1)
+        if pages and x + w <= ww + 1e-6 and h <= shelf_h + 1e-6:
+            pass
+        elif pages and shelf_top + shelf_h + GAP_MM + h <= wh + 1e-6:
+            shelf_top += shelf_h + GAP_MM
+            shelf_h, x = h, 0.0
+        else:
+            pages.append([])
+            shelf_top, shelf_h, x = 0.0, h, 0.0
+        pages[-1].append(Spot(ch, x, wh - shelf_top - h))
+        x += w + GAP_MM
+    return [tuple(p) for p in pages]
+
+
 def pages(parts: Parts, frame: Frame) -> list[Page]:
-    """Index, assembly maps and tiles of every chosen template."""
+    """Index, shared pages of small templates, then assembly maps and tiles of the large."""
     chosen, left_out = choose(parts, frame)
     if not chosen:
         return []
-    out = [Page(SECTION, _index(chosen, left_out), "Templates",
-                key=("index", tuple(chosen), left_out))]
+    singles = [ch for ch in chosen if ch.tiles.rows * ch.tiles.cols == 1]
+    shared = share_pages(singles, frame)
+    where = {spot.choice.part.id: f"small templates, page {k + 1}"
+             for k, spots in enumerate(shared) for spot in spots}
+    out = _index_pages(chosen, where, left_out, frame)
+    for k, spots in enumerate(shared):
+        out.append(Page(SECTION, _shared(spots, k + 1, len(shared)),
+                        label=f"small templates {k + 1} of {len(shared)}",
+                        key=("shared", spots, k, len(shared))))
     for ch in chosen:
         t = ch.tiles
-        if t.rows * t.cols > 1:
-            out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map", key=("map", ch)))
+        if t.rows * t.cols == 1:
+            continue
+        out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map", key=("map", ch)))
         for r in range(t.rows):
             for c in range(t.cols):
                 out.append(Page(SECTION, _tile(ch, r, c),
@@ -194,49 +296,79 @@ def tile_label(part: Part, tiles: Tiling, row: int, col: int) -> str:
             f"({part.name})")
 
 
-def _index(chosen: list[Choice], left_out: int) -> Draw:
+def _index_pages(chosen: list[Choice], where: dict[str, str], left_out: list[str],
+                 frame: Frame) -> list[Page]:
+    """The section's first pages: how to print and join, what is printed and what not."""
+    blocks: list[Block] = [
+        Heading("Full-size templates", 14),
+        Paragraph("Each template is printed at 1:1. Print every page at 100 % (actual size, "
+                  "no 'fit to page') and measure the bars at the foot of the page first. "
+                  "Small templates share a page, each with its caption under it. A large "
+                  f"template is printed on several pages (tiles) that share a {OVERLAP_MM:.0f} "
+                  "mm strip (shaded): trim one tile at the edge of its drawing window, lay it "
+                  "over its neighbour so that the crosshairs coincide, and tape it; its "
+                  "assembly map shows where each tile goes.", 9.5),
+        Table((Column("template", 3.0), Column("length × width mm", 1.6),
+               Column("printed on", 1.6)),
+              tuple((f"{ch.part.id} ({ch.part.name})"
+                     + (f", also for {len(ch.used_by) - 1} alike" if len(ch.used_by) > 1
+                        else ""),
+                     size_text(ch.part),
+                     where.get(ch.part.id, f"{ch.tiles.rows}×{ch.tiles.cols} tiles"))
+                    for ch in chosen), size=9, min_rows=1),
+        Paragraph("Parts that are plain rectangles are not printed: measure them from the "
+                  "cut list.", 8.5),
+    ]
+    if left_out:
+        blocks += [Heading(f"Not printed here ({len(left_out)} parts)", 11),
+                   Paragraph("These outlines are too large or too many to print: cut them "
+                             "from the DXF files, or print those files at 1:1: "
+                             + ", ".join(left_out) + ".", 8.5)]
+    width = frame.content_width
+    found = flow(blocks, width, frame.content_height - BAR_BAND - 4 * MM)
+    return [Page(SECTION, _index(tuple(content)), "Templates" if k == 0 else "",
+                 key=("index", tuple(content)))
+            for k, content in enumerate(found)]
+
+
+def _index(blocks: tuple[Block, ...]) -> Draw:
     def draw(c: Canvas, frame: Frame) -> None:
-        y = frame.top - 6 * MM
-        c.setFont(FONT_BOLD, 14)
-        c.drawString(frame.left, y, "Full-size templates")
-        y -= 8 * MM
-        text = ("Each template is printed at 1:1 on as many pages (tiles) as it needs. Print "
-                "every page at 100 % (actual size, no 'fit to page') and measure the bars at "
-                f"the foot of the page first. Neighbouring tiles share a {OVERLAP_MM:.0f} mm "
-                "strip (shaded): trim one tile at the edge of its drawing window, lay it over "
-                "its neighbour so that the crosshairs coincide, and tape it. The assembly map "
-                "shows where each tile goes.")
-        c.setFont(FONT, 9.5)
-        for line in wrap(text, FONT, 9.5, frame.content_width):
-            c.drawString(frame.left, y, line)
-            y -= 4.6 * MM
-        y -= 3 * MM
-        c.setFont(FONT_BOLD, 9.5)
-        c.drawString(frame.left, y, "template")
-        c.drawString(frame.left + 95 * MM, y, "size (mm)")
-        c.drawString(frame.left + 135 * MM, y, "tiles")
-        y -= 5 * MM
-        c.setFont(FONT, 9.5)
-        for ch in chosen:
-            if y < frame.bottom + BAR_BAND + 12 * MM:
-                c.drawString(frame.left, y, "...")
-                break
-            extra = f" (+{len(ch.used_by) - 1} alike)" if len(ch.used_by) > 1 else ""
-            c.drawString(frame.left, y, fit_text(f"{ch.part.id} ({ch.part.name}){extra}",
-                                                 FONT, 9.5, 92 * MM))
-            c.drawString(frame.left + 95 * MM, y,
-                         f"{mm_of(ch.part.width_mm)} × {mm_of(ch.part.height_mm)}")
-            c.drawString(frame.left + 135 * MM, y, f"{ch.tiles.rows}×{ch.tiles.cols}")
-            y -= 4.8 * MM
-        if left_out:
-            y -= 2 * MM
-            c.setFillColor(GREY)
-            for line in wrap(f"{left_out} further part outline(s) are too large or too many "
-                             "to print here: cut them from the DXF files, or print those "
-                             "files at 1:1.", FONT, 9.5, frame.content_width):
-                c.drawString(frame.left, y, line)
-                y -= 4.6 * MM
-            c.setFillColor(INK)
+        y = frame.top
+        for block in blocks:
+            block.draw(c, frame.left, y, frame.content_width)
+            y -= block.height(frame.content_width)
+        calibration_bars(c, frame)
+
+    return draw
+
+
+def _shared(spots: tuple[Spot, ...], number: int, total: int) -> Draw:
+    def draw(c: Canvas, frame: Frame) -> None:
+        c.setFont(FONT_BOLD, 12)
+        c.setFillColor(INK)
+        c.drawString(frame.left, frame.top - 5.5 * MM,
+                     f"Small templates at 1:1 (page {number} of {total})")
+        c.setFont(FONT, 8)
+        c.drawString(frame.left, frame.top - 10 * MM,
+                     "Cut each out along its outline; its caption names it. Holes and marks "
+                     "are drawn where they go on the part.")
+        wx, wy = frame.left, frame.bottom + BAR_BAND
+        for spot in spots:
+            part = spot.choice.part
+            alike = len(spot.choice.used_by) - 1
+            w, _, caption = _item_size(part, alike)
+            c.saveState()
+            c.translate(wx + (spot.x + (w - part.width_mm) / 2) * MM,
+                        wy + (spot.y + caption + INSET_MM) * MM)
+            c.scale(MM, MM)
+            _entities(c, part)
+            c.restoreState()
+            y = wy + (spot.y + caption) * MM - CAPTION_PT
+            for font, line in _caption(part, alike, w):
+                c.setFont(font, CAPTION_PT)
+                c.setFillColor(INK)
+                c.drawString(wx + spot.x * MM, y, line)
+                y -= CAPTION_PT * 1.2
         calibration_bars(c, frame)
 
     return draw
@@ -278,23 +410,26 @@ def _entities(c: Canvas, part: Part) -> None:
         if isinstance(e, Circle):
             cx, cy = e.center
             c.circle(cx, cy, e.radius, stroke=1, fill=0)
-            arm = min(e.radius * 0.6, 3.0)
-            c.setLineWidth(0.15)
-            c.line(cx - arm, cy, cx + arm, cy)
-            c.line(cx, cy - arm, cx, cy + arm)
+            if e.operation != "cut-outer":  # a hole: its centre for the drill point
+                arm = min(e.radius * 0.6, 3.0)
+                c.setLineWidth(0.15)
+                c.line(cx - arm, cy, cx + arm, cy)
+                c.line(cx, cy - arm, cx, cy + arm)
             continue
         c.drawPath(polyline_path(c, e), stroke=1, fill=0)
     c.setDash([], 0)
-    c.setFillColor(GREY)
+    # Labels in black: hole labels carry the drill size. Drawn centred on the box the
+    # geometry stage kept free for them, as in the DXF files.
+    c.setFillColor(INK)
     for e in part.entities:
         if isinstance(e, Text):
             c.saveState()
-            c.translate(*e.insert)
+            c.translate(*text_centre(e))
             c.rotate(e.rotation_deg)
-            c.setFont(FONT, e.height / 0.72)
-            c.drawString(0, 0, safe(e.text))
+            size = e.height / 0.72
+            c.setFont(FONT, size)
+            c.drawCentredString(0, -size * 0.36, safe(e.text))
             c.restoreState()
-    c.setFillColor(INK)
 
 
 def polyline_path(c: Canvas, line: Polyline) -> PDFPathObject:
@@ -329,21 +464,19 @@ def _tile(ch: Choice, row: int, col: int) -> Draw:
     part, t = ch.part, ch.tiles
 
     def draw(c: Canvas, frame: Frame) -> None:
-        c.setFont(FONT_BOLD, 12)
-        c.drawString(frame.left, frame.top - 5.5 * MM,
-                     fit_text(tile_label(part, t, row, col), FONT_BOLD, 12,
-                              frame.content_width))
-        c.setFont(FONT, 8)
-        c.setFillColor(GREY)
-        info = (f"{mm_of(part.width_mm)} × {mm_of(part.height_mm)} mm at 1:1 · shaded strips "
-                f"overlap the next tile by {OVERLAP_MM:.0f} mm: match the crosshairs")
-        if part.note:
-            info += f" · {part.note}"
+        title = tile_label(part, t, row, col)
+        c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 12, frame.content_width, 8))
+        c.drawString(frame.left, frame.top - 5.5 * MM, safe(title))
+        info = (f"{size_text(part)} mm (length × width) at 1:1 · shaded strips overlap the "
+                f"next tile by {OVERLAP_MM:.0f} mm: match the crosshairs")
         if len(ch.used_by) > 1:
             info += f" · also for {len(ch.used_by) - 1} more part(s) alike"
-        c.drawString(frame.left, frame.top - 10 * MM, fit_text(info, FONT, 8,
-                                                               frame.content_width))
+        if part.note:
+            info += f" · {part.note}"
+        c.setFont(FONT, 8)
         c.setFillColor(INK)
+        for k, line in enumerate(wrap(info, FONT, 8, frame.content_width)[:3]):
+            c.drawString(frame.left, frame.top - (10 + 3.4 * k) * MM, line)
         x0, y0, x1, y1 = t.window(row, col)
         wx, wy = frame.left, frame.bottom + BAR_BAND
         c.saveState()
@@ -414,10 +547,9 @@ def _map(ch: Choice) -> Draw:
     part, t = ch.part, ch.tiles
 
     def draw(c: Canvas, frame: Frame) -> None:
-        c.setFont(FONT_BOLD, 12)
-        c.drawString(frame.left, frame.top - 5.5 * MM,
-                     fit_text(f"Assembly map — {part.id} ({part.name}): {t.rows}×{t.cols} "
-                              "tiles", FONT_BOLD, 12, frame.content_width))
+        title = f"Assembly map — {part.id} ({part.name}): {t.rows}×{t.cols} tiles"
+        c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 12, frame.content_width, 8))
+        c.drawString(frame.left, frame.top - 5.5 * MM, safe(title))
         c.setFont(FONT, 8)
         c.setFillColor(GREY)
         c.drawString(frame.left, frame.top - 10 * MM,

@@ -23,8 +23,9 @@ def sections(pages: list[str]) -> list[str]:
 def test_small_example_pages(small: tuple[Resolved, Parts], small_pages: list[str]) -> None:
     resolved, _ = small
     count = Counter(sections(small_pages))
-    # One cover, one cautions page, one cut-list page for this handful of parts.
-    assert (count["Cover"], count["Cautions"], count["Cut list"]) == (1, 1, 1)
+    # One cover, one cautions page, two cut-list pages for this handful of parts (notes in
+    # full under each size).
+    assert (count["Cover"], count["Cautions"], count["Cut list"]) == (1, 1, 2)
     # Groups of up to 12 pipes get a page per pipe: 3 + 1 + 3 + 1.
     assert count["Pipes"] == len(resolved.pipes) == 8
     # 14 fingerings, the error plot and the admittance plot fit one page.
@@ -56,7 +57,7 @@ def test_large_rank_gives_tens_of_pages_not_hundreds(large: tuple[Resolved, Part
     assert sorted(per_rank) == [g.id for g in resolved.groups]
     assert all(2 <= n <= 3 for n in per_rank.values()), per_rank
     assert count["Pipes"] == sum(per_rank.values())
-    assert 20 <= len(large_pages) <= 90
+    assert 20 <= len(large_pages) <= 110
 
 
 def test_large_build_is_fast(large: tuple[Resolved, Parts]) -> None:
