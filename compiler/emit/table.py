@@ -84,6 +84,21 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
     return lines
 
 
+def _trim_table(group: Group) -> list[str]:
+    """Trim advice for the group's measured pipes, in the spec's air."""
+    if not group.trims:
+        return []
+    lines = ["", f"trim advice for the measured pipes, to sound their targets at "
+             f"{group.air.temperature_c:.1f} C:"]
+    rows = [["note", "built mm", "measured Hz", "at C", "in spec air Hz", "target Hz",
+             "off cents", "change mm", "advice"]]
+    rows += [[t.note, _mm(t.built_length_m), f"{t.measured_hz:.2f}",
+              f"{t.measured_temperature_c:.1f}", f"{t.in_spec_air_hz:.2f}",
+              f"{t.target_hz:.2f}", f"{t.off_cents:+.2f}", f"{t.change_m * 1000:+.2f}",
+              t.advice] for t in group.trims]
+    return lines + _align(rows, right={1, 2, 3, 4, 5, 6, 7})
+
+
 def render(resolved: Resolved) -> str:
     """All groups, one aligned table each, then the warnings."""
     by_id = {p.id: p for p in resolved.pipes}
@@ -94,4 +109,5 @@ def render(resolved: Resolved) -> str:
         lines.append("")
         lines += _group_table(group, [by_id[i] for i in group.pipe_ids],
                               resolved.fabrication.units in ("in", "ft"))
+        lines += _trim_table(group)
     return "\n".join(lines) + "\n"

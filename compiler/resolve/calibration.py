@@ -14,6 +14,7 @@ import math
 from collections.abc import Callable, Collection, Sequence
 from dataclasses import dataclass
 
+from compiler.acoustics import simple
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError
 from compiler.resolve.model import Calibration, Residual
@@ -34,6 +35,11 @@ class Observation:
     measured_hz: float
     predict: Callable[[float], float]
     """Model frequency for this prototype as a function of the scale factor."""
+    pipe: simple.PipeAcoustics | None = None
+    """The prototype's uncalibrated model, its harmonic and speaking length as built (for
+    the trim advice, ``compiler.resolve.trim``)."""
+    harmonic: int = 1
+    length_m: float = 0.0
 
 
 def uncalibrated() -> Calibration:

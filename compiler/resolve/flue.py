@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from compiler.acoustics import simple
 from compiler.errors import PhysicsError
-from compiler.resolve import calibration, plain
+from compiler.resolve import calibration, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.model import (
     Block,
@@ -125,14 +125,18 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
     stock = spec.stock_named(rank.stock)
     assert stock is not None
     warnings = list(air.warnings)
-    fit = calibration.fit_measured(
-        rank.measured, rank.notes, f"rank `{rank.id}`", "measure a pipe of this rank",
-        lambda m: _observation(rank, spec, stock, air, m))
+    def observe(m: spec_model.Measurement) -> calibration.Observation:
+        return _observation(rank, spec, stock, air, m)
+
+    fit = calibration.fit_measured(rank.measured, rank.notes, f"rank `{rank.id}`",
+                                   "measure a pipe of this rank", observe)
     pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings) for note in rank.notes]
     group = Group(
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
         air=air.report, end_correction_model=rank.end_correction.model, calibration=fit,
-        holder=None, pipe_ids=tuple(p.id for p in pipes))
+        holder=None, pipe_ids=tuple(p.id for p in pipes),
+        trims=trim.advise(rank.measured, observe, fit.value, air, pipes,
+                          spec.fabrication.precision_m))
     return group, pipes, warnings
 
 
@@ -198,7 +202,8 @@ def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model
     override = _override(rank, m.note)
     target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
     base = _acoustics(rank, section, width, cutup, lip, stock.thickness_m, 1.0)
-    return plain.observation(base, m, target, rank.harmonic, air, step)
+    return plain.observation(base, m, target, rank.harmonic, air, step,
+                             (spec.fabrication.allowance_fraction, spec.fabrication.allowance_m))
 
 
 def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,

@@ -245,6 +245,35 @@ class Pipe:
 
 
 @dataclass(frozen=True)
+class Trim:
+    """What to do to a measured pipe, as built, so it sounds its target in the spec's air."""
+
+    pipe_id: str
+    note: str
+    measured_hz: float
+    measured_temperature_c: float
+    built_length_m: float
+    """Speaking length as built: the ``measured`` entry's length, else as boresmith had it
+    cut from the uncalibrated spec (an open pipe with its tuning allowance on)."""
+    in_spec_air_hz: float
+    """The measured pitch carried to the spec's air by the model."""
+    target_hz: float
+    off_cents: float
+    """``in_spec_air_hz`` against the target: positive is sharp."""
+    change_m: float
+    """New minus built speaking length: negative shortens (cut off, or stopper in)."""
+    new_length_m: float
+    cents_per_mm: float
+    """The model's own sensitivity at the built length, in the spec's air."""
+    action: str
+    """``cut``, ``lengthen``, ``stopper in``, ``stopper out``, ``plug in``, ``plug out``,
+    ``cap down``, ``cap up`` or ``none`` (in tune within the precision)."""
+    advice: str
+    """In the maker's words, with the amount rounded to the spec's precision."""
+    source: Position
+
+
+@dataclass(frozen=True)
 class Group:
     """A rank, a tube set or a flute, with what applies to all of its pipes."""
 
@@ -258,6 +287,8 @@ class Group:
     calibration: Calibration
     holder: Holder | None
     pipe_ids: tuple[str, ...]
+    trims: tuple[Trim, ...] = ()
+    """Trim advice for each measured pipe (ranks and tube sets)."""
 
 
 @dataclass(frozen=True)

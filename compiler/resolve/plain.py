@@ -96,22 +96,28 @@ def equivalent_radius(width_m: float, depth_m: float) -> float:
 
 
 def observation(pipe: simple.PipeAcoustics, measured: Measurement, target_hz: float,
-                harmonic: int, air: GroupAir, precision_m: float) -> calibration.Observation:
+                harmonic: int, air: GroupAir, precision_m: float,
+                allowance: tuple[float, float] = (0.0, 0.0)) -> calibration.Observation:
     """The model of one measured prototype, as a function of the calibration factor.
 
-    The prototype is as long as the spec says it was built, else as long as the
-    uncalibrated model made it (rounded as cut); it sounded in air at the measured
-    temperature.
+    The prototype is as long as the spec says it was built, else as the uncalibrated model
+    had it cut: its speaking length rounded to the precision, and for an open pipe the
+    tuning ``allowance`` (fraction, metres) still on it, since makers cut long, measure,
+    then trim (a stopper or plug is set at the speaking length instead). It sounded in air
+    at the measured temperature.
     """
     length = measured.length_m
     if length is None:
         length = round_to(simple.solve_length(pipe, target_hz, air.state.speed_m_s,
                                               harmonic)[0], precision_m)
+        if not pipe.stopped:
+            length += round_to(length * allowance[0] + allowance[1], precision_m)
     speed = air.at_temperature(measured.temperature_k).speed_m_s
     built = length
 
     def predict(s: float) -> float:
         return simple.predict_frequency(scaled(pipe, s), built, speed, harmonic)
 
-    return calibration.Observation(note_name(measured.note), measured.frequency_hz, predict)
+    return calibration.Observation(note_name(measured.note), measured.frequency_hz, predict,
+                                   pipe, harmonic, built)
 

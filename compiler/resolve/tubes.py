@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from compiler.acoustics import simple
 from compiler.errors import PhysicsError
-from compiler.resolve import calibration, plain
+from compiler.resolve import calibration, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.model import Group, Holder, Note, Pipe, Stopper
 from compiler.resolve.targets import target_hz
@@ -85,8 +85,9 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
 
     def observe(m: spec_model.Measurement) -> calibration.Observation:
         target, stock = chosen[m.note]
+        fab = spec.fabrication
         return plain.observation(_acoustics(tubes, stock, 1.0), m, target, tubes.harmonic,
-                                 air, spec.fabrication.precision_m)
+                                 air, fab.precision_m, (fab.allowance_fraction, fab.allowance_m))
 
     fit = calibration.fit_measured(tubes.measured, tuple(chosen), f"tube set `{tubes.id}`",
                                    "measure a tube of this set", observe)
@@ -134,5 +135,7 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
     group = Group(id=tubes.id, kind="tube-set", family=tubes.family,
                   construction="stock-tube", air=air.report,
                   end_correction_model=tubes.end_correction.model, calibration=fit,
-                  holder=holder, pipe_ids=tuple(p.id for p in pipes))
+                  holder=holder, pipe_ids=tuple(p.id for p in pipes),
+                  trims=trim.advise(tubes.measured, observe, fit.value, air, pipes,
+                                    fab.precision_m))
     return group, pipes, list(air.warnings)

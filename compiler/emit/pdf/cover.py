@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from compiler.emit.pdf import trims
 from compiler.emit.pdf.document import (
     Block,
     Column,
@@ -155,7 +156,8 @@ def pages(resolved: Resolved, frame: Frame, contents: Sequence[tuple[str, int]])
     blocks = _title_blocks(resolved)
     blocks += [Spacer(2 * MM), Heading("Summary", 12), _summary_table(resolved),
                Spacer(2 * MM), Heading("Air and speed of sound", 12), *_air_blocks(resolved),
-               Spacer(2 * MM), Heading("Calibration", 12), _calibration_table(resolved)]
+               Spacer(2 * MM), Heading("Calibration", 12), _calibration_table(resolved),
+               *trims.blocks(resolved)]
     if any(not g.calibration.calibrated and g.kind == "rank" for g in resolved.groups):
         blocks.append(Paragraph(
             "Before cutting a whole rank: make one or two pipes, measure their pitch and the "
