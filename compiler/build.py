@@ -73,7 +73,7 @@ def compile_spec(spec: Spec, options: BuildOptions, progress: Progress | None = 
 
     say = progress or _quiet
     count = sum(len(r.notes) for r in spec.ranks) + sum(len(t.notes) for t in spec.tube_sets)
-    say(f"resolving {count + len(spec.flutes)} pipes")
+    say(f"resolving {count + len(spec.flutes) + len(spec.surveys)} pipes")
     resolved = resolve(spec, memo(cache, "group"))
     if options.strict and resolved.warnings:
         raise SpecError([Problem(n.position, n.message, "warnings are errors with --strict")

@@ -82,7 +82,7 @@ def _plain(value: Any) -> Any:
 
 
 def _curve(curve: Any) -> dict[str, Any]:
-    return {"label": curve.label,
+    return {"label": curve.label, "quantity": curve.quantity,
             "frequencies_hz": [round(f, 2) for f in curve.frequencies_hz],
             "values": [float(f"{v:.6g}") for v in curve.values]}
 

@@ -14,6 +14,10 @@ def _in(metres: float | None) -> str:
     return "" if metres is None else f"{metres / 0.0254:.3f}"
 
 
+def _signed(value: float | None) -> str:
+    return "" if value is None else f"{value:+.2f}"
+
+
 def _section(pipe: Pipe) -> str:
     if pipe.section == "round":
         return f"ø{_mm(pipe.inside_diameter_m)}"
@@ -80,7 +84,13 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
                         "".join("x" if c else "o" for c in f.closed),
                         f"{f.target_hz:.2f}", f"{f.predicted_hz:.2f}", f"{f.error_cents:+.2f}"]
                        for f in p.fingerings]
-            lines += _align(f_rows, right={3, 4, 5})
+            if any(f.nearest_note is not None for f in p.fingerings):
+                # A survey: the nearest note of the tuning and the pitch's drift with the air.
+                f_rows[0] += ["nearest", "cents", "cents/C"]
+                for row, f in zip(f_rows[1:], p.fingerings, strict=True):
+                    row += [f.nearest_note or "", _signed(f.nearest_cents),
+                            _signed(f.cents_per_c)]
+            lines += _align(f_rows, right={3, 4, 5, 7, 8})
     return lines
 
 

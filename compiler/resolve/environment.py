@@ -29,9 +29,11 @@ class GroupAir:
         return airmod.air_state(temperature_k, s.pressure_pa, s.humidity, s.co2, s.model, speed)
 
 
-def group_air(family: str, *layers: spec_model.Environment) -> GroupAir:
-    """Room air for organ pipes and tubes, breath for flutes; later layers override."""
-    preset = "breath" if family in BREATH_FAMILIES else "room"
+def group_air(family: str, *layers: spec_model.Environment,
+              preset: str | None = None) -> GroupAir:
+    """Room air for organ pipes and tubes, breath for flutes (or the ``preset`` named:
+    ``room`` or ``breath``); later layers override."""
+    preset = preset or ("breath" if family in BREATH_FAMILIES else "room")
     base = dict(airmod.BREATH_AIR if preset == "breath" else airmod.ROOM_AIR)
     values: dict[str, float | str] = {**base, "model": "cramer-1993"}
     speed: float | None = None

@@ -9,7 +9,8 @@ field name says so). Lengths along a pipe use explicit datums, named in each fie
   tuning allowance; for wood, plus the block below the mouth and the stopper above).
 - Tubes (``stopped-tube``, ``open-tube``): the speaking length is the air column; a stopped
   tube's cut length adds the plug.
-- Flutes: hole positions are given from the top end (the head end) and from the bottom end.
+- Flutes and surveys: hole positions are given from the top end (the head end) and from the
+  bottom end.
 """
 
 from __future__ import annotations
@@ -176,6 +177,12 @@ class Fingering:
     target_hz: float
     predicted_hz: float
     error_cents: float
+    nearest_note: str | None = None
+    """Surveys: the note of the spec's tuning nearest the prediction (None: not reported)."""
+    nearest_cents: float | None = None
+    """Surveys: predicted minus ``nearest_note``."""
+    cents_per_c: float | None = None
+    """Surveys: this fingering's pitch change for 1 °C warmer air."""
 
 
 @dataclass(frozen=True)
@@ -185,6 +192,17 @@ class Curve:
     label: str
     frequencies_hz: tuple[float, ...]
     values: tuple[float, ...]
+    quantity: str = "admittance"
+    """``admittance`` (|Y|: flue-blown and open ends play at its peaks) or ``impedance``
+    (|Z|: a closed, reed-driven end plays at its peaks)."""
+
+
+@dataclass(frozen=True)
+class BoreStation:
+    """A surveyed bore's diameter at a distance from the top end (cones between stations)."""
+
+    from_top_m: float
+    diameter_m: float
 
 
 @dataclass(frozen=True)
@@ -242,6 +260,9 @@ class Pipe:
     fingerings: tuple[Fingering, ...]
     curves: tuple[Curve, ...]
     source: Position
+    bore: tuple[BoreStation, ...] = ()
+    """Surveys: the measured bore from the top end down (empty: ``inside_diameter_m`` all
+    along)."""
 
 
 @dataclass(frozen=True)

@@ -56,12 +56,13 @@ def _no_memo(_inputs: Any, make: Callable[[], Any]) -> Any:
 
 
 def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
-    """Resolve every rank, tube set and flute of ``spec``; raise ``SpecError`` if impossible.
+    """Resolve every rank, tube set, flute and survey of ``spec``; raise ``SpecError`` if
+    impossible.
 
     ``memo(inputs, make)`` may return a stored result for the same inputs (the build's
     cache); each group depends only on itself and the spec's shared blocks.
     """
-    from compiler.resolve import flutes  # numpy-heavy engine, loaded only when needed
+    from compiler.resolve import flutes, surveys  # numpy-heavy engine, loaded when needed
 
     shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)
     work: list[tuple[Any, Callable[[], Any]]] = []
@@ -71,6 +72,8 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
         work.append((tube_set, partial(tubes.resolve_tube_set, tube_set, spec)))
     for flute in spec.flutes:
         work.append((flute, partial(flutes.resolve_flute, flute, spec)))
+    for survey in spec.surveys:
+        work.append((survey, partial(surveys.resolve_survey, survey, spec)))
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []

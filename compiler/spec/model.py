@@ -256,6 +256,69 @@ class Flute:
 
 
 @dataclass(frozen=True)
+class BoreStation:
+    """A measured diameter of a surveyed bore, and where along it (from the top end)."""
+
+    from_top_m: float
+    diameter_m: float
+    position: Position
+
+
+@dataclass(frozen=True)
+class SurveyHole:
+    """A measured tone hole; ``from_top_m`` is worked out from ``from_bottom`` when the
+    maker measured from the foot (``measured_from`` says which)."""
+
+    label: str | None
+    from_top_m: float
+    measured_from: str
+    """``top`` or ``bottom``."""
+    diameter_m: float
+    chimney_m: float | None
+    """None: the survey's wall."""
+    undercut_m: float
+    angle_deg: float
+    position: Position
+    where: Mapping[str, Position] = field(default_factory=_frozen)
+
+
+@dataclass(frozen=True)
+class SurveyFingering:
+    closed: tuple[bool, ...]
+    note: int | None
+    """None: compared with the nearest note."""
+    frequency_hz: float | None
+    second_register: int | None
+    """A note, ``NO_SECOND_REGISTER``, or None (compared with the nearest note)."""
+    position: Position
+
+
+@dataclass(frozen=True)
+class Survey:
+    """An instrument as measured, to be predicted (never solved): its length, bore
+    stations (one station: a cylinder), wall, blowing end and holes."""
+
+    id: str
+    length_m: float
+    bore: tuple[BoreStation, ...]
+    wall_m: float
+    outside_diameter_m: float | None
+    stock: str | None
+    material: str | None
+    blowing_end: str
+    """``duct``, ``embouchure``, ``reed``, ``closed`` or ``open``."""
+    head: Head
+    reed_length_m: float
+    holes: tuple[SurveyHole, ...]
+    fingerings: tuple[SurveyFingering, ...]
+    losses: str
+    radiation: str
+    environment: Environment
+    position: Position
+    where: Mapping[str, Position] = field(default_factory=_frozen)
+
+
+@dataclass(frozen=True)
 class Spec:
     """One normalised spec."""
 
@@ -271,6 +334,7 @@ class Spec:
     ranks: tuple[Rank, ...]
     tube_sets: tuple[TubeSet, ...]
     flutes: tuple[Flute, ...]
+    surveys: tuple[Survey, ...] = ()
 
     def stock_named(self, name: str) -> Stock | None:
         return next((s for s in self.stock if s.name == name), None)

@@ -103,6 +103,8 @@ def _name(path: Path) -> str:
 
 def normalize(document: Document) -> model.Spec:
     """Build the typed ``Spec``; raise ``UnitError`` listing every problem."""
+    from compiler.spec.surveys import read_survey  # it reads with this module's helpers
+
     r = _Reader(document)
     data = document.data
     stock = _stock(r)
@@ -119,6 +121,7 @@ def normalize(document: Document) -> model.Spec:
         ranks=tuple(_rank(r, i) for i in range(len(data.get("ranks", [])))),
         tube_sets=tuple(_tube_set(r, i) for i in range(len(data.get("tube_sets", [])))),
         flutes=tuple(_flute(r, i) for i in range(len(data.get("flutes", [])))),
+        surveys=tuple(read_survey(r, i) for i in range(len(data.get("surveys", [])))),
     )
     _check_references(r, spec)
     if r.problems:
@@ -439,10 +442,9 @@ def _tube_set(r: _Reader, i: int) -> model.TubeSet:
     )
 
 
-def _flute(r: _Reader, i: int) -> model.Flute:
-    base: Path = ("flutes", i)
-    h = (*base, "head")
-    head = model.Head(
+def read_head(r: _Reader, h: Path) -> model.Head:
+    """The blowing end at ``h`` (a flute's or a survey's ``head``)."""
+    return model.Head(
         window_length_m=r.length((*h, "window", "length")),
         window_width_m=r.length((*h, "window", "width")),
         window_from_top_m=r.length((*h, "window", "from_top")),
@@ -453,6 +455,28 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         lip_cover=r.ratio((*h, "embouchure", "lip_cover")),
         cork_m=r.length((*h, "cork")),
     )
+
+
+def read_closed(r: _Reader, p: Path, holes: int, what: str) -> tuple[bool, ...]:
+    """A fingering's ``closed`` pattern: one `x` (closed) or `o` (open) per hole."""
+    pattern = "".join(ch for ch in str(r.get((*p, "closed"))) if ch in "xXoO")
+    if len(pattern) != holes:
+        r.fail((*p, "closed"), f"{_name((*p, 'closed'))}: `{r.get((*p, 'closed'))}` gives "
+               f"{len(pattern)} holes, but the {what} has {holes}",
+               "write one `x` (closed) or `o` (open) per hole, from the head down")
+    return tuple(ch in "xX" for ch in pattern)
+
+
+def read_second_register(r: _Reader, p: Path) -> int | None:
+    """A fingering's ``second_register``: a note, ``NO_SECOND_REGISTER`` or None."""
+    if r.get((*p, "second_register")) == "none":
+        return model.NO_SECOND_REGISTER
+    return r.note((*p, "second_register"))
+
+
+def _flute(r: _Reader, i: int) -> model.Flute:
+    base: Path = ("flutes", i)
+    head = read_head(r, (*base, "head"))
     raw_holes = r.get((*base, "holes"))
     holes = []
     if isinstance(raw_holes, int):
@@ -472,21 +496,13 @@ def _flute(r: _Reader, i: int) -> model.Flute:
     fingerings = []
     for j, _ in enumerate(r.get((*base, "fingerings")) or []):
         p = (*base, "fingerings", j)
-        pattern = "".join(ch for ch in str(r.get((*p, "closed"))) if ch in "xXoO")
-        if len(pattern) != len(holes):
-            r.fail((*p, "closed"), f"{_name((*p, 'closed'))}: `{r.get((*p, 'closed'))}` gives "
-                   f"{len(pattern)} holes, but the flute has {len(holes)}",
-                   "write one `x` (closed) or `o` (open) per hole, from the head down")
+        closed = read_closed(r, p, len(holes), "flute")
         note = r.note((*p, "note"))
         if note is None:
             continue
         fingerings.append(model.FingeringSpec(
-            note=note, closed=tuple(ch in "xX" for ch in pattern),
-            frequency_hz=r.frequency((*p, "frequency")),
-            second_register=(model.NO_SECOND_REGISTER
-                             if r.get((*p, "second_register")) == "none"
-                             else r.note((*p, "second_register"))),
-            position=r.at(p)))
+            note=note, closed=closed, frequency_hz=r.frequency((*p, "frequency")),
+            second_register=read_second_register(r, p), position=r.at(p)))
     c = (*base, "constraints")
     smallest, largest = r.length((*c, "min_diameter")), r.length((*c, "max_diameter"))
     if smallest is not None and largest is not None and smallest > largest:
@@ -554,16 +570,20 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
                      f"tube set `{tubes.id}`")
     for i, flute in enumerate(spec.flutes):
         need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
+    for i, survey in enumerate(spec.surveys):
+        if survey.stock is not None:
+            need(survey.stock, ("tube",), ("surveys", i, "stock"), f"survey `{survey.id}`")
     seen: dict[str, Path] = {}
     groups: list[tuple[str, Path]] = []
     groups += [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]
     groups += [(g.id, ("tube_sets", i, "id")) for i, g in enumerate(spec.tube_sets)]
     groups += [(g.id, ("flutes", i, "id")) for i, g in enumerate(spec.flutes)]
+    groups += [(g.id, ("surveys", i, "id")) for i, g in enumerate(spec.surveys)]
     for ident, path in groups:
         if ident in seen:
-            r.fail(path, f"the id `{ident}` is used twice", "give each rank, set or flute its "
-                   "own id: it names the output files")
+            r.fail(path, f"the id `{ident}` is used twice", "give each rank, set, flute or "
+                   "survey its own id: it names the output files")
         seen[ident] = path
     if not groups:
         r.problems.append(Problem(r.at(()), "the spec has no pipes",
-                                  "add `ranks:`, `tube_sets:` or `flutes:`", "units"))
+                                  "add `ranks:`, `tube_sets:`, `flutes:` or `surveys:`", "units"))

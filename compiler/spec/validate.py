@@ -222,7 +222,8 @@ def _context(document: Document, path: tuple[str | int, ...]) -> str:
         nodes.append(nodes[-1][part])
     for node in reversed(nodes):
         if isinstance(node, dict):
-            parts = [f"{k} `{node[k]}`" for k in ("family", "construction") if k in node]
+            parts = [f"{k} `{node[k]}`" for k in ("family", "construction", "blowing_end")
+                     if k in node]
             if parts:
                 return "with " + " and ".join(parts)
     return f"in {dotted(path)}"

@@ -33,6 +33,7 @@ from compiler.emit.pdf.style import (
     cents,
     hz,
     safe,
+    sensitivity,
 )
 from compiler.resolve.model import Fingering, Hole, Pipe
 
@@ -40,6 +41,9 @@ SECTION = "Fingerings"
 ROW = 5.3 * MM
 PITCH = 6.0 * MM
 """Distance between hole circles in the chart."""
+MIN_PITCH = 3.5 * MM
+NOTE_COLUMN = 22 * MM
+NUMBER_COLUMN = 15 * MM
 
 
 @dataclass(frozen=True)
@@ -62,8 +66,11 @@ class Chart(Block):
     rows: tuple[ChartRow, ...]
     size: float = 9.0
 
-    def _diagram_width(self) -> float:
-        return max(len(self.holes), 1) * PITCH + 4 * MM
+    def _pitch(self, width: float) -> float:
+        """Hole spacing in the diagram: narrower when many holes share the row with a
+        survey's extra columns (each number column keeps ``NUMBER_COLUMN``)."""
+        room = width - NOTE_COLUMN - 4 * MM - len(self._columns()) * NUMBER_COLUMN
+        return min(PITCH, max(MIN_PITCH, room / max(len(self.holes), 1)))
 
     def height(self, width: float) -> float:
         return 8 * MM + len(self.rows) * ROW + 1.0
@@ -74,11 +81,21 @@ class Chart(Block):
             return None
         return replace(self, rows=self.rows[:n]), replace(self, rows=self.rows[n:])
 
+    def _columns(self) -> tuple[tuple[str, str], ...]:
+        titles: tuple[tuple[str, str], ...] = (("target", "Hz"), ("predicted", "Hz"),
+                                               ("error", "cents"))
+        if any(r.fingering is not None and r.fingering.nearest_note is not None
+               for r in self.rows):
+            titles += (("nearest", "note"), ("from it", "cents"), ("per °C", "cents"))
+        return titles
+
     def draw(self, c: Canvas, x: float, y_top: float, width: float) -> None:
-        dw = self._diagram_width()
-        note_w = 22 * MM
-        num_w = (width - note_w - dw) / 3.0
-        cols = [x + note_w + dw + k * num_w for k in range(4)]
+        pitch = self._pitch(width)
+        dw = max(len(self.holes), 1) * pitch + 4 * MM
+        note_w = NOTE_COLUMN
+        titles = self._columns()
+        num_w = (width - note_w - dw) / len(titles)
+        cols = [x + note_w + dw + k * num_w for k in range(len(titles) + 1)]
         c.setFillColor(LIGHT)
         c.rect(x, y_top - 8 * MM, width, 8 * MM, stroke=0, fill=1)
         c.setFillColor(INK)
@@ -86,11 +103,16 @@ class Chart(Block):
         base = y_top - 5.5 * MM
         c.drawString(x + 1.5 * MM, base, "note")
         for i, hole in enumerate(self.holes):
-            c.setFont(FONT_BOLD, fit_size(hole.label, FONT_BOLD, 7, PITCH - 0.5 * MM, 4))
-            c.drawCentredString(x + note_w + 2 * MM + (i + 0.5) * PITCH, base, safe(hole.label))
+            c.setFont(FONT_BOLD, fit_size(hole.label, FONT_BOLD, 7, pitch - 0.5 * MM, 4))
+            c.drawCentredString(x + note_w + 2 * MM + (i + 0.5) * pitch, base, safe(hole.label))
         c.setFont(FONT_BOLD, self.size)
-        for k, title in enumerate(("target Hz", "predicted Hz", "error cents")):
-            c.drawRightString(cols[k + 1] - 1.5 * MM, base, title)
+        for k, (word, unit) in enumerate(titles):
+            if len(titles) == 3:
+                c.drawRightString(cols[k + 1] - 1.5 * MM, base, f"{word} {unit}")
+            else:  # six columns: the unit under the word, in a smaller type
+                c.setFont(FONT_BOLD, 8)
+                c.drawRightString(cols[k + 1] - 1.5 * MM, y_top - 3.6 * MM, safe(word))
+                c.drawRightString(cols[k + 1] - 1.5 * MM, y_top - 6.8 * MM, unit)
         y = y_top - 8 * MM
         for row in self.rows:
             if row.fingering is None:
@@ -110,24 +132,32 @@ class Chart(Block):
             c.drawString(x + 1.5 * MM, y - ROW + 2 * MM, safe(f.note))
             for h, hole in enumerate(self.holes):
                 closed = f.closed[h] if h < len(f.closed) else False
-                _hole(c, x + note_w + 2 * MM + (h + 0.5) * PITCH, y - ROW / 2, closed,
-                      90.0 < abs(hole.angle_deg) % 360.0 < 270.0)
+                _hole(c, x + note_w + 2 * MM + (h + 0.5) * pitch, y - ROW / 2, closed,
+                      90.0 < abs(hole.angle_deg) % 360.0 < 270.0, pitch)
             c.setFont(FONT, self.size)
             c.setFillColor(INK)
-            for k, text in enumerate((hz(f.target_hz), hz(f.predicted_hz),
-                                      cents(f.error_cents))):
+            for k, text in enumerate(_cells(f)[:len(titles)]):
                 c.drawRightString(cols[k + 1] - 1.5 * MM, y - ROW + 2 * MM, text)
             y -= ROW
         c.setStrokeColor(GREY)
         c.line(x, y, x + width, y)
 
 
-def _hole(c: Canvas, x: float, y: float, closed: bool, back: bool) -> None:
+def _cells(f: Fingering) -> tuple[str, ...]:
+    cells = (hz(f.target_hz), hz(f.predicted_hz), cents(f.error_cents))
+    if f.nearest_note is None:
+        return cells
+    return cells + (safe(f.nearest_note),
+                    cents(f.nearest_cents) if f.nearest_cents is not None else "",
+                    sensitivity(f.cents_per_c) if f.cents_per_c is not None else "")
+
+
+def _hole(c: Canvas, x: float, y: float, closed: bool, back: bool, pitch: float) -> None:
     c.setStrokeColor(INK)
     c.setLineWidth(0.9)
     c.setDash([1.5, 1.0] if back else [], 0)
     c.setFillColor(INK)
-    c.circle(x, y, 2.1 * MM, stroke=1, fill=1 if closed else 0)
+    c.circle(x, y, 2.1 * MM * pitch / PITCH, stroke=1, fill=1 if closed else 0)
     c.setDash([], 0)
 
 
@@ -146,7 +176,11 @@ def blocks(pipe: Pipe) -> list[Block]:
         Heading(f"Fingering chart: {pipe.id}", 13),
         Paragraph("Filled circle: hole closed. Open circle: hole open. Hole 1 (nearest the "
                   "head) is on the left; a dashed ring is a hole on the back (thumb hole). "
-                  "Error: predicted minus target, in cents.", 8.5, colour=GREY),
+                  "Error: predicted minus target, in cents." + (
+                      " Nearest: the note of the tuning nearest the prediction, and the "
+                      "prediction's distance from it; cents/°C: its change in 1 °C warmer air."
+                      if any(f.nearest_note is not None for f in pipe.fingerings) else ""),
+                  8.5, colour=GREY),
         Chart(tuple(sorted(pipe.holes, key=lambda h: h.number)), chart_rows(pipe)),
         Spacer(4 * MM),
     ]
@@ -161,8 +195,11 @@ def blocks(pipe: Pipe) -> list[Block]:
     if pipe.curves:
         marks = tuple((f.note, f.predicted_hz) for f in ordered
                       if any(cu.label.split(" ")[0] == f.note for cu in pipe.curves))
-        out.append(CurvePlot(f"Input admittance magnitude: {pipe.id}", pipe.curves[:4],
-                             "|Y| (admittance magnitude)", marks))
+        quantity = pipe.curves[0].quantity
+        axis = "|Z| (impedance magnitude)" if quantity == "impedance" else (
+            "|Y| (admittance magnitude)")
+        out.append(CurvePlot(f"Input {quantity} magnitude: {pipe.id}", pipe.curves[:4],
+                             axis, marks))
     return out
 
 
