@@ -1,6 +1,7 @@
 """``boresmith new FAMILY [FILE]``: a commented starter spec for each instrument family.
 
-Each starter is valid as written and resolves: a small set (a few pipes or one flute) in an
+Each starter is valid as written and resolves: a small set (a few pipes, one flute or one
+measured instrument) in an
 invented scenario, with every key explained by a short comment. Optional keys are shown
 commented out, at their place and indentation, so deleting the ``# `` turns them on. The
 first line is the schema modeline for editors that read JSON Schema; it names the schema
@@ -355,6 +356,59 @@ flutes:                           # tubes with tone holes
     radiation: frequency-dependent   # how the open end and open holes radiate
 """
 
+_SURVEY = """\
+#
+# Starter: a survey, an instrument as measured. boresmith predicts how it plays (each
+# fingering's pitch, the nearest note and its error in cents, the second register, cents
+# per degree C) and changes nothing; the build sheet carries a drilling template for a copy.
+# Invented scenario: an old six-hole fife from the Ashcombe village band's cupboard.
+# Edit the values, then run `boresmith check FILE`, `boresmith resolve FILE` and
+# `boresmith build FILE`. Every key is explained; a line like `# key: value` is optional:
+# delete the `# ` to use it.
+boresmith: 1                      # version of the spec language; this file is version 1
+instrument: Ashcombe band fife, as measured   # names the output folder
+units: mm                         # unit of bare numbers in lengths: mm, cm, m, in or ft
+
+environment:                      # the air inside the instrument
+  temperature: 30 C               # left out, blown instruments take 30 C, 90 % and 1 % CO2
+
+tuning:                           # the notes predictions are compared with
+  a4: 440 Hz                      # reference pitch
+  temperament: equal              # equal temperament
+
+surveys:                          # instruments as measured
+  - id: ashcombe-fife             # names the output files: letters, digits, - _ .
+    length: 305 mm                # overall, from the top end to the foot
+    bore:                         # one diameter for a cylinder, or stations from the top
+      - {from_top: 0 mm, diameter: 12.2 mm}   # cones between stations
+      - {from_top: 305 mm, diameter: 11.9 mm}
+    wall: 3.4 mm                  # wall thickness: the holes' chimney unless they say
+    blowing_end: embouchure       # duct, embouchure, reed, closed or open
+    head:                         # the blowing end as measured
+      embouchure:                 # the hole blown across
+        diameter: 8.6 mm          # an oval hole: its mean diameter
+        from_top: 38 mm           # from the top end to the hole's centre
+        # lip_cover: 1/4          # how much of the hole the player's lip covers
+      cork: 14 mm                 # from the embouchure centre up to the cork
+    holes:                        # from the head down: from_top, or from_bottom (the foot)
+      - {from_top: 153 mm, diameter: 5.5 mm}
+      - {from_top: 175 mm, diameter: 6 mm}
+      - {from_top: 195.5 mm, diameter: 6 mm}
+      - {from_top: 222.5 mm, diameter: 6.5 mm, undercut: 0.3 mm}   # widened at the bore
+      - {from_top: 238 mm, diameter: 8 mm}
+      - {from_bottom: 42 mm, diameter: 7.5 mm, chimney: 3.6 mm}   # its own wall depth
+    fingerings:                   # x closed, o open; `note` is what it should sound
+      - {closed: xxx xxx, note: D5}
+      - {closed: xxx xxo, note: E5}
+      - {closed: xxx xoo}         # no note: compared with the nearest one
+      - {closed: xxx ooo}
+      - {closed: xxo ooo, second_register: none}   # not used overblown
+    losses: keefe                 # wall losses (Keefe 1984), or `none` for lossless
+    radiation: frequency-dependent   # how the open end and open holes radiate
+    # outside_diameter: 19 mm     # for the drilling template (default: bore + 2 walls)
+    # material: boxwood           # for the cut list
+"""
+
 _BODIES: Mapping[str, str] = MappingProxyType({
     "open-flue": _OPEN_FLUE,
     "stopped-flue": _STOPPED_FLUE,
@@ -362,10 +416,12 @@ _BODIES: Mapping[str, str] = MappingProxyType({
     "open-tube": _OPEN_TUBE,
     "duct-flute": _DUCT_FLUTE,
     "side-blown-flute": _SIDE_BLOWN_FLUTE,
+    "survey": _SURVEY,
 })
 
 FAMILIES: tuple[str, ...] = tuple(_BODIES)
-"""The instrument families, in the order the design lists them."""
+"""The instrument families, in the order the design lists them, then ``survey`` (an
+instrument as measured, predicted rather than designed)."""
 
 
 SCHEMAS: Mapping[str, str] = MappingProxyType({

@@ -30,13 +30,15 @@ def _uncommented(text: str) -> str:
     return OPTIONAL_LINE.sub(r"\1\2", text)
 
 
-def test_the_families_are_the_designs_six() -> None:
+def test_the_families_are_the_designs_six_and_the_survey() -> None:
     # DESIGN.md, "Instrument families"; the schema's family enums must offer each of them.
+    # A survey (an instrument as measured, predicted) has its own list, `surveys`.
     assert FAMILIES == ("open-flue", "stopped-flue", "stopped-tube", "open-tube", "duct-flute",
-                        "side-blown-flute")
+                        "side-blown-flute", "survey")
     offered = {f for group in ("ranks", "tube_sets", "flutes")
                for f in SCHEMA["properties"][group]["items"]["properties"]["family"]["enum"]}
-    assert offered == set(FAMILIES)
+    assert offered == set(FAMILIES) - {"survey"}
+    assert "surveys" in SCHEMA["properties"]
 
 
 @pytest.mark.parametrize("family", FAMILIES)
@@ -53,8 +55,10 @@ def test_starter_is_valid_as_written_and_resolves(family: str) -> None:
     assert [g.family for g in resolved.groups] == [family]
     assert resolved.pipes and not resolved.warnings
     # Targets follow the starter's A4 and temperament (12-TET, or Werckmeister III as defined at
-    # tonalsoft.com); 1 cent is our design tolerance, not a published figure.
-    assert all(abs(p.error_cents) < 1.0 for p in resolved.pipes)
+    # tonalsoft.com); 1 cent is our design tolerance, not a published figure. A survey is
+    # predicted as measured, not tuned: its errors are what the maker came to learn.
+    if family != "survey":
+        assert all(abs(p.error_cents) < 1.0 for p in resolved.pipes)
 
 
 @pytest.mark.parametrize("family", FAMILIES)

@@ -166,7 +166,8 @@ def _holes(survey: spec_model.Survey, bore: Bore, head: EngineHead,
         at = h.where.get(f"from_{h.measured_from}", h.position)
         x, r = h.from_top_m, h.diameter_m / 2
         label = h.label or ("T" if 90.0 < abs(h.angle_deg) % 360.0 < 270.0 else str(i + 1))
-        where = f"hole {label} ({_mm(h.diameter_m)} at {_mm(x)} from the top)"
+        measured = x if h.measured_from == "top" else length - x
+        where = f"hole {label} ({_mm(h.diameter_m)} at {_mm(measured)} from the {h.measured_from})"
         if x - r < 0 or x + r > length:
             raise PhysicsError.at(at, f"{name}: {where} does not lie on the {_mm(length)} "
                                   "tube", "check the hole's position, its end (`from_top` or "
@@ -356,7 +357,11 @@ def _pipe(survey: spec_model.Survey, air: GroupAir, instrument: Instrument,
         for step in (SENSITIVITY_STEP_M, -SENSITIVITY_STEP_M))
     speaking = survey.length_m - (engine_head.mouth_position_m
                                   if survey.blowing_end in ("duct", "embouchure") else 0.0)
-    quarter = survey.blowing_end in ("reed", "closed")
+    # Acoustic length: the plain pipe that sounds the lowest note: closed-open (a quarter
+    # wave) when the closed end overblows nearer a twelfth than an octave (a cylinder), else
+    # open-open (a half wave; a cone closed at its narrow end plays like one).
+    quarter = (instrument.head.kind == "closed" and len(registers) > 1
+               and registers[1] / registers[0] > 2.5)
     acoustic = air.state.speed_m_s / ((4 if quarter else 2) * lowest.predicted_hz)
     return Pipe(
         id=survey.id, group=survey.id, family=FAMILY, construction="stock-tube",

@@ -116,7 +116,7 @@ FAMILY_WORDS = {
     "open-tube": "open tube",
     "duct-flute": "duct flute",
     "side-blown-flute": "side-blown flute",
-    "survey": "measured instrument (survey)",
+    "survey": "survey (as measured)",
 }
 
 CONSTRUCTION_WORDS = {

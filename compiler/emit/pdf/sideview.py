@@ -136,7 +136,16 @@ def build_view(pipe: Pipe, inches: bool) -> View:
     shapes.append(_rect("outline", -outer if pipe.foot is None else -inner, base
                         if pipe.foot is not None else 0.0, outer if pipe.foot is None else inner,
                         top))
-    if pipe.foot is None and outer > inner:
+    if pipe.bore:
+        # A surveyed bore: its measured profile, from the top end down, as hidden lines.
+        profile = [(s.diameter_m * 500.0, top - s.from_top_m * 1000.0) for s in pipe.bore]
+        if profile[0][1] < top:
+            profile.insert(0, (profile[0][0], top))
+        if profile[-1][1] > 0.0:
+            profile.append((profile[-1][0], 0.0))
+        for side in (-1.0, 1.0):
+            shapes.append(Shape("hidden", tuple((side * r, y) for r, y in profile), False))
+    elif pipe.foot is None and outer > inner:
         shapes += [_line("hidden", (-inner, 0.0), (-inner, top)),
                    _line("hidden", (inner, 0.0), (inner, top))]
     shapes.append(_line("centre", (0.0, -3.0), (0.0, top + 3.0)))
@@ -213,6 +222,10 @@ def _head(head: Head, top: float, inner: float, dims: dict[str, D.Dim],
         if D.DUCT in dims:
             calls.append(Callout(0.0, lab + wl + 4.0,
                                  f"duct height {mm(dims[D.DUCT].value_m)}", ""))
+    elif head.kind in ("reed", "closed"):
+        shapes.append(_rect("solid", -inner, top - 2.0, inner, top))
+        calls.append(Callout(0.0, top - 1.0, "closed end (reed)" if head.kind == "reed"
+                             else "closed end", ""))
     elif head.embouchure_from_top_m is not None:
         y = top - head.embouchure_from_top_m * 1000.0
         holes.append(HoleMark(0.0, y, (head.embouchure_diameter_m or 0.0) * 500.0, False))
