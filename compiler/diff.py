@@ -6,7 +6,8 @@ mm, rounded as in the file), and compared field by field:
 - pipes are matched by id; every scalar field that differs is a change, nested ones included
   (``mouth.cutup_mm``, ``stopper.position_mm``); holes are matched by hole number
   (``holes[3]`` is hole number 3, counted from the head, not a list index), fingerings by note
-  and register (``fingerings[E6 r2]``), plain number lists by index (``harmonics_hz[1]``);
+  and register (``fingerings[E6 r2]``; a survey's by pattern and register,
+  ``fingerings[xxxooo r1]``), plain number lists by index (``harmonics_hz[1]``);
 - pipes only in one spec are added or removed;
 - groups (ranks, tube sets, flutes) are matched by id: their air (speed of sound,
   temperature...), calibration and holder;
@@ -200,7 +201,10 @@ def _scalar(key: str, value: Any) -> Value:
 _Key = Callable[[dict[str, Any]], str]
 _KEYED: dict[str, _Key] = {
     "holes": lambda h: str(h["number"]),
-    "fingerings": lambda f: f"{f['note']} r{f['register']}",
+    # A survey's fingering keeps its pattern when its predicted note moves: match on that.
+    "fingerings": lambda f: (f"{f['note']} r{f['register']}" if f.get("nearest_note") is None
+                             else "".join("x" if c else "o" for c in f["closed"])
+                             + f" r{f['register']}"),
     "residuals": lambda r: str(r["note"]),
     "stock": lambda s: str(s["name"]),
 }
