@@ -8,12 +8,15 @@ layer          ACI colour   what
 ``cut-inner``  5 (blue)     openings, cut first (kerf-compensated, closed)
 ``cut-outer``  1 (red)      part outlines (kerf-compensated, closed)
 ``mark``       3 (green)    score and centre lines, ticks, templates' features
-``engrave``    6 (magenta)  labels (TEXT)
+``engrave``    6 (magenta)  labels (TEXT, centred on their box; upright on the sheet)
+``sheet``      8 (grey)     the sheet's outline, for reference only: never cut
 =============  ===========  =====================================================
 
-Entities are written layer by layer in the order engrave, mark, cut-inner, cut-outer (the
-usual laser order: nothing moves until the outlines are cut). Closed paths are
-LWPOLYLINE with bulges (R2010) or closed POLYLINE with bulges (R12); circles are CIRCLE.
+Entities are written layer by layer in the order sheet, engrave, mark, cut-inner, cut-outer
+(the usual laser order: nothing moves until the outlines are cut). The header's
+``$EXTMIN``/``$EXTMAX`` are the drawing's extents (the sheet, or the part's entities).
+Closed paths are LWPOLYLINE with bulges (R2010) or closed POLYLINE with bulges (R12);
+circles are CIRCLE.
 
 Reproducible bytes: the drawing's timestamps are fixed (2000-01-01, zero editing time),
 its GUIDs derive from the file's own content and name, handles are assigned in
@@ -30,21 +33,25 @@ import pathlib
 from collections import OrderedDict
 
 from ezdxf.document import Drawing
+from ezdxf.enums import TextEntityAlignment
 from ezdxf.lldxf.tagwriter import TagWriter
 
 from compiler.cache import Cache, key_of
 from compiler.geometry.model import Circle, Entity, Part, Parts, Sheet, Text
-from compiler.geometry.paths import Box, bounds_of, placed
+from compiler.geometry.paths import Box, bounds_of, placed, rect, text_centre
 from compiler.geometry.units import snap, snap_bulge
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
 
 NAME = "dxf"
 
-LAYER_COLOURS = {"cut-inner": 5, "cut-outer": 1, "mark": 3, "engrave": 6}
-"""AutoCAD Color Index of each operation's layer."""
+SHEET_LAYER = "sheet"
+"""The sheet's outline: a reference for the operator, on a layer no cutter should cut."""
 
-WRITE_ORDER = ("engrave", "mark", "cut-inner", "cut-outer")
+LAYER_COLOURS = {"cut-inner": 5, "cut-outer": 1, "mark": 3, "engrave": 6, SHEET_LAYER: 8}
+"""AutoCAD Color Index of each operation's layer (8: grey, the sheet outline)."""
+
+WRITE_ORDER = (SHEET_LAYER, "engrave", "mark", "cut-inner", "cut-outer")
 
 VERSIONS = {"r2010": "R2010", "r12": "R12"}
 
@@ -75,9 +82,12 @@ def _add(doc: Drawing, entity: Entity) -> None:
         msp.add_circle((snap(entity.center[0]), snap(entity.center[1])), snap(entity.radius),
                        dxfattribs=attribs)
     elif isinstance(entity, Text):
+        # Centred on the box the geometry stage kept free for it: whatever the cutter
+        # software's font, the label stays clear of the part's lines.
         text = msp.add_text(entity.text, height=entity.height,
                             rotation=snap(entity.rotation_deg), dxfattribs=attribs)
-        text.dxf.insert = (snap(entity.insert[0]), snap(entity.insert[1]))
+        cx, cy = text_centre(entity)
+        text.set_placement((snap(cx), snap(cy)), align=TextEntityAlignment.MIDDLE_CENTER)
     else:
         bulges = list(entity.bulges) + [0.0] * (len(entity.points) - len(entity.bulges))
         points = [(snap(x), snap(y), snap_bulge(b)) for (x, y), b in zip(entity.points, bulges,
@@ -125,6 +135,12 @@ def render(entities: tuple[Entity, ...], version: str, seed: str, limits: Box) -
     msp = doc.modelspace()
     msp.dxf.limmin = (snap(limits[0]), snap(limits[1]))
     msp.dxf.limmax = (snap(limits[2]), snap(limits[3]))
+    # The extents: what a viewer zooms to. Labels count with their approximate box.
+    low_x, low_y, high_x, high_y = bounds_of(entities)
+    # (ezdxf copies the layout's extents into the header when it writes, but not a zero
+    # corner: the header is set as well)
+    msp.dxf.extmin = doc.header["$EXTMIN"] = (snap(low_x), snap(low_y), 0.0)
+    msp.dxf.extmax = doc.header["$EXTMAX"] = (snap(high_x), snap(high_y), 0.0)
     for operation in WRITE_ORDER:
         for entity in entities:
             if entity.operation == operation:
@@ -133,8 +149,9 @@ def render(entities: tuple[Entity, ...], version: str, seed: str, limits: Box) -
 
 
 def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
-    """Every placed part's entities, moved (and turned) to their place on the sheet."""
-    out: list[Entity] = []
+    """The sheet's outline (``sheet`` layer) and every placed part's entities, moved (and
+    turned) to their place on the sheet."""
+    out: list[Entity] = [rect(SHEET_LAYER, 0.0, 0.0, sheet.length_mm, sheet.width_mm)]
     for placement in sheet.placements:
         out += placed(parts[placement.part_id].entities, placement)
     return tuple(out)
@@ -142,7 +159,7 @@ def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
 
 def write(resolved: Resolved, parts: Parts, options: BuildOptions,
           out_dir: pathlib.Path, cache: Cache | None = None) -> list[pathlib.Path]:
-    """Write ``sheet-<n>-<material>.dxf`` for every nested sheet into ``out_dir``, and
+    """Write ``sheet-<nn>-<material>.dxf`` for every nested sheet into ``out_dir``, and
     ``parts/<part id>.dxf`` for every part when part files are on (``options.part_files``,
     else the spec's ``fabrication.part_files``). Returns the paths written, sorted.
 

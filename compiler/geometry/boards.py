@@ -44,9 +44,13 @@ def _board(pipe: Pipe, name: str, t: float, length: float, width: float,
            outline: Polyline | Circle, openings: tuple[Circle, ...] = (),
            marks: tuple[Entity, ...] = (), quantity: int = 1, note: str = "") -> Draft:
     text = f"{pipe.id} {name}"
-    lab = label(text, (length / 2.0, width / 2.0), 0.8 * length, 0.6 * width)
+    avoid = (outline, *openings, *marks)
+    short = (f"{pipe.note} {name}", pipe.note)
+    lab = label(text, (length / 2.0, width / 2.0), 0.8 * length, 0.6 * width, avoid=avoid,
+                short=short)
     if openings:
-        lab = label(text, (length / 2.0, width * 0.15), 0.8 * length, 0.2 * width)
+        lab = label(text, (length / 2.0, width * 0.15), 0.8 * length, 0.2 * width,
+                    avoid=avoid, short=short)
     return Draft(id=f"{pipe.id}-{name}", pipe_id=pipe.id, group=pipe.group, name=name,
                  material=pipe.material, stock=pipe.stock, thickness_mm=t, kind="board",
                  width_mm=length, height_mm=width, outline=outline, openings=openings,

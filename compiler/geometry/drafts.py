@@ -12,10 +12,15 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from shapely.geometry import LinearRing, LineString, Polygon
+from shapely.geometry import box as shapely_box
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import unary_union
+
 from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.kerf import OffsetError, compensate
 from compiler.geometry.model import Circle, Entity, Part, Point, Polyline, Text
-from compiler.geometry.paths import area, snapped, text_width
+from compiler.geometry.paths import area, flatten, snapped, text_width, to_polygon
 from compiler.resolve.model import Pipe
 
 LABEL_MAX_MM = 5.0
@@ -66,22 +71,85 @@ def pipe_error(pipe: Pipe, message: str, hint: str) -> GeometryError:
     return GeometryError(Problem(pipe.source, f"pipe `{pipe.id}`: {message}", hint, "geometry"))
 
 
-def label(text: str, center: Point, box_w: float, box_h: float,
-          max_height: float = LABEL_MAX_MM) -> Text | None:
-    """An ``engrave`` label centred at ``center`` inside a free box ``box_w × box_h`` mm:
-    horizontal if it fits at a readable height, else turned 90° along the box, else none."""
-    best: Text | None = None
-    chars = max(len(text), 1)
-    flat = min(max_height, 0.8 * box_h, 0.9 * box_w / (0.62 * chars))
-    upright = min(max_height, 0.8 * box_w, 0.9 * box_h / (0.62 * chars))
+LABEL_LONG_MIN_MM = 3.0
+"""The long label (pipe id and part) only where it can be this tall; else the short one."""
+LABEL_CLEAR_MM = 0.5
+"""Room kept between a label and any line of its part."""
+
+
+def _candidates(center: Point, box_w: float, box_h: float) -> list[Point]:
+    """Where a label may go inside its free box: the given centre first, then points ever
+    further from it (fixed order: the same spec gives the same labels)."""
     cx, cy = center
-    if flat >= LABEL_MIN_MM and flat >= upright:
-        w = text_width(text, flat)
-        best = Text("engrave", (cx - w / 2.0, cy - flat / 2.0), round(flat, 3), text, 0.0)
-    elif upright >= LABEL_MIN_MM:
-        w = text_width(text, upright)
-        best = Text("engrave", (cx + upright / 2.0, cy - w / 2.0), round(upright, 3), text, 90.0)
-    return best
+    out = [center]
+    for step in (0.15, 0.3, 0.45):
+        for dx, dy in ((0.0, -1.0), (0.0, 1.0), (-1.0, 0.0), (1.0, 0.0), (-1.0, -1.0),
+                       (1.0, -1.0), (-1.0, 1.0), (1.0, 1.0)):
+            out.append((cx + dx * step * box_w, cy + dy * step * box_h))
+    return out
+
+
+def _text_at(text: str, center: Point, height: float, upright: bool) -> Text:
+    w = text_width(text, height)
+    cx, cy = center
+    if upright:
+        return Text("engrave", (cx + height / 2.0, cy - w / 2.0), round(height, 3), text, 90.0)
+    return Text("engrave", (cx - w / 2.0, cy - height / 2.0), round(height, 3), text, 0.0)
+
+
+def _box(t: Text) -> Polygon:
+    w = text_width(t.text, t.height)
+    x, y = t.insert
+    if t.rotation_deg == 90.0:
+        return shapely_box(x - t.height, y, x, y + w)
+    return shapely_box(x, y, x + w, y + t.height)
+
+
+def _obstacles(avoid: tuple[Entity, ...]) -> BaseGeometry | None:
+    shapes: list[BaseGeometry] = []
+    for e in avoid:
+        if isinstance(e, Text):
+            shapes.append(_box(e))
+        elif isinstance(e, Circle):
+            shapes.append(to_polygon(e).exterior)
+        elif len(e.points) >= 2:
+            points = flatten(e)
+            shapes.append(LinearRing(points) if e.closed and len(points) >= 3
+                          else LineString(points))
+    return unary_union(shapes) if shapes else None
+
+
+def label(text: str, center: Point, box_w: float, box_h: float,
+          max_height: float = LABEL_MAX_MM, avoid: tuple[Entity, ...] = (),
+          short: tuple[str, ...] = (), smallest: float = LABEL_MIN_MM,
+          clear: float = LABEL_CLEAR_MM) -> Text | None:
+    """An ``engrave`` label inside a free box ``box_w × box_h`` mm around ``center``: as tall
+    as fits (up to ``max_height``), horizontal where it fits as well as turned 90° along the
+    box, and clear of every line and label in ``avoid`` (marks, the outline, openings),
+    moving away from the centre if need be. ``short`` are shorter texts to fall back on
+    (the note of the pipe, say): the long text only where it can stand ``LABEL_LONG_MIN_MM``
+    tall; ``clear`` mm from every line. None if nothing fits at ``smallest`` (mm)."""
+    obstacles = _obstacles(avoid)
+    free = shapely_box(center[0] - box_w / 2.0, center[1] - box_h / 2.0,
+                       center[0] + box_w / 2.0, center[1] + box_h / 2.0)
+    texts = [text, *short]
+    for k, words in enumerate(texts):
+        chars = max(len(words), 1)
+        flat = min(max_height, 0.8 * box_h, 0.9 * box_w / (0.62 * chars))
+        upright = min(max_height, 0.8 * box_w, 0.9 * box_h / (0.62 * chars))
+        least = LABEL_LONG_MIN_MM if k < len(texts) - 1 else smallest
+        options = sorted(((flat, False), (upright, True)), key=lambda o: -o[0])
+        for height, turned in options:
+            size = height
+            while size >= least - 1e-9:
+                for spot in _candidates(center, box_w, box_h):
+                    found = _text_at(words, spot, size, turned)
+                    room = _box(found)
+                    if free.contains(room) and (obstacles is None or not room.buffer(
+                            clear).intersects(obstacles)):
+                        return found
+                size *= 0.8
+    return None
 
 
 def labels(*items: Text | None) -> tuple[Text, ...]:

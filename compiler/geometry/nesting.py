@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.model import Part, Placement, Sheet
@@ -164,12 +164,15 @@ def nest(parts: list[Part], areas: dict[str, float], sizes: dict[str, SheetSize]
             continue
         items.sort(key=lambda i: (-round(i.h, 6), -round(i.w, 6), i.part.id, i.copy))
         for b in _pack(items, lx, ly, spacing_mm, areas):
-            n = len(sheets) + 1
             sheets.append(Sheet(
-                id=f"sheet-{n}-{slug(material)}", stock=stock, material=material,
+                id=slug(material), stock=stock, material=material,
                 thickness_mm=thickness, length_mm=size.length_mm, width_mm=size.width_mm,
                 placements=tuple(b.placements),
                 utilisation=round(b.area / (size.length_mm * size.width_mm), 6)))
     if problems:
         raise GeometryError(problems)
-    return tuple(sheets)
+    # Numbered across all stocks, zero-padded (sheet-01-pine, ..., sheet-12-pine) so that the
+    # files sort in order; three digits from a hundred sheets on.
+    digits = max(2, len(str(len(sheets))))
+    return tuple(replace(sheet, id=f"sheet-{n:0{digits}d}-{sheet.id}")
+                 for n, sheet in enumerate(sheets, start=1))

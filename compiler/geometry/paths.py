@@ -215,9 +215,25 @@ def moved(entity: Entity, dx: float, dy: float, rotated: bool = False) -> Entity
         return Circle(entity.operation, tf(entity.center), snap(entity.radius))
     if isinstance(entity, Text):
         angle = (entity.rotation_deg + (90.0 if rotated else 0.0)) % 360.0
-        return Text(entity.operation, tf(entity.insert), entity.height, entity.text, angle)
+        return upright(Text(entity.operation, tf(entity.insert), entity.height, entity.text,
+                            angle))
     return Polyline(entity.operation, tuple(tf(p) for p in entity.points), entity.closed,
                     tuple(snap_bulge(k) for k in entity.bulges))
+
+
+def upright(text: Text) -> Text:
+    """``text`` turned half a turn about its centre if it would read upside down: every label
+    reads from the bottom or from the right of the sheet (0° to 90°), however its part was
+    turned when nested."""
+    if 90.0 < text.rotation_deg % 360.0 <= 270.0:
+        cx, cy = text_centre(text)
+        angle = (text.rotation_deg + 180.0) % 360.0
+        w, h = text_width(text.text, text.height), text.height
+        c, s = math.cos(math.radians(angle)), math.sin(math.radians(angle))
+        corner = (cx - (w * c - h * s) / 2.0, cy - (w * s + h * c) / 2.0)
+        return Text(text.operation, (snap(corner[0]), snap(corner[1])), text.height, text.text,
+                    angle)
+    return text
 
 
 def placed(entities: tuple[Entity, ...], placement: Placement) -> tuple[Entity, ...]:

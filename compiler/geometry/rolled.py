@@ -31,6 +31,9 @@ TICK_MM = 5.0
 """Length of the short marks on a rolled body (front line, speaking length): ticks rather
 than lines, so the pipe's outside is not scored."""
 
+TINY_LABEL_MM = 1.0
+"""The note on the languid of the smallest pipes may be engraved this small (a 5 mm disk)."""
+
 CAP_RIM_FRACTION = 0.15
 CAP_RIM_MIN_MM = 5.0
 """Cap skirt: 15 % of the body's outside diameter, at least 5 mm (common practice)."""
@@ -107,8 +110,12 @@ def body(pipe: Pipe, fab: FabricationReport) -> Draft:
         marks += [line("mark", (0.0, speaking), (TICK_MM, speaking)),
                   line("mark", (circ - TICK_MM, speaking), (circ, speaking))]
     band = circ / 2.0 - TICK_MM
-    lab = label(f"{pipe.id} body", (0.75 * circ, height / 2.0), band, 0.8 * height)
-    return _draft(pipe, "body", width, height, closed("cut-outer", pts),
+    outline = closed("cut-outer", pts)
+    lab = label(f"{pipe.id} body", (0.75 * circ, height / 2.0), band, 0.8 * height,
+                avoid=(outline, *marks), short=(f"{pipe.note} body", pipe.note)) or label(
+        pipe.note, (circ / 2.0, height / 2.0), 0.9 * circ, 0.5 * height,
+        avoid=(outline, *marks), smallest=TINY_LABEL_MM)  # the smallest pipes
+    return _draft(pipe, "body", width, height, outline,
                   (*marks, *labels(lab)),
                   f"roll to {mm(pipe.inside_diameter_m):.1f} mm inside; "
                        f"seam strip {seam:.1f} mm on the right-hand edge", along_x=False)
@@ -160,7 +167,8 @@ def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
     r_mid = (pattern.inner_radius + pattern.outer_radius) / 2.0
     chord = 2.0 * r_mid * math.sin(math.radians(min(half, 60.0))) * 0.8
     lab = label(f"{pipe.id} foot", (r_mid * math.cos(mid), r_mid * math.sin(mid)),
-                chord, 0.5 * pattern.slant)
+                chord, 0.5 * pattern.slant, avoid=(outline, *marks),
+                short=(f"{pipe.note} foot", pipe.note))
     box = bounds(outline)
     shifted = [moved(e, -box[0], -box[1]) for e in (outline, *marks, *labels(lab))]
     toe_hole = mm(pipe.foot.toe_hole_m)
@@ -187,7 +195,12 @@ def languid(pipe: Pipe) -> Draft:
         half = mm(pipe.mouth.width_m) / 2.0
         y = r + math.sqrt(r * r - half * half)
         marks.append(line("mark", (r - half, y), (r + half, y)))
-    lab = label(f"{pipe.id} languid", (r, r), 1.3 * r, 0.5 * r)
+    disk = Circle("cut-outer", (r, r), r)
+    # below the centre, clear of the flue's chord near the front edge
+    lab = label(f"{pipe.id} languid", (r, 0.75 * r), 1.3 * r, 0.5 * r, avoid=(disk, *marks),
+                short=(f"{pipe.note} languid", pipe.note)) or label(
+        pipe.note, (r, 0.8 * r), 1.6 * r, 1.0 * r, avoid=(disk, *marks),
+        smallest=TINY_LABEL_MM, clear=0.1)
     return _draft(pipe, "languid", 2 * r, 2 * r, Circle("cut-outer", (r, r), r),
                   (*marks, *labels(lab)), "file the marked front edge straight to form the flue")
 
@@ -198,9 +211,11 @@ def cap(pipe: Pipe) -> Draft:
     outside = mm(pipe.inside_diameter_m) + 2.0 * mm(pipe.wall_m)
     rim = max(CAP_RIM_MIN_MM, CAP_RIM_FRACTION * outside)
     r = outside / 2.0 + rim
-    lab = label(f"{pipe.id} cap", (r, r), 1.2 * outside / 2.0, 0.4 * outside / 2.0)
+    fold = Circle("mark", (r, r), outside / 2.0)
+    lab = label(f"{pipe.id} cap", (r, r), 1.2 * outside / 2.0, 0.4 * outside / 2.0,
+                avoid=(fold,), short=(f"{pipe.note} cap", pipe.note))
     return _draft(pipe, "cap", 2 * r, 2 * r, Circle("cut-outer", (r, r), r),
-                  (Circle("mark", (r, r), outside / 2.0), *labels(lab)),
+                  (fold, *labels(lab)),
                   f"turn the {rim:.1f} mm rim down over the body at the marked circle")
 
 

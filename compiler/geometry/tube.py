@@ -146,11 +146,12 @@ def template(pipe: Pipe) -> Draft:
     front = circ / 2.0
     marks: list[Entity] = [line("mark", (front, 0.0), (front, length))]
     marks += _ticks(circ, length) + _holes(pipe, circ, length) + _head(pipe, circ, length)
-    lab = label(f"{pipe.id} {pipe.note} cut {length:.1f} mm, tube {od:.1f} mm; front line, "
-                "top end up", (circ * 0.25, length / 2.0), circ * 0.3, length * 0.9,
-                TEMPLATE_TEXT_MM)
     top = Text("engrave", (front + 1.0, length - TEMPLATE_TEXT_MM - 1.0), TEMPLATE_TEXT_MM,
                "TOP")
+    lab = label(f"{pipe.id} {pipe.note} cut {length:.1f} mm, tube {od:.1f} mm; front line, "
+                "top end up", (circ * 0.25, length / 2.0), circ * 0.3, length * 0.9,
+                TEMPLATE_TEXT_MM, avoid=(*marks, top),
+                short=(f"{pipe.note} cut {length:.1f} mm", pipe.note))
     return Draft(id=f"{pipe.id}-template", pipe_id=pipe.id, group=pipe.group, name="template",
                  material="paper", stock=pipe.stock, thickness_mm=0.0, kind="template",
                  width_mm=circ, height_mm=length, outline=rect("cut-outer", 0, 0, circ, length),

@@ -59,13 +59,13 @@ def _placed_counts(parts: Parts, sheet_id: str) -> Counter[str]:
     by_id = {p.id: p for p in parts.parts}
     sheet = next(s for s in parts.sheets if s.id == sheet_id)
     return Counter(e.operation for pl in sheet.placements
-                   for e in by_id[pl.part_id].entities)
+                   for e in by_id[pl.part_id].entities) + Counter({dxf.SHEET_LAYER: 1})
 
 
 def test_files_written(model: Resolved, parts: Parts, tmp_path: pathlib.Path) -> None:
     paths = dxf.write(model, parts, BuildOptions(), tmp_path)
-    assert [p.name for p in paths] == ["sheet-1-birch-ply.dxf", "sheet-2-pine.dxf",
-                                       "sheet-3-spotted-metal.dxf"]
+    assert [p.name for p in paths] == ["sheet-01-birch-ply.dxf", "sheet-02-pine.dxf",
+                                       "sheet-03-spotted-metal.dxf"]
     assert paths == sorted(paths) and not (tmp_path / "parts").exists()
 
 
@@ -91,7 +91,7 @@ def test_read_back_r2010(model: Resolved, parts: Parts, tmp_path: pathlib.Path) 
         assert not auditor.has_errors and not auditor.fixes, path.name
         colours = {layer.dxf.name: layer.dxf.color for layer in doc.layers}
         assert {k: colours[k] for k in dxf.LAYER_COLOURS} == {
-            "cut-inner": 5, "cut-outer": 1, "mark": 3, "engrave": 6}
+            "cut-inner": 5, "cut-outer": 1, "mark": 3, "engrave": 6, "sheet": 8}
         for e in doc.modelspace():
             layer = e.dxf.layer
             if layer.startswith("cut"):
@@ -113,7 +113,7 @@ def test_entities_per_layer_match_the_parts(model: Resolved, parts: Parts,
 def test_sheet_coordinates_read_back(model: Resolved, parts: Parts,
                                      tmp_path: pathlib.Path) -> None:
     dxf.write(model, parts, BuildOptions(), tmp_path)
-    doc = ezdxf.readfile(tmp_path / "sheet-3-spotted-metal.dxf")
+    doc = ezdxf.readfile(tmp_path / "sheet-03-spotted-metal.dxf")
     sheet = parts.sheets[2]
     expected = [e for pl in sheet.placements
                 for e in placed(parts.part(pl.part_id).entities, pl)]
@@ -147,7 +147,7 @@ def test_r12_closed_polylines(model: Resolved, parts: Parts, tmp_path: pathlib.P
         assert Counter(e.dxf.layer for e in msp) == _placed_counts(parts, path.stem)
         sheet = next(s for s in parts.sheets if s.id == path.stem)
         assert doc.header["$LIMMAX"][:2] == (sheet.length_mm, sheet.width_mm)
-    foot = next(e for e in ezdxf.readfile(tmp_path / "sheet-3-spotted-metal.dxf")
+    foot = next(e for e in ezdxf.readfile(tmp_path / "sheet-03-spotted-metal.dxf")
                 .modelspace().query("POLYLINE[layer=='cut-outer']")
                 if any(v.dxf.bulge for v in e.vertices))
     assert sum(1 for v in foot.vertices if v.dxf.bulge) == 2
@@ -265,3 +265,86 @@ def test_large_rank_writes_quickly(tmp_path: pathlib.Path) -> None:
     assert len(paths) > 1
     digest = hashlib.sha256(paths[0].read_bytes()).hexdigest()
     assert len(digest) == 64
+
+
+def test_every_part_has_an_upright_label_with_its_note(model: Resolved, parts: Parts,
+                                                       tmp_path: pathlib.Path) -> None:
+    """Each placed part carries a TEXT on the engrave layer naming its note (or pipe), and
+    every label reads from the bottom or the right of the sheet (0° or 90°) after nesting
+    turned its part."""
+    by_id = {p.id: p for p in parts.parts}
+    notes = {p.id: p.note for p in model.pipes}
+    for sheet in parts.sheets:
+        for pl in sheet.placements:
+            part = by_id[pl.part_id]
+            texts = [e for e in placed(part.entities, pl) if isinstance(e, Text)]
+            assert texts, part.id
+            if part.pipe_id is not None:
+                assert any(notes[part.pipe_id] in t.text.split(" ") or
+                           t.text.startswith(part.pipe_id) for t in texts), part.id
+            for t in texts:
+                assert t.rotation_deg in (0.0, 90.0), (part.id, t)
+    paths = dxf.write(model, parts, BuildOptions(), tmp_path)
+    for path in paths:
+        for e in ezdxf.readfile(path).modelspace().query("TEXT"):
+            assert e.dxf.layer == "engrave"
+            assert e.dxf.rotation in (0.0, 90.0)
+            assert (e.dxf.halign, e.dxf.valign) == (1, 2)  # centred on its box
+
+
+def test_sheet_outline_and_header_extents(model: Resolved, parts: Parts,
+                                          tmp_path: pathlib.Path) -> None:
+    """The sheet's outline sits on the non-cutting ``sheet`` layer; $EXTMIN/$EXTMAX are the
+    bounds of the entities as ezdxf measures them (its own bounding-box code)."""
+    from ezdxf import bbox
+
+    for path in dxf.write(model, parts, BuildOptions(part_files=True), tmp_path):
+        doc = ezdxf.readfile(path)
+        msp = doc.modelspace()
+        shapes = [e for e in msp if e.dxftype() != "TEXT"]
+        box = bbox.extents(shapes)
+        for e in msp.query("TEXT"):  # a label counts with its box (0.62 × height a letter)
+            w, h = 0.62 * e.dxf.height * len(e.dxf.text), e.dxf.height
+            if e.dxf.rotation == 90.0:
+                w, h = h, w
+            x, y = e.dxf.align_point.x, e.dxf.align_point.y
+            box.extend([(x - w / 2, y - h / 2), (x + w / 2, y + h / 2)])
+        low, high = doc.header["$EXTMIN"], doc.header["$EXTMAX"]
+        if path.parent.name == "parts":
+            assert not msp.query("*[layer=='sheet']")
+            # (ezdxf bounds an arc by its Bezier approximation: within 0.01 mm)
+            assert low[:2] == pytest.approx((box.extmin.x, box.extmin.y), abs=1e-2)
+            assert high[:2] == pytest.approx((box.extmax.x, box.extmax.y), abs=1e-2)
+            continue
+        sheet = next(s for s in parts.sheets if s.id == path.stem)
+        (outline,) = msp.query("*[layer=='sheet']")
+        assert outline.dxftype() == "LWPOLYLINE" and outline.closed
+        assert [tuple(p) for p in outline.get_points("xy")] == [
+            (0.0, 0.0), (sheet.length_mm, 0.0), (sheet.length_mm, sheet.width_mm),
+            (0.0, sheet.width_mm)]
+        assert low[:2] == (0.0, 0.0) and high[:2] == (sheet.length_mm, sheet.width_mm)
+        assert (box.extmin.x, box.extmin.y) == pytest.approx((0.0, 0.0))
+        assert (box.extmax.x, box.extmax.y) == pytest.approx((sheet.length_mm,
+                                                              sheet.width_mm))
+
+
+def test_sheet_files_are_zero_padded_and_sort_in_order(model: Resolved, parts: Parts,
+                                                        tmp_path: pathlib.Path) -> None:
+    names = [p.name for p in dxf.write(model, parts, BuildOptions(), tmp_path)]
+    numbers = [int(n.split("-")[1]) for n in names]
+    assert numbers == list(range(1, len(names) + 1))
+    assert all(len(n.split("-")[1]) == 2 for n in names)
+
+
+def test_a_turned_label_is_flipped_to_read_upright() -> None:
+    """A label along a part (90°) on a part that nesting turns by 90° would read upside
+    down (180°): it is turned half a turn about its centre."""
+    from compiler.geometry.model import Placement
+    from compiler.geometry.paths import text_centre
+
+    label = Text("engrave", (12.0, 5.0), 3.0, "C3 side", 90.0)
+    (moved,) = placed((label,), Placement("p", 100.0, 50.0, True))
+    assert moved.rotation_deg == 0.0
+    # the centre goes where the 90° turn puts it: (x, y) -> (-y, x) + offset
+    cx, cy = text_centre(label)
+    assert text_centre(moved) == pytest.approx((100.0 - cy, 50.0 + cx))

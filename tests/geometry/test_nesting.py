@@ -54,8 +54,8 @@ def test_sample_sheets_hold_every_part_apart() -> None:
     placements = [pl for s in parts.sheets for pl in s.placements]
     assert len(placements) == sum(p.quantity for p in cut)
     assert {s.material for s in parts.sheets} == {"birch-ply", "pine", "spotted-metal"}
-    assert [s.id for s in parts.sheets] == ["sheet-1-birch-ply", "sheet-2-pine",
-                                            "sheet-3-spotted-metal"]
+    assert [s.id for s in parts.sheets] == ["sheet-01-birch-ply", "sheet-02-pine",
+                                            "sheet-03-spotted-metal"]
 
 
 def test_board_sheet_utilisation() -> None:

@@ -270,7 +270,7 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
     labels = [_dim_label(v.dim, inches, key) for v in vdims]
     texts = [co.key_text if key else co.text for co in calls]
     left = min(max((stringWidth(t, FONT, TEXT_PT) for t in texts), default=0.0) + 9 * MM,
-               w * 0.55)
+               w * 0.7)
     if not texts:
         left = 4 * MM
     top_res = 3 * MM + LEVEL * sum(1 for d in hdims if d.above)
