@@ -2,7 +2,8 @@
 
 Hypothesis builds spec texts of every family (open and stopped flue ranks from rolled sheet
 or boards, stopped and open tube sets with and without a holder plate, duct flutes and
-side-blown flutes with 3-8 holes and a fingering table), with random air, tuning and
+side-blown flutes with 3-8 holes and a fingering table, measured instruments of any
+blowing end with random bores and holes), with random air, tuning and
 fabrication in the ranges a maker would write; three "wild" strategies ask for notes,
 scales and holder plates far out of reach, so that most of their specs end in spec errors.
 For each:
@@ -352,6 +353,64 @@ def flute_spec(draw: st.DrawFn, family: str, wild: bool = False) -> str:
                  draw, units)
 
 
+@st.composite
+def survey_spec(draw: st.DrawFn) -> str:
+    """A measured instrument: a cylinder or 2-4 stations (steps included), any blowing end,
+    0-8 holes from either end at random places (overlaps, holes past the ends or wider than
+    the bore end in spec errors), with or without a fingering table."""
+    units = draw(st.sampled_from(("mm", "cm", "in")))
+    total = draw(_between(150.0, 600.0))
+    bore_mm = draw(_between(6.0, 22.0))
+    wall = draw(_between(0.5, 5.0))
+    bore: Any = draw(length(bore_mm, units))
+    if draw(st.booleans()):
+        places = sorted(draw(st.lists(_between(0.0, total), min_size=2, max_size=4)))
+        if draw(st.booleans()):
+            places.insert(1, places[1])  # a step
+        bore = [{"from_top": draw(length(x, units)),
+                 "diameter": draw(length(bore_mm * draw(_between(0.4, 1.4)), units))}
+                for x in places]
+    end = draw(st.sampled_from(("duct", "embouchure", "reed", "closed", "open")))
+    survey: dict[str, Any] = {"id": "survey-1", "length": draw(length(total, units)),
+                              "bore": bore, "wall": draw(length(wall, units)),
+                              "blowing_end": end}
+    if end == "duct":
+        survey["head"] = {"window": {"length": draw(length(draw(_between(3.0, 7.0)), units)),
+                                     "width": draw(length(bore_mm * 0.5, units)),
+                                     "from_top": draw(length(draw(_between(15.0, 45.0)),
+                                                             units))}}
+    elif end == "embouchure":
+        survey["head"] = {"embouchure": {"diameter": draw(length(bore_mm * 0.6, units)),
+                                         "from_top": draw(length(draw(_between(20.0, 50.0)),
+                                                                 units))}}
+    elif end == "reed" and draw(st.booleans()):
+        survey["reed"] = {"extra_length": draw(length(draw(_between(0.0, 30.0)), units))}
+    n = draw(st.integers(0, 8))
+    places = sorted(draw(st.lists(_between(0.35 * total, 0.95 * total), min_size=n,
+                                  max_size=n)))
+    holes = []
+    for x in places:
+        hole: dict[str, Any] = {"diameter": draw(length(bore_mm * draw(_between(0.2, 0.7)),
+                                                        units))}
+        if draw(st.booleans()):
+            hole["from_top"] = draw(length(x, units))
+        else:
+            hole["from_bottom"] = draw(length(total - x, units))
+        if draw(st.booleans()):
+            hole["undercut"] = draw(length(draw(_between(0.0, 0.8)), units))
+        holes.append(hole)
+    if holes:
+        survey["holes"] = holes
+        if draw(st.booleans()):
+            survey["fingerings"] = [
+                {"closed": "x" * (n - k) + "o" * k} | ({"note": draw(note_name(
+                    draw(st.integers(55, 90))))} if draw(st.booleans()) else {})
+                for k in range(n + 1)]
+    if draw(st.booleans()):
+        survey["losses"] = draw(st.sampled_from(("keefe", "none")))
+    return _spec({"surveys": [survey]}, draw, units)
+
+
 # --- the property --------------------------------------------------------------------------
 
 
@@ -425,6 +484,7 @@ FAMILIES: dict[str, Callable[[], st.SearchStrategy[str]]] = {
     "open-tube-holder": lambda: tube_set_spec("open-tube", True),
     "duct-flute": lambda: flute_spec("duct-flute"),
     "side-blown-flute": lambda: flute_spec("side-blown-flute"),
+    "survey": survey_spec,
     # Requests beyond reach: most end in a spec error, which must point into the text.
     "wild-rank": lambda: st.sampled_from(("open-flue", "stopped-flue")).flatmap(
         lambda family: st.sampled_from(("rolled-sheet", "boards")).flatmap(

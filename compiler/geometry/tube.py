@@ -161,10 +161,11 @@ def template(pipe: Pipe) -> Draft:
 
 
 def duct_block(pipe: Pipe) -> Draft | None:
-    """Side and end views of a duct flute's block with its duct flat, or None."""
+    """Side and end views of a duct flute's block with its duct flat, or None (also when the
+    duct's height is not given: there is no flat to draw)."""
     head = pipe.head
     if (head is None or head.kind != "duct" or head.labium_from_top_m is None
-            or pipe.inside_diameter_m is None):
+            or pipe.inside_diameter_m is None or head.duct_height_m is None):
         return None
     bore = mm(pipe.inside_diameter_m)
     length = mm(head.labium_from_top_m) - mm(head.window_length_m or 0.0)

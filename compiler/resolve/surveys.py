@@ -274,7 +274,7 @@ def _report(rows: list[_Row], found: NDArray[np.float64], per_c: NDArray[np.floa
         done.append(Fingering(note=note_name(note), closed=row.closed, register=row.register,
                               target_hz=target, predicted_hz=f, error_cents=cents(f, target),
                               nearest_note=note_name(near), nearest_cents=cents(f, near_hz),
-                              cents_per_c=float(slope)))
+                              cents_per_c=float(slope) if math.isfinite(slope) else None))
     return done, missing
 
 
@@ -371,7 +371,8 @@ def _pipe(survey: spec_model.Survey, air: GroupAir, instrument: Instrument,
         error_cents=lowest.error_cents,
         harmonics_hz=tuple(float(f) for f in registers if np.isfinite(f)),
         cents_per_mm=cents(float(longer), float(shorter)) / (2 * SENSITIVITY_STEP_M * 1000),
-        cents_per_c=lowest.cents_per_c if lowest.cents_per_c is not None else math.nan,
+        cents_per_c=next(f.cents_per_c for f in [lowest, *fingerings]
+                         if f.cents_per_c is not None),
         section="round", inside_diameter_m=top_d, outside_diameter_m=outside,
         inside_width_m=None, inside_depth_m=None, wall_m=survey.wall_m,
         acoustic_length_m=acoustic, end_correction_m=acoustic - speaking,
