@@ -18,8 +18,10 @@ COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantit
 
 def render(parts: Parts) -> str:
     """CSV text, by stock, then in the order of the pipes (as in the spec: low to high);
-    sheet parts name the sheet they are nested on. ``length_mm`` × ``width_mm`` is the size
-    order of every output (``Part.length_by_width``)."""
+    sheet parts name the sheet they are nested on, tube pieces the stock length they are
+    cut from; each stock's lengths to buy (``geometry.stock_plan``) close its rows.
+    ``length_mm`` × ``width_mm`` is the size order of every output
+    (``Part.length_by_width``)."""
     placed = {pl.part_id: sheet.id for sheet in parts.sheets for pl in sheet.placements}
     order: dict[str, int] = {}
     for p in parts.parts:
@@ -34,11 +36,22 @@ def render(parts: Parts) -> str:
         rows.append((p.stock, p.material, f"{p.thickness_mm:.2f}", p.id, p.pipe_id or "",
                      p.name, str(p.quantity), f"{length:.2f}", f"{width:.2f}",
                      placed.get(p.id, ""), p.note))
+    from_length = {piece: f"stock length {bar.number}" for bar in parts.stock_lengths
+                   for piece in bar.pieces}
     for cut in parts.tube_cuts:
         rows.append((cut.stock, cut.material, "", f"{cut.pipe_id}-tube", cut.pipe_id,
                      "tube", "1", f"{cut.length_mm:.2f}", f"{cut.outside_diameter_mm:.2f}",
-                     "stock tube", "width column: outside diameter"))
+                     from_length.get(cut.pipe_id, "stock tube"),
+                     "width column: outside diameter"))
     rows.sort(key=lambda r: (r[0], order.get(r[4] or r[3], len(order)), r[3]))
+    # The lengths to buy follow their stock's pieces: what each one is cut into, in order.
+    for bar in parts.stock_lengths:
+        rows.append((bar.stock, bar.material, "", f"{bar.stock}-length-{bar.number}", "",
+                     "stock length to buy", "1", f"{bar.length_mm:.2f}",
+                     f"{bar.outside_diameter_mm:.2f}", "",
+                     f"cut in this order: {', '.join(bar.pieces)}; pieces and kerfs "
+                     f"{bar.used_mm:.2f} mm, offcut {bar.offcut_mm:.2f} mm"))
+    rows.sort(key=lambda r: r[0])  # stable: each stock's rows stay in the order above
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(COLUMNS)

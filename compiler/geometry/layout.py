@@ -12,6 +12,7 @@ from collections.abc import Callable
 from typing import Any
 
 from compiler.errors import GeometryError, Position, Problem
+from compiler.geometry import stock_plan
 from compiler.geometry.boards import board_drafts
 from compiler.geometry.drafts import Draft, finish
 from compiler.geometry.model import Part, Parts, TubeCut
@@ -154,6 +155,11 @@ def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> 
         sheets = nest(parts, areas, sizes, mm(resolved.fabrication.spacing_m), sources)
     except GeometryError as err:
         problems += err.problems
+    fab = resolved.fabrication
+    saw = mm(fab.kerf_m if fab.tube_kerf_m is None else fab.tube_kerf_m)
+    bought, found = stock_plan.plan(cuts, stock, saw,
+                                    {p.id: p.source for p in resolved.pipes})
+    problems += found
     if problems:
         raise GeometryError(problems)
-    return Parts(tuple(parts), sheets, tuple(cuts))
+    return Parts(tuple(parts), sheets, tuple(cuts), bought)

@@ -121,10 +121,30 @@ class TubeCut:
 
 
 @dataclass(frozen=True)
+class StockLength:
+    """One length of stock tube to buy, and the pieces cut from it (``geometry.stock_plan``)."""
+
+    stock: str
+    material: str
+    number: int
+    """1, 2, ... within its stock."""
+    length_mm: float
+    outside_diameter_mm: float
+    pieces: tuple[str, ...]
+    """Pipe ids, in the order they are cut off."""
+    used_mm: float
+    """The pieces and the kerfs between them."""
+    offcut_mm: float
+    """What is left after the last cut (0 when less than a kerf remains)."""
+
+
+@dataclass(frozen=True)
 class Parts:
     parts: tuple[Part, ...]
     sheets: tuple[Sheet, ...]
     tube_cuts: tuple[TubeCut, ...]
+    stock_lengths: tuple[StockLength, ...] = ()
+    """Lengths of stock tube to buy and the pieces from each (stocks with a length only)."""
 
     def part(self, part_id: str) -> Part:
         return next(p for p in self.parts if p.id == part_id)

@@ -74,6 +74,8 @@ class FabricationReport:
     part_files: bool
     units: str
     """The spec's length unit; the PDF shows inches beside mm when it is ``in`` or ``ft``."""
+    tube_kerf_m: float | None = None
+    """Saw cut when stock tube is cut to length (the stock plan); None: ``kerf_m``."""
 
 
 @dataclass(frozen=True)

@@ -99,7 +99,7 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
             kerf_m=fab.kerf_m, spacing_m=fab.spacing_m, precision_m=fab.precision_m,
             seam_allowance_m=fab.seam_allowance_m, tuning_allowance=_allowance_text(fab),
             paper=fab.paper, dxf_version=fab.dxf_version, part_files=fab.part_files,
-            units=spec.units),
+            units=spec.units, tube_kerf_m=fab.tube_kerf_m),
         stock=tuple(StockItem(s.name, s.kind, s.material, s.thickness_m, s.outside_diameter_m,
                               s.inside_diameter_m, s.length_m, s.width_m) for s in spec.stock),
         groups=tuple(groups),

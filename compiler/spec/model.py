@@ -67,6 +67,8 @@ class Fabrication:
     sheet_length_m: float = 1.2
     sheet_width_m: float = 0.6
     kerf_m: float = 0.0002
+    tube_kerf_m: float | None = None
+    """Saw cut when stock tube is cut to length; None: ``kerf_m``."""
     spacing_m: float = 0.005
     allowance_fraction: float = 0.0
     allowance_m: float = 0.0

@@ -243,6 +243,7 @@ def _fabrication(r: _Reader) -> model.Fabrication:
         sheet_length_m=max(size) if size else default.sheet_length_m,
         sheet_width_m=min(size) if size else default.sheet_width_m,
         kerf_m=default.kerf_m if kerf is None else kerf,
+        tube_kerf_m=r.length((*base, "tube_kerf"), positive=False),
         spacing_m=default.spacing_m if spacing is None else spacing,
         allowance_fraction=allowance_fraction,
         allowance_m=allowance_m,

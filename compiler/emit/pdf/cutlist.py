@@ -21,7 +21,7 @@ from compiler.emit.pdf.style import (
     percent,
     uses_inches,
 )
-from compiler.geometry.model import Part, Parts, Sheet, TubeCut
+from compiler.geometry.model import Part, Parts, Sheet, StockLength, TubeCut
 from compiler.resolve.model import Resolved, StockItem
 
 SECTION = "Cut list"
@@ -157,19 +157,39 @@ def _sheets_table(sheets: Sequence[Sheet]) -> Table:
     return Table(cols, rows, size=8)
 
 
-def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool) -> Table:
+def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool,
+                 from_length: dict[str, str]) -> Table:
     cols = (Column("pipe", 1.8), Column("length mm", 1.0, "right"),
-            Column("outside ø mm", 1.0, "right"), Column("note", 2.6))
+            Column("outside ø mm", 1.0, "right"), Column("from stock length", 1.0, "right"),
+            Column("note", 2.2))
     rows = [(t.pipe_id, mm_of(t.length_mm), mm_of(t.outside_diameter_mm),
-             notes.get(t.pipe_id, "")) for t in cuts]
+             from_length.get(t.pipe_id, "-"), notes.get(t.pipe_id, "")) for t in cuts]
     total = sum(t.length_mm for t in cuts)
     pieces = "1 piece" if len(cuts) == 1 else f"{len(cuts)} pieces"
-    rows.append((f"total ({pieces}, kerf not included)", mm_of(total), "", ""))
+    rows.append((f"total ({pieces}, kerf not included)", mm_of(total), "", "", ""))
     sub: tuple[tuple[str, ...], ...] = ()
     if inches:
         sub = tuple(("", f"{inch_of(t.length_mm)} in", f"{inch_of(t.outside_diameter_mm)} in",
-                     "") for t in cuts) + (("", f"{inch_of(total)} in", "", ""),)
+                     "", "") for t in cuts) + (("", f"{inch_of(total)} in", "", "", ""),)
     return Table(cols, tuple(rows), sub, size=8, shade=(len(rows) - 1,))
+
+
+def _stock_plan(bars: Sequence[StockLength], kerf_mm: float, inches: bool) -> list[Block]:
+    """The lengths of one stock tube to buy and what each is cut into, in order."""
+    if not bars:
+        return [Paragraph("No stock length given for this tube: add its `length` to plan "
+                          "how many lengths to buy.", 8.5)]
+    count = f"{len(bars)} length" + ("" if len(bars) == 1 else "s")
+    size = length(bars[0].length_mm / 1000, inches)
+    cols = (Column("stock length", 0.9, "right"), Column("cut into, in this order", 4.0),
+            Column("pieces and kerfs mm", 1.2, "right"), Column("offcut mm", 0.9, "right"))
+    rows = tuple((str(b.number), ", ".join(b.pieces), mm_of(b.used_mm), mm_of(b.offcut_mm))
+                 for b in bars)
+    return [Spacer(1.5 * MM),
+            Paragraph(f"Buy {count} of {size}: a saw cut of {mm_of(kerf_mm)} mm between "
+                      "pieces, planned longest piece first, each into the first length it "
+                      "fits (first-fit decreasing: few lengths, not always the fewest).", 8.5),
+            Table(cols, rows, size=8, min_rows=1)]
 
 
 def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
@@ -199,7 +219,12 @@ def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
             if sheets:
                 out += [Spacer(1.5 * MM), _sheets_table(sheets)]
         if tubes:
-            out.append(_tubes_table(tubes, tube_notes, inches))
+            bars = [b for b in parts.stock_lengths if b.stock == stock]
+            from_length = {piece: str(b.number) for b in bars for piece in b.pieces}
+            out.append(_tubes_table(tubes, tube_notes, inches, from_length))
+            fab = resolved.fabrication
+            saw = fab.kerf_m if fab.tube_kerf_m is None else fab.tube_kerf_m
+            out += _stock_plan(bars, saw * 1000, inches)
     templates = [p for p in parts.parts if p.kind == "template"]
     if templates:
         out += [Spacer(2 * MM), Heading("Paper templates (printed in the Templates section)",
