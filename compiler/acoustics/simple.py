@@ -17,11 +17,7 @@ import math
 from dataclasses import dataclass
 
 from compiler.acoustics import radiation
-
-MOUTH_ALPHA = 0.9
-"""Rayleigh orifice coefficient of the mouth correction (0.8-1.0, from memory; a flanged orifice
-gives 0.96, after Rayleigh 1896, The Theory of Sound §306–307); a derived approximation, to be
-calibrated against measured pipes."""
+from compiler.acoustics.air import Air
 
 
 @dataclass(frozen=True)
@@ -44,7 +40,7 @@ class PipeAcoustics:
     ``frequency-dependent`` models; ``flanged`` already assumes an infinite wall, and
     ``rule-of-thumb`` is the maker's own k·d."""
     mouth_m: float = 0.0
-    """Mouth end correction (flue pipes), see ``mouth_correction``."""
+    """Mouth end correction (flue pipes), see ``compiler.acoustics.mouth``."""
     scale: float = 1.0
     """Calibration factor applied to all end corrections together."""
 
@@ -52,19 +48,6 @@ class PipeAcoustics:
 def acoustic_length(frequency_hz: float, speed_m_s: float, harmonic: int, stopped: bool) -> float:
     """Effective length whose ``harmonic`` sounds at ``frequency_hz``: n·c/(2f) or n·c/(4f)."""
     return harmonic * speed_m_s / ((4.0 if stopped else 2.0) * frequency_hz)
-
-
-def mouth_correction(
-    pipe_area_m2: float, mouth_area_m2: float, lip_thickness_m: float, alpha: float = MOUTH_ALPHA
-) -> float:
-    """End correction of a flue mouth, as extra length of the pipe (m).
-
-    Δ_m = (S / A_m) · (ℓ + α·√A_m): the mouth is an orifice of area A_m = W·H in a wall of
-    thickness ℓ, with Rayleigh conductivity K = A_m / (ℓ + α√A_m), referred to the pipe area S
-    (Δ = S/K). Derived approximation (Rayleigh 1896, The Theory of Sound §306–307;
-    Fletcher & Rossing 1998 ch. 17 treat the mouth the same way).
-    """
-    return pipe_area_m2 / mouth_area_m2 * (lip_thickness_m + alpha * math.sqrt(mouth_area_m2))
 
 
 def wall_end_ratio(inner_radius_m: float, outer_radius_m: float | None) -> float | None:
@@ -101,18 +84,17 @@ def end_corrections(pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float) 
 
 
 def solve_length(
-    pipe: PipeAcoustics, frequency_hz: float, speed_m_s: float, harmonic: int
+    pipe: PipeAcoustics, frequency_hz: float, air: Air, harmonic: int
 ) -> tuple[float, float]:
     """Physical length (m) sounding ``frequency_hz`` on ``harmonic``, and the correction used."""
-    effective = acoustic_length(frequency_hz, speed_m_s, harmonic, pipe.stopped)
-    correction = end_corrections(pipe, frequency_hz, speed_m_s)
+    effective = acoustic_length(frequency_hz, air.speed_m_s, harmonic, pipe.stopped)
+    correction = end_corrections(pipe, frequency_hz, air.speed_m_s)
     return effective - correction, correction
 
 
-def predict_frequency(
-    pipe: PipeAcoustics, length_m: float, speed_m_s: float, harmonic: int
-) -> float:
+def predict_frequency(pipe: PipeAcoustics, length_m: float, air: Air, harmonic: int) -> float:
     """Frequency (Hz) of ``harmonic`` for a physical length; fixed point when Δ depends on f."""
+    speed_m_s = air.speed_m_s
     divisor = 4.0 if pipe.stopped else 2.0
     frequency = harmonic * speed_m_s / (divisor * length_m)
     for _ in range(60):

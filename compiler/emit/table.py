@@ -54,18 +54,29 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
         lines.append(f"  speed of sound: {air.sound_speed_formula}")
     header = ["note", "target Hz", "predicted Hz", "cents", "speaking mm", "cut mm",
               "section mm", "mouth mm", "cut-up mm", "toe mm", "stock"]
+    banded = any(p.mouth and p.mouth.band_percent for p in pipes)
+    if banded:
+        header[10:10] = ["mouth ± mm", "± cents", "cents/mm cut-up"]
     rows = [header]
     for p in pipes:
-        rows.append([
+        row = [
             p.note, f"{p.target_hz:.2f}", f"{p.predicted_hz:.2f}", f"{p.error_cents:+.2f}",
             _mm(p.speaking_length_m), _mm(p.cut_length_m), _section(p),
             _mm(p.mouth.width_m) if p.mouth else "", _mm(p.mouth.cutup_m) if p.mouth else "",
-            _mm(p.foot.toe_hole_m) if p.foot else "", p.stock])
+            _mm(p.foot.toe_hole_m) if p.foot else "", p.stock]
+        if banded:
+            m = p.mouth
+            row[10:10] = [f"{m.band_m * 1000:.1f}", f"{m.band_sharp_cents:+.1f}/"
+                          f"{m.band_flat_cents:+.1f}", f"{m.cutup_cents_per_mm:+.2f}"] if (
+                m and m.band_percent) else ["", "", ""]
+        rows.append(row)
     if inches:
         header += ["speaking in", "cut in"]
         for row, p in zip(rows[1:], pipes, strict=True):
             row += [_in(p.speaking_length_m), _in(p.cut_length_m)]
-    lines += _align(rows, right={1, 2, 3, 4, 5, 7, 8, 9, 11, 12})
+    extra = 3 if banded else 0  # the band's columns sit before the stock's (column 10)
+    right = {1, 2, 3, 4, 5, 7, 8, 9} | set(range(10, 10 + extra)) | {11 + extra, 12 + extra}
+    lines += _align(rows, right=right)
     for p in pipes:
         if p.holes:
             lines.append("")

@@ -1,11 +1,11 @@
 """Calibration: fit one correction factor to measured prototypes, least squares in cents.
 
 The factor scales every end correction of the group (open ends and mouth together): the
-part of the closed-form model that is least certain (the mouth correction is a derived
-approximation after Rayleigh 1896, The Theory of Sound §306–307, with no published measured
-coefficients behind it). The fit minimises Σ (1200·log2(f_measured / f_model(s)))² over s by
-golden-section search, which needs no derivatives and is exact enough (1e-9) for a
-one-parameter least-squares problem.
+part of the closed-form model that is least certain (the mouth correction is a fit to a
+potential-flow model of a passive pipe, known to about ±8 %, see ``compiler.acoustics.mouth``;
+no published measured coefficients were at hand). The fit minimises
+Σ (1200·log2(f_measured / f_model(s)))² over s by golden-section search, which needs no
+derivatives and is exact enough (1e-9) for a one-parameter least-squares problem.
 """
 
 from __future__ import annotations

@@ -10,9 +10,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from compiler.acoustics import simple
+from compiler.acoustics import mouth, simple
 from compiler.errors import PhysicsError
-from compiler.resolve import calibration, plain, trim
+from compiler.resolve import calibration, mouth_band, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.model import (
     Block,
@@ -130,7 +130,15 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
 
     fit = calibration.fit_measured(rank.measured, rank.notes, f"rank `{rank.id}`",
                                    "measure a pipe of this rank", observe)
-    pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings) for note in rank.notes]
+    found = mouth_band.Shortfalls(rank.id, rank.construction == "rolled-sheet")
+    pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings, found)
+             for note in rank.notes]
+    fab = spec.fabrication
+    warnings += found.notes(plain.allowance_text(fab) if fab.allowance_fraction or
+                            fab.allowance_m else "none",
+                            fab.where.get("tuning_allowance", rank.position),
+                            rank.stopper.travel_m,
+                            rank.where.get("stopper", rank.position))
     group = Group(
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
         air=air.report, end_correction_model=rank.end_correction.model, calibration=fit,
@@ -168,17 +176,32 @@ def _check_rank(rank: spec_model.Rank) -> None:
                               "`diameter`", "width and depth are for wooden pipes")
 
 
+def _mouth_term(section: Section, width: float, cutup: float, lip: float) -> tuple[float, bool]:
+    """The mouth correction (m) and whether the mouth lies inside its fit's range."""
+    if section.round:
+        d = section.diameter_m
+        assert d is not None
+        return (mouth.round_correction(d, width, cutup, lip),
+                mouth.round_in_range(width / d, cutup / d))
+    w, depth = section.width_m, section.depth_m
+    assert w is not None and depth is not None
+    return (mouth.wood_correction(w, depth, width, cutup, lip),
+            mouth.wood_in_range(w, depth, width, cutup))
+
+
 def _acoustics(rank: spec_model.Rank, section: Section, mouth_width: float, cutup: float,
                lip: float, wall: float, scale: float) -> simple.PipeAcoustics:
     stopped = rank.family == "stopped-flue"
-    mouth_area = mouth_width * cutup
-    # A rolled body's open top has the sheet as its wall.
-    end_ratio = simple.wall_end_ratio(section.radius_m, section.radius_m + wall) if (
-        section.round) else None
+    # The open top's wall: the rolled sheet, or the boards of a wooden pipe.
+    if section.round:
+        end_ratio = simple.wall_end_ratio(section.radius_m, section.radius_m + wall)
+    else:
+        assert section.width_m is not None
+        end_ratio = mouth.wooden_top_ratio(wall, section.width_m)
     return simple.PipeAcoustics(
         stopped=stopped, open_ends=0 if stopped else 1, radius_m=section.radius_m,
         end_model=rank.end_correction.model, k=rank.end_correction.k, end_ratio=end_ratio,
-        mouth_m=simple.mouth_correction(section.area_m2, mouth_area, lip), scale=scale)
+        mouth_m=_mouth_term(section, mouth_width, cutup, lip)[0], scale=scale)
 
 
 def _mouth_numbers(rank: spec_model.Rank, note: int, section: Section, thickness: float,
@@ -202,12 +225,22 @@ def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model
     override = _override(rank, m.note)
     target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
     base = _acoustics(rank, section, width, cutup, lip, stock.thickness_m, 1.0)
-    return plain.observation(base, m, target, rank.harmonic, air, step,
-                             (spec.fabrication.allowance_fraction, spec.fabrication.allowance_m))
+    fab = spec.fabrication
+    allowance = (fab.allowance_fraction, fab.allowance_m)
+    if m.length_m is None and not base.stopped:
+        # Cut as the uncalibrated model had it: the allowance covers the mouth band too.
+        length = plain.round_to(simple.solve_length(base, target, air.state,
+                                                    rank.harmonic)[0], step)
+        extra = mouth_band.extra_length(base, _mouth_term(section, width, cutup, lip)[1],
+                                        length, target, rank.harmonic, air.state)
+        allowance = (0.0, max(plain.round_to(length * allowance[0] + allowance[1], step),
+                              mouth_band.round_up(extra, step)))
+    return plain.observation(base, m, target, rank.harmonic, air, step, allowance)
 
 
 def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
-          air: GroupAir, note: int, scale: float, warnings: list[Note]) -> Pipe:
+          air: GroupAir, note: int, scale: float, warnings: list[Note],
+          found: mouth_band.Shortfalls) -> Pipe:
     name = note_name(note)
     label = f"rank `{rank.id}`, {name}"
     where = rank.where.get("notes", rank.position)
@@ -252,17 +285,41 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
         "use a narrower scale or a smaller mouth for the highest pipes, or leave them out")
     fab = spec.fabrication
     length = solved.speaking_length_m
+    _, inside = _mouth_term(section, width, cutup, lip)
+    spread = mouth_band.band(acoustics, inside, length, target, rank.harmonic, air.state, cutup,
+                             lambda h: _acoustics(rank, section, width, h, lip, t, scale))
+    if not inside:
+        across = section.diameter_m if section.round else width
+        assert across is not None
+        ratios = (width / across, cutup / across) if section.round else (
+            width / section.mouth_side_m, cutup / width)
+        mouth_where = where if override and (override.mouth_width or override.cutup) else (
+            rank.where.get("mouth", rank.position))
+        found.outside.setdefault(mouth_where, []).append((name, *ratios))
+    # The cut leaves room for a mouth term smaller than modelled (module mouth_band).
+    cover = mouth_band.round_up(spread.extra_m, fab.precision_m)
     allowance = plain.round_to(length * fab.allowance_fraction + fab.allowance_m,
                                fab.precision_m)
     stopped = rank.family == "stopped-flue"
+    wood_stopper = stopped and not section.round
+    if allowance < cover and not wood_stopper:
+        found.short.append((name, spread.extra_m, length))
+        allowance = cover
     foot = block = stopper = None
-    mouth = Mouth(width, cutup, lip, wf, cf, acoustics.mouth_m * scale)
+    mouth_ir = Mouth(width, cutup, lip, wf, cf, acoustics.mouth_m * scale,
+                     band_percent=100 * spread.fraction, band_m=spread.length_m,
+                     band_sharp_cents=spread.sharp_cents, band_flat_cents=spread.flat_cents,
+                     cutup_cents_per_mm=spread.cutup_cents_per_mm, in_fitted_range=inside)
     side = section.diameter_m if section.round else section.depth_m
     assert side is not None
     if stopped:
         stopper_length = rank.stopper.length_m or max(side, 0.03)
         travel = rank.stopper.travel_m or plain.round_to(max(0.1 * length, 0.01),
                                                          fab.precision_m)
+        if wood_stopper and travel < cover:
+            if rank.stopper.travel_m is not None:
+                found.travel.append((name, cover))
+            travel = cover
         stopper = Stopper(position_m=length, length_m=stopper_length, travel_m=travel)
     if section.round:
         d = section.diameter_m
@@ -294,6 +351,7 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
         inside_depth_m=section.depth_m if not section.round else None,
         wall_m=t, acoustic_length_m=solved.acoustic_length_m,
         end_correction_m=solved.end_correction_m, speaking_length_m=length,
-        cut_length_m=plain.round_to(cut, fab.precision_m), mouth=mouth, foot=foot, block=block,
+        cut_length_m=plain.round_to(cut, fab.precision_m), mouth=mouth_ir, foot=foot,
+        block=block,
         stopper=stopper, head=None, holes=(), fingerings=(), curves=(),
         source=where if override is not None else rank.position)

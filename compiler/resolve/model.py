@@ -104,6 +104,18 @@ class Mouth:
     cutup_fraction: float
     correction_m: float
     """Mouth end correction, as an extra acoustic length."""
+    band_percent: float = 0.0
+    """± relative uncertainty of ``correction_m`` (8 %, or 16 % outside the fitted range)."""
+    band_m: float = 0.0
+    """± uncertainty of ``correction_m`` as a length."""
+    band_sharp_cents: float = 0.0
+    """The pipe's pitch as cut to its speaking length if the mouth term is smaller by the band."""
+    band_flat_cents: float = 0.0
+    """The same if the mouth term is larger by the band (negative: flat)."""
+    cutup_cents_per_mm: float = 0.0
+    """Pitch change for 1 mm more cut-up (voicing raises the cut-up: the pipe goes sharp)."""
+    in_fitted_range: bool = True
+    """The mouth's proportions lie inside the range its correction was fitted over."""
 
 
 @dataclass(frozen=True)

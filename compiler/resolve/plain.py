@@ -11,7 +11,7 @@ from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir
-from compiler.spec.model import Measurement
+from compiler.spec.model import Fabrication, Measurement
 from compiler.spec.notes import note_name
 
 HARMONICS_REPORTED = 6
@@ -33,6 +33,15 @@ class Solved:
     cents_per_c: float
 
 
+def allowance_text(fab: Fabrication) -> str:
+    """The spec's tuning allowance as written: ``3 %``, ``10 mm`` or ``3 % + 5 mm``."""
+    share = f"{fab.allowance_fraction * 100:g} %"
+    length = f"{fab.allowance_m * 1000:g} mm"
+    if fab.allowance_fraction and fab.allowance_m:
+        return f"{share} + {length}"
+    return share if fab.allowance_fraction else length
+
+
 def round_to(value: float, step: float) -> float:
     """Round a dimension to the spec's precision (the maker cannot cut finer)."""
     return round(round(value / step) * step, 9)
@@ -41,8 +50,7 @@ def round_to(value: float, step: float) -> float:
 def solve_plain(pipe: simple.PipeAcoustics, target_hz: float, harmonic: int, air: GroupAir,
                 precision_m: float, label: str, where: Position, hint: str) -> Solved:
     """Length for the target, rounded to the precision, then predicted as it will be cut."""
-    c = air.state.speed_m_s
-    length, correction = simple.solve_length(pipe, target_hz, c, harmonic)
+    length, correction = simple.solve_length(pipe, target_hz, air.state, harmonic)
     if length <= precision_m:
         raise PhysicsError.at(
             where,
@@ -55,7 +63,7 @@ def solve_plain(pipe: simple.PipeAcoustics, target_hz: float, harmonic: int, air
 
 def predict_plain(pipe: simple.PipeAcoustics, length_m: float, target_hz: float,
                   harmonic: int, air: GroupAir) -> Solved:
-    c = air.state.speed_m_s
+    c = air.state
     predicted = simple.predict_frequency(pipe, length_m, c, harmonic)
     series = tuple(simple.predict_frequency(pipe, length_m, c, n)
                    for n in simple.harmonic_numbers(pipe.stopped, HARMONICS_REPORTED))
@@ -63,12 +71,12 @@ def predict_plain(pipe: simple.PipeAcoustics, length_m: float, target_hz: float,
     shorter = simple.predict_frequency(pipe, length_m - SENSITIVITY_STEP_M, c, harmonic)
     per_mm = cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000)
     t = air.state.temperature_k
-    warm = air.at_temperature(t + SENSITIVITY_STEP_K).speed_m_s
-    cool = air.at_temperature(t - SENSITIVITY_STEP_K).speed_m_s
+    warm = air.at_temperature(t + SENSITIVITY_STEP_K)
+    cool = air.at_temperature(t - SENSITIVITY_STEP_K)
     per_c = cents(simple.predict_frequency(pipe, length_m, warm, harmonic),
                   simple.predict_frequency(pipe, length_m, cool, harmonic)) / (
         2 * SENSITIVITY_STEP_K)
-    correction = simple.end_corrections(pipe, predicted, c)
+    correction = simple.end_corrections(pipe, predicted, c.speed_m_s)
     return Solved(
         speaking_length_m=length_m,
         acoustic_length_m=length_m + correction,
@@ -108,15 +116,15 @@ def observation(pipe: simple.PipeAcoustics, measured: Measurement, target_hz: fl
     """
     length = measured.length_m
     if length is None:
-        length = round_to(simple.solve_length(pipe, target_hz, air.state.speed_m_s,
-                                              harmonic)[0], precision_m)
+        length = round_to(simple.solve_length(pipe, target_hz, air.state, harmonic)[0],
+                          precision_m)
         if not pipe.stopped:
             length += round_to(length * allowance[0] + allowance[1], precision_m)
-    speed = air.at_temperature(measured.temperature_k).speed_m_s
+    then = air.at_temperature(measured.temperature_k)
     built = length
 
     def predict(s: float) -> float:
-        return simple.predict_frequency(scaled(pipe, s), built, speed, harmonic)
+        return simple.predict_frequency(scaled(pipe, s), built, then, harmonic)
 
     return calibration.Observation(note_name(measured.note), measured.frequency_hz, predict,
                                    pipe, harmonic, built)

@@ -8,7 +8,7 @@ from collections.abc import Callable
 from functools import partial
 from typing import Any
 
-from compiler.resolve import flue, tubes
+from compiler.resolve import flue, plain, tubes
 from compiler.resolve.model import (
     FabricationReport,
     Group,
@@ -37,12 +37,6 @@ def slug(name: str) -> str:
     text = text.encode("ascii", "ignore").decode("ascii")
     text = re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")
     return text[:80].strip("-") or "instrument"
-
-
-def _allowance_text(fab: spec_model.Fabrication) -> str:
-    if fab.allowance_fraction:
-        return f"{fab.allowance_fraction * 100:g} %"
-    return f"{fab.allowance_m * 1000:g} mm"
 
 
 Memo = Callable[[Any, Callable[[], Any]], Any]
@@ -97,7 +91,7 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
         fabrication=FabricationReport(
             sheet_length_m=fab.sheet_length_m, sheet_width_m=fab.sheet_width_m,
             kerf_m=fab.kerf_m, spacing_m=fab.spacing_m, precision_m=fab.precision_m,
-            seam_allowance_m=fab.seam_allowance_m, tuning_allowance=_allowance_text(fab),
+            seam_allowance_m=fab.seam_allowance_m, tuning_allowance=plain.allowance_text(fab),
             paper=fab.paper, dxf_version=fab.dxf_version, part_files=fab.part_files,
             units=spec.units, tube_kerf_m=fab.tube_kerf_m),
         stock=tuple(StockItem(s.name, s.kind, s.material, s.thickness_m, s.outside_diameter_m,

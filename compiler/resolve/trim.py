@@ -19,6 +19,7 @@ import math
 from collections.abc import Callable, Sequence
 
 from compiler.acoustics import simple
+from compiler.acoustics.air import Air
 from compiler.acoustics.tuning import cents
 from compiler.resolve import plain
 from compiler.resolve.calibration import Observation
@@ -76,7 +77,7 @@ def advise(measured: Sequence[Measurement], observe: Callable[[Measurement], Obs
     the fitted calibration factor, ``pipes`` the group's resolved pipes (for the targets).
     """
     by_note = {p.note: p for p in pipes}
-    c_spec = air.state.speed_m_s
+    c_spec = air.state
     found = []
     for m in measured:
         obs = observe(m)
@@ -85,12 +86,12 @@ def advise(measured: Sequence[Measurement], observe: Callable[[Measurement], Obs
             continue
         model = plain.scaled(obs.pipe, scale)
 
-        def frequency(length_m: float, speed: float, model: simple.PipeAcoustics = model,
+        def frequency(length_m: float, speed: Air, model: simple.PipeAcoustics = model,
                       harmonic: int = obs.harmonic) -> float:
             return simple.predict_frequency(model, length_m, speed, harmonic)
 
         built = obs.length_m
-        c_measured = air.at_temperature(m.temperature_k).speed_m_s
+        c_measured = air.at_temperature(m.temperature_k)
         at_spec = frequency(built, c_spec)
         in_spec_air = m.frequency_hz * at_spec / frequency(built, c_measured)
         wanted = at_spec * pipe.target_hz / in_spec_air

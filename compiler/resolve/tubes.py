@@ -50,8 +50,8 @@ def _choose_stock(tubes: spec_model.TubeSet, spec: spec_model.Spec, note: int, t
     for name in names:
         stock = spec.stock_named(name)
         assert stock is not None and stock.inside_diameter_m is not None
-        length, _ = simple.solve_length(_acoustics(tubes, stock, 1.0), target,
-                                        air.state.speed_m_s, tubes.harmonic)
+        length, _ = simple.solve_length(_acoustics(tubes, stock, 1.0), target, air.state,
+                                        tubes.harmonic)
         aspect = length / stock.inside_diameter_m
         cut = length + (_plug(tubes, stock) if tubes.family == "stopped-tube" else 0.0)
         if aspect < MIN_ASPECT:

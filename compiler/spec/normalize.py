@@ -224,17 +224,37 @@ def _stock(r: _Reader) -> tuple[model.Stock, ...]:
     return tuple(items)
 
 
+def _allowance(r: _Reader, path: Path) -> tuple[float, float]:
+    """A tuning allowance: a share of the speaking length (``3 %``), a length (``10 mm``), or
+    both added (``3 % + 5 mm``: short pipes still keep a few millimetres)."""
+    raw = r.get(path)
+    if raw is None:
+        return 0.0, 0.0
+    parts = raw.split("+") if isinstance(raw, str) and "+" in raw.strip()[1:] else [raw]
+    fraction = length = None
+    for part in parts:
+        text = part.strip() if isinstance(part, str) else part
+        share = isinstance(text, str) and text.endswith("%")
+        if (fraction if share else length) is not None:
+            r.fail(path, f"{_name(path)}: `{raw}` gives the {'share' if share else 'length'} "
+                   "twice", "write a share, a length, or one of each: `3 % + 5 mm`")
+            return 0.0, 0.0
+        try:
+            if share:
+                fraction = units.parse_ratio(text)
+            else:
+                length = units.parse_nonnegative_length(text, r.units)
+        except units.UnitParseError as exc:
+            r.fail(path, f"{_name(path)}: {exc.message}", exc.hint)
+            return 0.0, 0.0
+    return fraction or 0.0, length or 0.0
+
+
 def _fabrication(r: _Reader) -> model.Fabrication:
     base: Path = ("fabrication",)
     default = model.Fabrication()
     size = r.convert((*base, "sheet"), lambda v: units.parse_size2(v, r.units), None)
-    allowance_fraction, allowance_m = 0.0, 0.0
-    raw = r.get((*base, "tuning_allowance"))
-    if raw is not None:
-        if isinstance(raw, str) and raw.strip().endswith("%"):
-            allowance_fraction = r.ratio((*base, "tuning_allowance")) or 0.0
-        else:
-            allowance_m = r.length((*base, "tuning_allowance"), positive=False) or 0.0
+    allowance_fraction, allowance_m = _allowance(r, (*base, "tuning_allowance"))
     kerf = r.length((*base, "kerf"), positive=False)
     spacing = r.length((*base, "spacing"), positive=False)
     precision = r.length((*base, "precision"))

@@ -11,7 +11,6 @@ import jsonschema
 import pytest
 
 from compiler.acoustics import air
-from compiler.acoustics.radiation import thick_wall_end_correction
 from compiler.emit.resolved_json import to_dict
 from compiler.emit.table import render
 from compiler.errors import PhysicsError
@@ -202,36 +201,6 @@ def test_halving_interval_reproduces_normalmensur() -> None:
     assert d["C4"] == pytest.approx(54.98, abs=0.005)
     assert d["C5"] == pytest.approx(32.69, abs=0.005)
     assert d["E3"] == pytest.approx(155.5 / 2, abs=1e-9)
-
-
-def test_mouth_and_its_correction() -> None:
-    # Mouth width 1/4 of the circumference (Töpfer's Normalmensur, Töpfer 1855 via Adelung
-    # 1991; seen in secondary sources); cut-up 1/4 of the width, as the spec asks (principals
-    # 1/4–1/3, common practice, from memory); correction Δ = (S/A)(ℓ + 0.9·√A): Rayleigh's
-    # orifice conductivity (Rayleigh, The Theory of Sound, 1896, §306–307, from memory)
-    # referred to the pipe area, a derived approximation; α = 0.9 is taken from the usual
-    # 0.8–1.0 range (from memory, not calibrated).
-    # Every dimension is as it will be made: rounded to the spec's precision (0.01 mm).
-    pipe = _resolve(_spec(RANK.format(notes="[C3]"))).pipes[0]
-
-    def made(x: float) -> float:
-        return round(x / 1e-5) * 1e-5
-
-    d = made(0.1555 * 2 ** (-12 / 16))
-    width = made(math.pi * d / 4)
-    cutup = made(width / 4)
-    area = width * cutup
-    assert pipe.inside_diameter_m == pytest.approx(d, abs=1e-12)
-    assert pipe.mouth is not None
-    assert pipe.mouth.width_m == pytest.approx(width, abs=1e-12)
-    assert pipe.mouth.cutup_m == pytest.approx(cutup, abs=1e-12)
-    expected = (math.pi * d * d / 4) / area * (0.0008 + 0.9 * math.sqrt(area))
-    assert pipe.mouth.correction_m == pytest.approx(expected, rel=1e-12)
-    # open flue: top correction (unflanged, the default, with the 0.8 mm sheet as its wall:
-    # Dalmont, Nederveen & Joly 2001, checked in tests/acoustics/test_radiation.py) plus the mouth
-    top = float(thick_wall_end_correction(d / 2, d / 2 + 0.0008))
-    assert 0.6133 * d / 2 < top < 0.6133 * d / 2 * 1.02
-    assert pipe.end_correction_m == pytest.approx(top + expected, rel=1e-9)
 
 
 def test_tuning_allowance_adds_to_the_cut_length() -> None:

@@ -162,7 +162,8 @@ def pages(resolved: Resolved, frame: Frame, contents: Sequence[tuple[str, int]])
         blocks.append(Paragraph(
             "Before cutting a whole rank: make one or two pipes, measure their pitch and the "
             "room temperature, and add them under `measured:` in the spec. The mouth's end "
-            "correction is an uncalibrated approximation; the rebuild then corrects every "
+            "correction is known to about ±8 % (each pipe page gives its band in mm and "
+            "cents, and the cut lengths leave room for it); the rebuild then corrects every "
             "pipe to your measurements.", 8.5))
     if resolved.warnings:
         blocks += [Spacer(2 * MM), Heading("Notes from the resolver", 12)]

@@ -8,7 +8,7 @@ drawing whose letters head the table's columns, so a 600-pipe organ stays at ten
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 from reportlab.pdfgen.canvas import Canvas
 
@@ -46,7 +46,7 @@ from compiler.emit.pdf.style import (
     strip_prefix,
     uses_inches,
 )
-from compiler.resolve.model import Group, Pipe, Resolved
+from compiler.resolve.model import Group, Mouth, Pipe, Resolved
 
 SECTION = "Pipes"
 PER_PIPE_LIMIT = 12
@@ -115,6 +115,8 @@ def pipe_blocks(pipe: Pipe, inches: bool) -> list[Block]:
         acoustic.append(_length_row("mouth correction", pipe.mouth.correction_m, inches))
     blocks += [Spacer(2 * MM), Table(_two_col("acoustic lengths", inches), tuple(acoustic),
                                      min_rows=1)]
+    if pipe.mouth is not None and pipe.mouth.band_percent:
+        blocks += [Spacer(2 * MM), mouth_band_table(pipe)]
     if pipe.mouth is not None:
         across = "width" if pipe.section == "rect" else "circumference"
         blocks += [Spacer(2 * MM), Table((Column("mouth proportions", 2.4),
@@ -122,11 +124,26 @@ def pipe_blocks(pipe: Pipe, inches: bool) -> list[Block]:
             (f"mouth width / {across}", fixed(pipe.mouth.width_fraction, 4)),
             ("cut-up / mouth width", fixed(pipe.mouth.cutup_fraction, 4)),
         ), min_rows=1)]
-    blocks += [Spacer(2 * MM), Table((Column("sensitivity", 2.4), Column("", 1.0, "right")), (
-        ("cents per mm longer", sensitivity(pipe.cents_per_mm)),
-        ("cents per °C warmer", sensitivity(pipe.cents_per_c)),
-    ), min_rows=1)]
+    rows = [("cents per mm longer", sensitivity(pipe.cents_per_mm)),
+            ("cents per °C warmer", sensitivity(pipe.cents_per_c))]
+    if pipe.mouth is not None and pipe.mouth.band_percent:
+        rows.append(("cents per mm more cut-up", sensitivity(pipe.mouth.cutup_cents_per_mm)))
+    blocks += [Spacer(2 * MM), Table((Column("sensitivity", 2.4), Column("", 1.0, "right")),
+                                     tuple(rows), min_rows=1)]
     return blocks
+
+
+def mouth_band_table(pipe: Pipe) -> Table:
+    """How uncertain the mouth correction is, as a length and as pitch at the speaking length."""
+    assert pipe.mouth is not None
+    m = pipe.mouth
+    band = f"±{fixed(m.band_percent, 2)} %"
+    return Table((Column(f"mouth correction {band}", 2.4), Column("", 1.3, "right")), (
+        ("as a length", f"±{mm(m.band_m)} mm"),
+        ("pitch if it is smaller", f"{cents(m.band_sharp_cents)} cents"),
+        ("pitch if it is larger", f"{cents(m.band_flat_cents)} cents"),
+        ("inside its fitted range", "yes" if m.in_fitted_range else "no: band widened"),
+    ), min_rows=1)
 
 
 def holes_table(pipe: Pipe, inches: bool) -> Table:
@@ -257,6 +274,22 @@ def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str, in
     return draw
 
 
+def _band_legend(mouths: Sequence[Mouth]) -> str:
+    """The mouth correction's uncertainty over a rank, in one sentence (the per-pipe figures
+    are in resolved.json)."""
+    def span(values: list[float], show: Callable[[float], str]) -> str:
+        lo, hi = min(values), max(values)
+        return show(lo) if show(lo) == show(hi) else f"{show(lo)} to {show(hi)}"
+
+    percent = span([m.band_percent for m in mouths], lambda v: fixed(v, 2))
+    return (f"Mouth correction: uncertain by ±{percent} % (±16 % outside the range its fit "
+            f"covers), ±{span([m.band_m for m in mouths], mm)} mm or "
+            f"{span([m.band_sharp_cents for m in mouths], cents)} cents at the speaking "
+            "length; the cut lengths leave room for a pipe that sounds that sharp. 1 mm "
+            f"more cut-up: {span([m.cutup_cents_per_mm for m in mouths], sensitivity)} "
+            "cents. Each pipe's figures are in resolved.json.")
+
+
 def common(pipes: Sequence[Pipe]) -> list[D.Dim]:
     """The unlettered dimensions that are the same for every pipe of a group."""
     first = [d for d in D.dimensions(pipes[0]) if not d.key]
@@ -286,6 +319,9 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
              f"({air.sound_speed_model}); end correction: {group.end_correction_model}.",
              "Error: predicted minus target, in cents. Sensitivity: cents for 1 mm more "
              "speaking length, and for 1 °C warmer air."]
+    banded = [p.mouth for p in pipes if p.mouth is not None and p.mouth.band_percent]
+    if len(banded) == len(pipes):
+        lines.append(_band_legend(banded))
     same = [f"{d.name} {mm(d.value_m)} mm" for d in common(pipes)]
     mouths = [p.mouth for p in pipes if p.mouth is not None]
     if len(mouths) == len(pipes) and mouths:

@@ -85,7 +85,8 @@ def flue_pipe(group: str, midi: int, ref_d: float, halving: float, error: float,
     acoustic = speed / (2.0 * f)
     end = 0.6133 * d / 2.0
     width = math.pi * d / 4.0
-    mouth = Mouth(width, width / 4.0, 0.0008, 0.25, 0.25, 0.55 * d)
+    mouth = Mouth(width, width / 4.0, 0.0008, 0.25, 0.25, 0.55 * d, 8.0, 0.044 * d, 4.1, -3.9,
+                  0.62)
     speaking = acoustic - end - mouth.correction_m
     p = f * 2.0 ** (error / 1200.0)
     return Pipe(
@@ -114,7 +115,7 @@ def metal_rank() -> tuple[Group, tuple[Pipe, ...]]:
 def wood_pipe() -> tuple[Group, Pipe]:
     f = tet(48)
     acoustic = 342.21 / (4.0 * f)
-    mouth = Mouth(0.060, 0.027, 0.004, 1.0, 0.45, 0.0452)
+    mouth = Mouth(0.060, 0.027, 0.004, 1.0, 0.45, 0.0452, 16.0, 0.0072, 6.3, -5.9, 0.41, False)
     speaking = acoustic - mouth.correction_m
     stopper = Stopper(speaking, 0.070, 0.030)
     block = Block(0.060, 0.0012)
