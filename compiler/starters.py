@@ -330,7 +330,8 @@ flutes:                           # tubes with tone holes
         diameter: 8 mm            # an oval hole: its mean diameter
         from_top: 35 mm           # from the top end of the tube to the hole's centre
         lip_cover: 1/4            # how much of the hole the player's lip covers
-      cork: 14 mm                 # from the embouchure centre up to the cork
+      # cork: 14 mm               # fix the cork (from the embouchure centre up); left out,
+                                  # boresmith places it so that both registers play in tune
     holes:                        # one entry per hole from the head down, solved unless
                                   # it gives {position: 150 mm, diameter: 6 mm}
       - {label: L1}               # a label printed on the template

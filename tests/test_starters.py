@@ -55,10 +55,12 @@ def test_starter_is_valid_as_written_and_resolves(family: str) -> None:
     assert [g.family for g in resolved.groups] == [family]
     assert resolved.pipes and not resolved.warnings
     # Targets follow the starter's A4 and temperament (12-TET, or Werckmeister III as defined at
-    # tonalsoft.com); 1 cent is our design tolerance, not a published figure. A survey is
-    # predicted as measured, not tuned: its errors are what the maker came to learn.
+    # tonalsoft.com); 1 cent is our design tolerance, not a published figure (2 cents for a
+    # flute's first register, which shares its tube with the second). A survey is predicted
+    # as measured, not tuned: its errors are what the maker came to learn.
     if family != "survey":
-        assert all(abs(p.error_cents) < 1.0 for p in resolved.pipes)
+        limit = 2.0 if family.endswith("flute") else 1.0
+        assert all(abs(p.error_cents) < limit for p in resolved.pipes)
 
 
 @pytest.mark.parametrize("family", FAMILIES)

@@ -17,11 +17,26 @@ with, in the e^{+jωt} convention and Zh = ρc/(πb²) (bore-side hole radius b)
 
 Length corrections: inner length t_i and series lengths t_a from the finite-element fits of
 A. Lefebvre & G. P. Scavone, "Characterization of woodwind instrument toneholes with the
-finite element method", JASA 131(4), 3153–3163 (2012); matching-volume length t_m from
-Nederveen, Jansen & van Hassel, Acustica 84, 957–966 (1998) / Dubos et al., Acta Acustica 85,
-153–169 (1999). These coefficients are from memory, not verified against the primary papers
-(the t_i fit agrees with the 0.82b → 0.16b range stated in the Nederveen 1998 abstract); treat
-them as provisional.
+finite element method", JASA 131(4), 3153–3163 (2012), the inner length with its frequency
+dependence (their eqs. 31–32, seen quoted in secondary sources); matching-volume length t_m
+from Nederveen, Jansen & van Hassel, Acustica 84, 957–966 (1998) / Dubos et al., Acta
+Acustica 85, 153–169 (1999). These coefficients are from memory or secondary sources, not
+verified against the primary papers (the t_i fit agrees with the 0.82b → 0.16b range stated
+in the Nederveen 1998 abstract); treat them as provisional.
+
+Radiation of an open hole's outer opening (``HOLE_RADIATION_MODELS``): the opening is cut
+through the tube's wall, so what surrounds it is the tube's whole outer surface, flat along
+the tube and curving away round it. That is not the geometry of Dalmont, Nederveen & Joly's
+(2001) finite-wall formula (``radiation.thick_wall_end_correction``), which describes the end
+of a pipe whose only flange is the annulus of its own wall: with the wall as flange, a hole in
+a 1 mm wall would radiate nearly as an unflanged pipe end, although the tube's surface
+stretches far beyond the wall's thickness on two sides. The ``"on-cylinder"`` fit is made
+for exactly this geometry (a hole in a cylinder of outer radius a + t), so the flute models
+use it; as a cross-check, Keefe's (1990) experimentally based open-hole length
+b·(1.40 − 0.58δ²), less our t_i and t_m, leaves about 0.62b of radiation for δ ≈ 0.35, close
+to the on-cylinder value (about 0.65b for a finger hole in a flute tube) and well below
+0.8216b. ``"frequency-dependent"`` scales the on-cylinder length by the frequency dependence
+of the unflanged end correction (Dalmont et al. 2001), a change under 1 % at finger-hole kb.
 
 Chimney height t is the wall thickness at the hole axis. An undercut (``undercut_m`` = u) widens
 the hole at the bore: the chimney becomes a frustum from radius b + u at the bore to b at the
@@ -43,10 +58,22 @@ from compiler.acoustics.radiation import (
     UNFLANGED_RATIO,
     UNFLANGED_RESISTANCE,
     lumped_radiation_impedance,
+    unflanged_end_correction_ratio,
 )
 
-HOLE_RADIATION_MODELS: tuple[str, ...] = ("unflanged", "flanged", "on-cylinder")
-"""Radiation length of an open hole: 0.6133b, 0.8216b, or the on-cylinder fit (from memory)."""
+HOLE_RADIATION_MODELS: tuple[str, ...] = (
+    "unflanged",
+    "flanged",
+    "on-cylinder",
+    "frequency-dependent",
+)
+"""Radiation length of an open hole: 0.6133b, 0.8216b, the on-cylinder fit (from memory), or
+the on-cylinder fit with the frequency dependence of Dalmont et al. (2001)."""
+
+INNER_KA_MAX = 1.5
+"""The frequency term of the inner length is a polynomial in ka fitted over the first
+resonances of woodwinds; past ka ≈ 1.5 it turns over, so it is held at its value there (our
+choice: flutes' first two registers stay below ka ≈ 0.8)."""
 
 Float = NDArray[np.float64]
 Complex = NDArray[np.complex128]
@@ -60,17 +87,31 @@ def _delta(b: ArrayLike, a: ArrayLike) -> Float:
     )
 
 
-def inner_length(hole_radius_m: ArrayLike, bore_radius_m: ArrayLike) -> Float:
+def inner_length(
+    hole_radius_m: ArrayLike, bore_radius_m: ArrayLike, wavenumber: ArrayLike | None = None
+) -> Float:
     """Inner (junction) length correction t_i of a side hole, metres (Lefebvre & Scavone 2012).
 
-    t_i = b·(0.822 − 0.095δ − 1.566δ² + 2.138δ³ − 1.640δ⁴ + 0.502δ⁵), δ = b/a ≤ 1 (from memory,
-    not verified against the primary paper; check value, computed from the formula as written:
-    b = 4 mm, a = 9.5 mm → 2.476 mm).
+    Low frequency: t_i(0) = b·(0.822 − 0.095δ − 1.566δ² + 2.138δ³ − 1.640δ⁴ + 0.502δ⁵), δ = b/a ≤ 1
+    (from memory, not verified against the primary paper; check value, computed from the
+    formula as written: b = 4 mm, a = 9.5 mm → 2.476 mm).
+    With ``wavenumber`` k (1/m): t_i = t_i(0)·(1 + H(δ)·I(ka)), H = 1 − 4.56δ + 6.55δ²,
+    I = 0.17ka + 0.92(ka)² + 0.16(ka)³ − 0.29(ka)⁴ with a the bore radius (Lefebvre & Scavone
+    2012, eqs. 31–32, seen quoted in secondary sources; ka held at ``INNER_KA_MAX``). Check
+    value, computed from the formula as written: b 4 mm, a 9.5 mm, ka = 0.3 → t_i = 2.557 mm.
     """
     b = np.asarray(hole_radius_m, dtype=np.float64)
     d = _delta(b, bore_radius_m)
     poly = 0.822 + d * (-0.095 + d * (-1.566 + d * (2.138 + d * (-1.640 + d * 0.502))))
-    return np.asarray(b * poly, dtype=np.float64)
+    t_i = b * poly
+    if wavenumber is not None:
+        ka = np.minimum(
+            np.asarray(wavenumber, dtype=np.float64) * np.asarray(bore_radius_m, dtype=np.float64),
+            INNER_KA_MAX,
+        )
+        growth = ka * (0.17 + ka * (0.92 + ka * (0.16 - 0.29 * ka)))
+        t_i = t_i * (1.0 + (1.0 - 4.56 * d + 6.55 * d * d) * growth)
+    return np.asarray(t_i, dtype=np.float64)
 
 
 def matching_length(hole_radius_m: ArrayLike, bore_radius_m: ArrayLike) -> Float:
@@ -101,23 +142,35 @@ def series_length(
     return np.asarray(coef * b * d * d, dtype=np.float64)
 
 
-def radiation_length(model: str, hole_radius_m: ArrayLike, outer_radius_m: ArrayLike) -> Float:
+def radiation_length(
+    model: str,
+    hole_radius_m: ArrayLike,
+    outer_radius_m: ArrayLike,
+    wavenumber: ArrayLike | None = None,
+) -> Float:
     """Radiation length t_r of an open hole's outer opening, metres.
 
     ``"unflanged"`` 0.6133·b (Levine & Schwinger 1948), ``"flanged"`` 0.8216·b (Norris & Sheng
     1989): the two limits quoted by Dalmont, Nederveen & Joly 2001, J. Sound Vib. 244(3),
-    505–534. ``"on-cylinder"``: b·(0.8216 −
-    0.47·(b/(a+w))^0.8), a fit for a hole in a cylinder of outer radius a + w attributed to
-    Dalmont et al., Acta Acustica 88, 567–575 (2002): recalled from memory, NOT VERIFIED.
+    505–534. ``"on-cylinder"``: b·(0.8216 − 0.47·(b/(a+w))^0.8), a fit for a hole in a cylinder
+    of outer radius a + w attributed to Dalmont et al., Acta Acustica 88, 567–575 (2002):
+    recalled from memory, NOT VERIFIED. ``"frequency-dependent"``: the on-cylinder length times
+    Δ(kb)/Δ(0) of the unflanged pipe (Dalmont, Nederveen & Joly 2001, quoted in secondary
+    sources); without ``wavenumber`` (1/m) its low-frequency limit. See the module docstring
+    for why a hole's opening is not treated with the finite-wall pipe-end formula.
     """
     b = np.asarray(hole_radius_m, dtype=np.float64)
     if model == "unflanged":
         return np.asarray(UNFLANGED_RATIO * b, dtype=np.float64)
     if model == "flanged":
         return np.asarray(FLANGED_RATIO * b, dtype=np.float64)
-    if model == "on-cylinder":
+    if model in ("on-cylinder", "frequency-dependent"):
         ratio = np.minimum(b / np.asarray(outer_radius_m, dtype=np.float64), 1.0)
-        return np.asarray(b * (FLANGED_RATIO - 0.47 * ratio**0.8), dtype=np.float64)
+        t_r = b * (FLANGED_RATIO - 0.47 * ratio**0.8)
+        if model == "frequency-dependent" and wavenumber is not None:
+            kb = np.asarray(wavenumber, dtype=np.float64) * b
+            t_r = t_r * unflanged_end_correction_ratio(kb) / UNFLANGED_RATIO
+        return np.asarray(t_r, dtype=np.float64)
     raise ValueError(
         f"unknown hole radiation model {model!r}; expected one of {HOLE_RADIATION_MODELS}"
     )
@@ -174,13 +227,13 @@ def hole_elements(
     b_in = b + np.asarray(undercut_m, dtype=np.float64)
     rho, c = air.density_kg_m3, air.speed_m_s
     k = w / c
-    mass_in = 1j * w * rho * inner_length(b_in, a) / (np.pi * b_in * b_in)
+    mass_in = 1j * w * rho * inner_length(b_in, a, k) / (np.pi * b_in * b_in)
     height = t + matching_length(b_in, a)
     A, B, C, D = frustum_matrix(air, height, b_in, b, w, losses)
     zr = lumped_radiation_impedance(
         k,
         b,
-        radiation_length(radiation, b, a + t),
+        radiation_length(radiation, b, a + t, k),
         _radiation_resistance(radiation),
         rho * c / (np.pi * b * b),
     )

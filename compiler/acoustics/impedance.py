@@ -214,7 +214,9 @@ class Instrument:
 
     length_m: total tube length from the top end to the open foot. radiation: foot end model
     (``radiation.RADIATION_MODELS``); hole_radiation: open holes' and mouth opening's radiation
-    length (``holes.HOLE_RADIATION_MODELS``); losses: ``bore.LOSS_MODELS``.
+    length (``holes.HOLE_RADIATION_MODELS``); losses: ``bore.LOSS_MODELS``. wall_m: the tube's
+    wall at its open ends (the foot, and the top of an ``"open"`` head), which moves their end
+    correction toward the flanged value (``radiation.radiation_impedance``); 0 is a thin wall.
     """
 
     bore: Bore
@@ -224,6 +226,7 @@ class Instrument:
     radiation: str = "unflanged"
     hole_radiation: str = "unflanged"
     losses: str = "keefe"
+    wall_m: float = 0.0
 
     def __post_init__(self) -> None:
         if self.radiation not in RADIATION_MODELS:
@@ -237,6 +240,14 @@ class Instrument:
             raise ValueError("holes must lie in order between the mouth and the foot")
         if any(h.radius_m <= 0 or h.chimney_m < 0 or h.undercut_m < 0 for h in self.holes):
             raise ValueError("holes need a positive radius and a non-negative chimney and undercut")
+        if self.wall_m < 0:
+            raise ValueError("the wall thickness cannot be negative")
+
+    def outer_radius_m(self, bore_radius_m: ArrayLike) -> Float | None:
+        """Outer radius of the tube's open end where the bore radius is given (None: thin)."""
+        if self.wall_m <= 0.0:
+            return None
+        return np.asarray(np.asarray(bore_radius_m, dtype=np.float64) + self.wall_m)
 
 
 def _as_fingerings(fingerings: ArrayLike | None, n_holes: int) -> NDArray[np.bool_]:
@@ -301,16 +312,19 @@ def impedance_batch(
     hole_positions_m: ArrayLike | None = None,
     hole_radii_m: ArrayLike | None = None,
     downstream_only: bool = False,
+    cavity_length_m: ArrayLike | None = None,
 ) -> Complex:
     """Z_total (Pa·s/m³) seen by the jet, for a batch of variants of one instrument.
 
     The variants share the bore profile, head, chimneys and models of ``instrument`` and differ in
     tube length (``length_m``, shape (n_inst,)), hole positions and hole radii (shape
-    (n_inst, n_holes)); omitted overrides take the instrument's values. freqs_hz broadcasts to
-    (n_inst, n_fingerings, n_freqs): a 1-D grid for all, or per-fingering frequencies of shape
-    (n_fingerings, n) or (n_inst, n_fingerings, n). Returns an array of shape
-    (n_inst, n_fingerings, n_freqs). ``downstream_only`` returns Z_down at the mouth instead
-    (no head elements). Holes must stay in order between the mouth and the foot.
+    (n_inst, n_holes)) and head cavity length (``cavity_length_m``, shape (n_inst,): the
+    cork's distance above the mouth); omitted overrides take the instrument's values.
+    freqs_hz broadcasts to (n_inst, n_fingerings, n_freqs): a 1-D grid for all, or
+    per-fingering frequencies of shape (n_fingerings, n) or (n_inst, n_fingerings, n).
+    Returns an array of shape (n_inst, n_fingerings, n_freqs). ``downstream_only`` returns
+    Z_down at the mouth instead (no head elements). Holes must stay in order between the
+    mouth and the foot.
     """
     holes = instrument.holes
     n_holes = len(holes)
@@ -324,8 +338,12 @@ def impedance_batch(
     )
     xs = _column(hole_positions_m, [h.position_m for h in holes], lengths.shape[0])
     rs = _column(hole_radii_m, [h.radius_m for h in holes], lengths.shape[0])
-    n_inst = max(lengths.shape[0], xs.shape[0], rs.shape[0], f.shape[0])
+    cavity = np.atleast_1d(np.asarray(
+        instrument.head.cavity_length_m if cavity_length_m is None else cavity_length_m,
+        dtype=np.float64))
+    n_inst = max(lengths.shape[0], xs.shape[0], rs.shape[0], f.shape[0], cavity.shape[0])
     lengths = np.broadcast_to(lengths, (n_inst,))[:, None, None]
+    cavity = np.broadcast_to(cavity, (n_inst,))[:, None, None]
     xs = np.broadcast_to(xs, (n_inst, n_holes))
     rs = np.broadcast_to(rs, (n_inst, n_holes))
     head = instrument.head
@@ -354,7 +372,8 @@ def impedance_batch(
         za = np.where(shut, za_c, za_o)
         ys = np.where(shut, ys_c, ys_o)
     a_foot = bore.radius_at(lengths)
-    p = radiation_impedance(instrument.radiation, a_foot, k, rho * c / (np.pi * a_foot**2))
+    p = radiation_impedance(instrument.radiation, a_foot, k, rho * c / (np.pi * a_foot**2),
+                            instrument.outer_radius_m(a_foot))
     u = np.ones_like(p)
     for h in range(n_holes, -1, -1):
         for A, B, C, D in reversed(pieces):
@@ -368,26 +387,68 @@ def impedance_batch(
     shape = (n_inst, closed.shape[0], f.shape[-1])
     if downstream_only:
         return np.broadcast_to(p / u, shape).astype(np.complex128)
-    y_j = u / p
-    if head.cavity_length_m > 0.0:
-        # Closed at the cork: start from (P, U) = (1, 0) there and carry it down to the mouth
-        # through the reversed matrices [[D, B], [C, A]] (U counted toward the cork).
-        top = head.mouth_position_m - head.cavity_length_m
-        cp: Complex | float = 1.0
-        cu: Complex | float = 0.0
-        for A, B, C, D in _piece_matrices(instrument, air, omega, np.array(top), x_m):
-            cp, cu = D * cp + B * cu, C * cp + A * cu
-        y_j = y_j + cu / cp
+    y_j = u / p + _cavity_admittance(instrument, air, omega, x_m, cavity)
     if head.kind == "closed":
         return np.broadcast_to(1.0 / y_j, shape).astype(np.complex128)
     a_m = float(bore.radius_at(head.mouth_position_m))
     if head.kind == "open":
         z = 1.0 / y_j + radiation_impedance(
-            instrument.radiation, a_m, k, rho * c / (np.pi * a_m**2)
+            instrument.radiation, a_m, k, rho * c / (np.pi * a_m**2),
+            instrument.outer_radius_m(a_m)
         )
     else:
         z = _mouth(instrument, air, omega, a_m, 1.0 / y_j)
     return np.broadcast_to(z, shape).astype(np.complex128)
+
+
+def _cavity_admittance(
+    instrument: Instrument, air: Air, omega: Float, x_m: Float, cavity: Float
+) -> Complex | float:
+    """Admittance of the closed head cavity at the mouth (0 where there is none)."""
+    if not np.any(cavity > 0.0):
+        return 0.0
+    if np.any(cavity > instrument.head.mouth_position_m + 1e-12) or np.any(cavity < 0.0):
+        raise ValueError("the head cavity must lie inside the tube, above the mouth")
+    # Closed at the cork: start from (P, U) = (1, 0) there and carry it down to the mouth
+    # through the reversed matrices [[D, B], [C, A]] (U counted toward the cork). A zero
+    # cavity gives the identity (no piece overlaps it) and adds nothing.
+    cp: Complex | float = 1.0
+    cu: Complex | float = 0.0
+    for A, B, C, D in _piece_matrices(instrument, air, omega, x_m - cavity, x_m):
+        cp, cu = D * cp + B * cu, C * cp + A * cu
+    return np.asarray(cu / cp, dtype=np.complex128)
+
+
+def head_impedance(
+    instrument: Instrument,
+    air: Air,
+    freqs_hz: ArrayLike,
+    cavity_length_m: ArrayLike | None = None,
+) -> Complex:
+    """The impedance the jet sees from the head alone: the mouth opening in series with the
+    closed head cavity, the bore below the mouth blocked (Pa·s/m³, shape (n_inst, n_freqs) for
+    ``cavity_length_m`` of shape (n_inst,), default the head's own).
+
+    Its upward reactance zero is the head's own (Helmholtz-like) resonance: the mouth's
+    inertance against the cavity's compliance. Only ``"duct"`` and ``"embouchure"`` heads have
+    one; an ``"open"`` or ``"closed"`` head raises ValueError.
+    """
+    head = instrument.head
+    if head.kind in ("open", "closed"):
+        raise ValueError(f"an {head.kind} head has no mouth opening")
+    f = np.atleast_1d(np.asarray(freqs_hz, dtype=np.float64))
+    if np.any(~(f > 0.0)):
+        raise ValueError("frequencies must be positive")
+    cavity = np.atleast_1d(np.asarray(
+        head.cavity_length_m if cavity_length_m is None else cavity_length_m, dtype=np.float64))
+    omega = 2.0 * np.pi * np.broadcast_to(f, (cavity.size, f.size))
+    x_m = np.full((cavity.size, 1), head.mouth_position_m)
+    y_cav = _cavity_admittance(instrument, air, omega, x_m, cavity[:, None])
+    if not np.any(np.asarray(y_cav) != 0.0):
+        raise ValueError("a head without a cavity has no resonance of its own")
+    a_m = float(instrument.bore.radius_at(head.mouth_position_m))
+    z_cav = np.asarray(1.0 / np.asarray(y_cav), dtype=np.complex128)
+    return np.asarray(_mouth(instrument, air, omega, a_m, z_cav), dtype=np.complex128)
 
 
 def _mouth(instrument: Instrument, air: Air, omega: Float, a_m: float, z_j: Complex) -> Complex:
@@ -396,14 +457,15 @@ def _mouth(instrument: Instrument, air: Air, omega: Float, a_m: float, z_j: Comp
     rho, c = air.density_kg_m3, air.speed_m_s
     b = head.opening_radius_m
     area = np.pi * b * b
-    z = z_j + 1j * omega * rho * float(inner_length(b, a_m)) / area
+    k = omega / c
+    z = z_j + 1j * omega * rho * inner_length(b, a_m, k) / area
     height = head.opening_chimney_m + float(matching_length(b, a_m))
     A, B, C, D = frustum_matrix(air, height, b, b, omega, instrument.losses)
     z = (A * z + B) / (C * z + D)
     model = instrument.hole_radiation
-    t_r = radiation_length(model, b, a_m + head.opening_chimney_m)
+    t_r = radiation_length(model, b, a_m + head.opening_chimney_m, k)
     resistance = UNFLANGED_RESISTANCE if model == "unflanged" else FLANGED_RESISTANCE
-    z = z + lumped_radiation_impedance(omega / c, b, t_r, resistance, rho * c / area)
+    z = z + lumped_radiation_impedance(k, b, t_r, resistance, rho * c / area)
     return np.asarray(
         z + 1j * omega * rho * head.extra_length_m / (np.pi * a_m**2), dtype=np.complex128
     )

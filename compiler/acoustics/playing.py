@@ -25,7 +25,13 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from compiler.acoustics.air import Air
-from compiler.acoustics.impedance import Instrument, impedance_batch, input_impedance
+from compiler.acoustics.holes import effective_length, lattice_cutoff
+from compiler.acoustics.impedance import (
+    Instrument,
+    head_impedance,
+    impedance_batch,
+    input_impedance,
+)
 from compiler.acoustics.tuning import cents
 
 Float = NDArray[np.float64]
@@ -164,6 +170,29 @@ def track(
     return f, slope, np.isfinite(f)
 
 
+def register_frequencies(
+    evaluate: Evaluate,
+    shape: tuple[int, int],
+    registers: ArrayLike,
+    f_lo: float,
+    f_hi: float,
+    guess: Float | None = None,
+) -> tuple[Float, Float]:
+    """Each fingering's chosen register: frequencies (shape (n_inst, n_fingerings)) and
+    reactance slopes d(Im Z)/df. ``registers``: 1, 2, ... per fingering (the n-th upward
+    crossing). Tracked from ``guess`` (broadcastable to ``shape``) when given, else, or when
+    any fails to track, picked from a scan from f_lo to f_hi (Hz); NaN where none is found."""
+    regs = np.broadcast_to(np.asarray(registers, dtype=int), (shape[1],))
+    if guess is not None:
+        f, slope, ok = track(evaluate, np.broadcast_to(guess, shape)[..., None].copy())
+        if np.all(ok):
+            return f[..., 0], slope[..., 0]
+    lo, hi = bracket(evaluate, log_grid(f_lo, f_hi), shape, registers=int(regs.max()))
+    rows = np.arange(shape[1])
+    f, slope = refine(evaluate, lo[:, rows, regs - 1][..., None], hi[:, rows, regs - 1][..., None])
+    return f[..., 0], slope[..., 0]
+
+
 def first_register(
     evaluate: Evaluate,
     shape: tuple[int, int],
@@ -174,13 +203,7 @@ def first_register(
     """Register-1 frequencies (shape (n_inst, n_fingerings)) and reactance slopes d(Im Z)/df:
     tracked from ``guess`` (broadcastable to ``shape``) when given, else, or when any fails to
     track, the lowest crossing of a scan from f_lo to f_hi (Hz)."""
-    if guess is not None:
-        f, slope, ok = track(evaluate, np.broadcast_to(guess, shape)[..., None].copy())
-        if np.all(ok):
-            return f[..., 0], slope[..., 0]
-    lo, hi = bracket(evaluate, log_grid(f_lo, f_hi), shape, registers=1)
-    f, slope = refine(evaluate, lo, hi)
-    return f[..., 0], slope[..., 0]
+    return register_frequencies(evaluate, shape, np.ones(shape[1], dtype=int), f_lo, f_hi, guess)
 
 
 def resonances(
@@ -258,3 +281,101 @@ def predictions(
     found = np.isfinite(chosen)
     resid = np.where(found, cents(np.where(found, chosen, 1.0), targets), np.nan)
     return res.frequencies_hz, np.asarray(resid, dtype=np.float64), res.octave_cents
+
+
+WEAK_RATIO = 0.1
+"""A second-register admittance peak under this fraction of the same fingering's first is
+reported as weak: the jet finds it hard to hold. Our threshold, not a published one: the
+ratio depends on the losses (radiation alone, a lossless bore gives about a quarter; wall
+losses raise it), so only a clearly smaller peak counts; a measured prototype is the better
+judge."""
+
+SPLIT_CENTS = 150.0
+"""Two upward reactance crossings this close to a second-register resonance make it split:
+the jet may settle on either (a head resonance or a cross-fingering near the register).
+Our threshold, not a published one."""
+
+
+def second_register_quality(
+    instrument: Instrument, air: Air, fingerings: ArrayLike, frequencies_hz: ArrayLike
+) -> tuple[str, ...]:
+    """``"clear"``, ``"weak"``, ``"split"`` or ``"none"`` for each fingering's second register.
+
+    frequencies_hz: shape (n_fingerings, 2), registers 1 and 2 (NaN: not found, ``"none"``).
+    Split: another upward crossing of Im Z within ``SPLIT_CENTS`` of the second register.
+    Weak: above the cutoff of the fingering's open tone-hole lattice (``lattice_cutoffs``:
+    there the open holes no longer end the air column, Benade 1960), or an admittance peak
+    |Y| under ``WEAK_RATIO`` of the first register's.
+    """
+    closed = _fingerings(instrument, fingerings)
+    f = np.asarray(frequencies_hz, dtype=np.float64)
+    found = np.isfinite(f[:, 0]) & np.isfinite(f[:, 1])
+    safe = np.where(np.isfinite(f), f, 1000.0)
+    y = np.abs(1.0 / played(instrument, input_impedance(instrument, air, safe, closed)))
+    span = 2.0 ** (SPLIT_CENTS / 1200.0)
+    offsets = np.geomspace(1.0 / span, span, 61)
+    grid = safe[:, 1:2] * offsets[None, :]
+    g = played(instrument, impedance_batch(instrument, air, grid, closed)[0]).imag
+    crossings = ((g[:, :-1] < 0.0) & (g[:, 1:] >= 0.0)).sum(axis=1)
+    cutoffs = lattice_cutoffs(instrument, air, closed)
+    out = []
+    for i in range(closed.shape[0]):
+        cutoff = cutoffs[i]
+        if not found[i]:
+            out.append("none")
+        elif crossings[i] >= 2:
+            out.append("split")
+        elif (cutoff is not None and f[i, 1] > cutoff) or y[i, 1] < WEAK_RATIO * y[i, 0]:
+            out.append("weak")
+        else:
+            out.append("clear")
+    return tuple(out)
+
+
+def head_resonance(instrument: Instrument, air: Air, f_max_hz: float = 20000.0) -> float | None:
+    """The head's own resonance (Hz): the lowest upward reactance zero of the mouth opening in
+    series with the closed cavity above it, the bore blocked (``impedance.head_impedance``); None
+    without a cavity or below ``f_max_hz``. The cavity's compliance against the mouth's
+    inertance, a Helmholtz resonator (Rayleigh, The Theory of Sound, 1896, §303, from memory):
+    register notes near it lose their octaves, those above it their strength."""
+    if instrument.head.kind in ("open", "closed") or instrument.head.cavity_length_m <= 0.0:
+        return None
+
+    def evaluate(freqs: Float) -> NDArray[np.complex128]:
+        shaped = np.asarray(freqs)
+        return head_impedance(instrument, air, shaped.reshape(-1)).reshape(shaped.shape)
+
+    lo, hi = bracket(evaluate, log_grid(100.0, f_max_hz), (1, 1), registers=1)
+    f, _ = refine(evaluate, lo, hi)
+    value = float(f[0, 0, 0])
+    return value if np.isfinite(value) else None
+
+
+def lattice_cutoffs(instrument: Instrument, air: Air, fingerings: ArrayLike) -> tuple[
+        float | None, ...]:
+    """Benade's tone-hole lattice cutoff (Hz) of each fingering's open holes (``holes.
+    lattice_cutoff``), with the mean centre spacing, radius and effective length of the open
+    holes from the topmost open one down and the bore at them; None with fewer than two open
+    holes there. Above it the open holes no longer end the air column: second-register notes
+    above it are weak (Benade 1960, JASA 32, 1591–1608, from memory)."""
+    closed = _fingerings(instrument, fingerings)
+    holes = instrument.holes
+    x = np.array([h.position_m for h in holes])
+    b = np.array([h.radius_m for h in holes])
+    a = instrument.bore.radius_at(x)
+    t_e = effective_length(b, a, np.array([h.chimney_m for h in holes]),
+                           instrument.hole_radiation,
+                           np.array([h.undercut_m for h in holes])) if holes else np.zeros(0)
+    out: list[float | None] = []
+    for row in closed:
+        opened = np.flatnonzero(~row)
+        if opened.size < 2 or np.any(row[opened[0]:]):
+            # Fewer than two open holes, or closed holes below the first open one (a cross
+            # fingering): no regular open lattice.
+            out.append(None)
+            continue
+        spacing = float(np.mean(np.diff(x[opened])))
+        value = lattice_cutoff(air.speed_m_s, float(np.mean(a[opened])),
+                               float(np.mean(b[opened])), spacing, float(np.mean(t_e[opened])))
+        out.append(float(value))
+    return tuple(out)

@@ -166,7 +166,11 @@ def lumped_radiation_impedance(
 
 
 def radiation_impedance(
-    model: str, radius_m: ArrayLike, k_wave: ArrayLike, zc: ArrayLike
+    model: str,
+    radius_m: ArrayLike,
+    k_wave: ArrayLike,
+    zc: ArrayLike,
+    outer_radius_m: ArrayLike | None = None,
 ) -> NDArray[np.complex128]:
     """Radiation impedance of an open pipe end of radius ``radius_m`` (Pa·s/m³, e^{+jωt}).
 
@@ -175,14 +179,24 @@ def radiation_impedance(
     R = −|R|·exp(−2jkΔ(ka)), Zr = zc·(1 + R)/(1 − R); at low ka this tends to
     zc·((ka)²/4 + j·0.6133·ka) (Levine & Schwinger 1948). The other models use the low-frequency
     form of ``lumped_radiation_impedance`` with their Δ (see the module docstring).
+
+    ``outer_radius_m``: the pipe's outer radius at this end (None: a thin wall). A wall moves
+    the unflanged end correction toward the flanged one (``thick_wall_end_correction``):
+    ``"unflanged"`` takes that Δ; ``"frequency-dependent"`` keeps the shape of Δ(ka) and |R| of
+    the thin pipe and scales Δ by Δ_wall(0)/Δ_thin(0) (our approximation: the wall's effect is
+    a low-frequency one, and a flute's foot stays below ka ≈ 0.5). The flanged and rule-of-thumb
+    models already stand for a given end and ignore it.
     """
     _check(model)
     k = np.asarray(k_wave, dtype=np.float64)
     a = np.asarray(radius_m, dtype=np.float64)
     ka = k * a
+    wall: float | Float = 1.0
+    if outer_radius_m is not None and model in ("unflanged", "frequency-dependent"):
+        wall = thick_wall_end_correction(a, outer_radius_m) / (UNFLANGED_RATIO * a)
     if model == "frequency-dependent":
         refl = -unflanged_reflection_magnitude(ka) * np.exp(
-            -2j * k * a * unflanged_end_correction_ratio(ka)
+            -2j * k * a * wall * unflanged_end_correction_ratio(ka)
         )
         return np.asarray(np.asarray(zc) * (1.0 + refl) / (1.0 - refl), dtype=np.complex128)
     if model == "flanged-frequency-dependent":
@@ -190,4 +204,4 @@ def radiation_impedance(
             k, a, a * flanged_end_correction_ratio(ka), FLANGED_RESISTANCE, zc
         )
     resistance = FLANGED_RESISTANCE if model == "flanged" else UNFLANGED_RESISTANCE
-    return lumped_radiation_impedance(k, a, end_correction(model, a), resistance, zc)
+    return lumped_radiation_impedance(k, a, wall * end_correction(model, a), resistance, zc)

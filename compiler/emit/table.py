@@ -88,12 +88,23 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
                           + ([_in(h.position_from_top_m), _in(h.diameter_m)] if inches else [])
                           for h in p.holes]
             lines += _align(hole_rows, right={1, 2, 3, 4, 5, 6})
+        if p.head is not None and (p.head.cork_m is not None or p.head.resonance_hz):
+            lines.append("")
+            words = []
+            if p.head.cork_m is not None:
+                words.append(f"cork {_mm(p.head.cork_m)} mm above the embouchure centre")
+            if p.head.resonance_hz:
+                words.append(f"head resonance {p.head.resonance_hz:.0f} Hz")
+            lines.append(f"{p.id}: " + ", ".join(words))
         if p.fingerings:
             lines.append("")
-            f_rows = [["note", "reg", "fingering", "target Hz", "predicted Hz", "cents"]]
+            f_rows = [["note", "reg", "fingering", "target Hz", "predicted Hz", "cents",
+                       "cutoff Hz"]]
             f_rows += [[f.note, str(f.register),
                         "".join("x" if c else "o" for c in f.closed),
-                        f"{f.target_hz:.2f}", f"{f.predicted_hz:.2f}", f"{f.error_cents:+.2f}"]
+                        f"{f.target_hz:.2f}", f"{f.predicted_hz:.2f}",
+                        f"{f.error_cents:+.2f}" if f.resonance == "clear" else f.resonance,
+                        f"{f.cutoff_hz:.0f}" if f.cutoff_hz is not None else ""]
                        for f in p.fingerings]
             if any(f.nearest_note is not None for f in p.fingerings):
                 # A survey: the nearest note of the tuning and the pitch's drift with the air.
@@ -101,7 +112,7 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
                 for row, f in zip(f_rows[1:], p.fingerings, strict=True):
                     row += [f.nearest_note or "", _signed(f.nearest_cents),
                             _signed(f.cents_per_c)]
-            lines += _align(f_rows, right={3, 4, 5, 7, 8})
+            lines += _align(f_rows, right={3, 4, 5, 6, 8, 9})
     return lines
 
 

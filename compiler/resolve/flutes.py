@@ -20,29 +20,40 @@ from compiler.acoustics.impedance import Bore, Instrument
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
-from compiler.resolve import calibration, plain
+from compiler.resolve import calibration, flute_report, plain
 from compiler.resolve.environment import group_air
-from compiler.resolve.model import Curve, Fingering, Group, Head, Hole, Note, Pipe
+from compiler.resolve.model import Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
 
 NO_SECOND_REGISTER = spec_model.NO_SECOND_REGISTER
-SECOND_REGISTER_WARNING_CENTS = 30.0
-"""A second-register note further off than this is reported as a warning: beyond what a
-player can lip into tune (common practice, from memory)."""
 ABOVE_CORK_M = 0.015
+CORK_ROOM_M = 0.005
+"""A free cork stays at least this far below the top end, room for the cork itself (our
+choice)."""
+LIP_COVER = 0.25
+"""Fraction of the embouchure hole the lip covers when the spec does not say: players cover
+about a quarter to a third (common practice, from memory). A quarter, the lower end: the
+starter and the examples use it, and a flute designed there is lipped down to pitch by
+covering more (the easier direction for most players); `measured:` fits the player's own."""
+HOLE_RADIATION = {"unflanged": "on-cylinder", "flanged": "flanged",
+                  "frequency-dependent": "frequency-dependent"}
+"""The spec's radiation model for the open holes (see ``compiler.acoustics.holes``): an
+opening in the tube's surface radiates as a hole on a cylinder; "flanged" keeps the
+infinite-flange limit."""
 SENSITIVITY_STEP_M = 1e-4
 SENSITIVITY_STEP_K = 0.5
-CURVE_POINTS = 400
 
 
 def _at(flute: spec_model.Flute, key: str) -> Position:
     return flute.where.get(key) or flute.where.get("head") or flute.position
 
 
-def _head(flute: spec_model.Flute, bore_d: float, wall: float) -> tuple[EngineHead, Head]:
-    """The exciting end, checked against the tube it sits in."""
+def _head(flute: spec_model.Flute, bore_d: float,
+          wall: float) -> tuple[EngineHead, Head, solve.CorkRange | None]:
+    """The exciting end, checked against the tube it sits in, and the cork's range (None for
+    a duct flute; fixed where the spec gives `cork`)."""
     h = flute.head
     name = f"flute `{flute.id}`"
     if flute.family == "duct-flute":
@@ -65,43 +76,59 @@ def _head(flute: spec_model.Flute, bore_d: float, wall: float) -> tuple[EngineHe
                                   f"half the bore ({bore_d * 1000:.1f} mm) or more",
                                   "ducts are commonly 1 to 1.5 mm high")
         mouth = labium - h.window_length_m / 2
+        # The bore is closed at the block's face, the window's upper edge: half a window
+        # above the mouth's centre.
         engine = EngineHead("duct", mouth_position_m=mouth, window_length_m=h.window_length_m,
-                            window_width_m=h.window_width_m, window_thickness_m=wall)
+                            window_width_m=h.window_width_m, window_thickness_m=wall,
+                            cavity_length_m=h.window_length_m / 2)
         report = Head("duct", h.window_length_m, h.window_width_m, h.duct_height_m, labium,
                       None, None, None)
-        return engine, report
+        return engine, report, None
     assert h.embouchure_diameter_m is not None
     if h.embouchure_diameter_m >= bore_d:
         raise PhysicsError.at(_at(flute, "head.embouchure.diameter"),
                               f"{name}: the embouchure hole ({h.embouchure_diameter_m * 1000:.1f}"
                               f" mm) is as wide as the bore ({bore_d * 1000:.1f} mm) or wider",
                               "an embouchure hole is commonly 1/2 to 2/3 of the bore diameter")
-    cork = h.cork_m or bore_d
-    mouth = h.embouchure_from_top_m or (cork + ABOVE_CORK_M)
-    if cork >= mouth:
+    low, high = (r * bore_d for r in solve.CORK_RANGE)
+    mouth = h.embouchure_from_top_m or ((h.cork_m or high) + ABOVE_CORK_M)
+    if h.cork_m is not None and h.cork_m >= mouth:
         raise PhysicsError.at(_at(flute, "head.cork"),
-                              f"{name}: the cork {cork * 1000:.1f} mm above the embouchure hole "
-                              f"would sit above the top end (the hole is {mouth * 1000:.1f} mm "
-                              "from the top)",
+                              f"{name}: the cork {h.cork_m * 1000:.1f} mm above the embouchure "
+                              f"hole would sit above the top end (the hole is "
+                              f"{mouth * 1000:.1f} mm from the top)",
                               "make `cork` smaller than `embouchure.from_top`, or move the hole "
                               "further down")
+    if h.cork_m is not None:
+        cork = solve.CorkRange(h.cork_m, h.cork_m, h.cork_m)
+    else:
+        high = min(high, mouth - CORK_ROOM_M)
+        if high <= low:
+            raise PhysicsError.at(_at(flute, "head.embouchure.from_top"),
+                                  f"{name}: the embouchure hole {mouth * 1000:.1f} mm from the "
+                                  f"top leaves no room for a cork {low * 1000:.1f} mm or more "
+                                  "above it",
+                                  "move the embouchure hole further down, or give `cork`")
+        cork = solve.CorkRange(low, high, min(max(bore_d, low), high))
     engine = EngineHead("embouchure", mouth_position_m=mouth,
                         embouchure_radius_m=h.embouchure_diameter_m / 2,
-                        embouchure_chimney_m=wall, cavity_length_m=cork,
-                        lip_coverage=h.lip_cover if h.lip_cover is not None else 0.25)
-    report = Head("embouchure", None, None, None, None, h.embouchure_diameter_m, mouth, cork)
-    return engine, report
+                        embouchure_chimney_m=wall, cavity_length_m=cork.start_m,
+                        lip_coverage=h.lip_cover if h.lip_cover is not None else LIP_COVER)
+    report = Head("embouchure", None, None, None, None, h.embouchure_diameter_m, mouth,
+                  cork.start_m)
+    return engine, report, cork
 
 
-def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
-        list[tuple[bool, ...]], list[float], list[int], list[str]]:
-    """Fingering table rows: every fingering in register 1, then again in register 2."""
-    table, targets, registers, names = [], [], [], []
+def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> flute_report.Rows:
+    """Fingering table rows: every fingering in register 1, then again in register 2; each
+    row's spec position is its fingering's."""
+    table, targets, registers, names, where = [], [], [], [], []
     for f in flute.fingerings:
         table.append(f.closed)
         targets.append(target_hz(spec.tuning, f.note, f.frequency_hz))
         registers.append(1)
         names.append(note_name(f.note))
+        where.append(f.position)
     for f, first in zip(flute.fingerings, list(targets), strict=True):
         if f.second_register == NO_SECOND_REGISTER:
             continue
@@ -110,25 +137,20 @@ def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         targets.append(target_hz(spec.tuning, second) if second <= 127 else 2 * first)
         registers.append(2)
         names.append(note_name(min(second, 127)))
-    return table, targets, registers, names
+        where.append(f.position)
+    return flute_report.Rows(tuple(table), tuple(targets), tuple(registers), tuple(names),
+                             tuple(where))
 
 
-def _where(flute: spec_model.Flute, subject: str) -> Position:
-    words = subject.split()
-    if len(words) == 2 and words[0] == "hole" and words[1].isdigit():
-        index = int(words[1]) - 1
-        if 0 <= index < len(flute.holes):
-            return flute.holes[index].position
-    if len(words) == 2 and words[0] == "note":
-        for f in flute.fingerings:
-            if note_name(f.note) == words[1]:
-                return f.position
-    if words and words[0] == "fingering" and len(words) == 2 and words[1].isdigit():
-        index = int(words[1]) - 1
-        if 0 <= index < len(flute.fingerings):
-            return flute.fingerings[index].position
-    key = {"holes": "holes", "fingerings": "fingerings"}.get(subject, "")
-    return flute.where.get(key, flute.position)
+def _where(flute: spec_model.Flute, exc: solve.DesignError,
+           row_positions: tuple[Position, ...]) -> Position:
+    """The spec position a design error concerns: its hole, its fingering row, or the part of
+    the flute it names."""
+    if exc.hole is not None and 0 <= exc.hole < len(flute.holes):
+        return flute.holes[exc.hole].position
+    if exc.row is not None and 0 <= exc.row < len(row_positions):
+        return row_positions[exc.row]
+    return flute.where.get(exc.about, flute.position)
 
 
 def _check_fixed(flute: spec_model.Flute, head: EngineHead, min_web_m: float) -> None:
@@ -175,6 +197,47 @@ def _first_register(instrument: Instrument, air: Air, closed: np.ndarray) -> flo
     return float(playing.resonances(instrument, air, closed[None, :]).frequencies_hz[0, 0])
 
 
+def _as_cut(flute: spec_model.Flute, design: solve.Design, limits: solve.HoleConstraints,
+            head: EngineHead, step: float) -> tuple[float, ...]:
+    """Free hole positions rounded to the precision, each nudged by one more step where the
+    rounding would break a web or the span the solution kept (fixed positions stay)."""
+    x = [x if h.position_m is not None else plain.round_to(x, step)
+         for h, x in zip(flute.holes, design.hole_positions_m, strict=True)]
+    free = [h.position_m is None for h in flute.holes]
+    d = design.hole_diameters_m
+    spans = (limits.max_span_m if isinstance(limits.max_span_m, tuple)
+             else (limits.max_span_m,) * max(len(x) - 1, 0))
+    top = head.mouth_position_m + (head.window_length_m / 2 if head.kind == "duct"
+                                   else head.embouchure_radius_m)
+    if x and free[0] and x[0] - d[0] / 2 - top < limits.min_web_m - 1e-9:
+        x[0] = round(x[0] + step, 9)
+    for i in range(len(x) - 1):
+        web = x[i + 1] - x[i] - (d[i] + d[i + 1]) / 2
+        span = spans[i]
+        if web < limits.min_web_m - 1e-9:
+            move = 1.0
+        elif span is not None and x[i + 1] - x[i] > span + 1e-9:
+            move = -1.0
+        else:
+            continue
+        if free[i + 1]:
+            x[i + 1] = round(x[i + 1] + move * step, 9)
+        elif free[i]:
+            x[i] = round(x[i] - move * step, 9)
+    return tuple(x)
+
+
+def _limits(flute: spec_model.Flute) -> solve.HoleConstraints:
+    c = flute.constraints
+    defaults = solve.HoleConstraints()
+    return solve.HoleConstraints(
+        min_diameter_m=c.min_diameter_m or defaults.min_diameter_m,
+        max_diameter_m=c.max_diameter_m or defaults.max_diameter_m,
+        max_ratio=c.max_ratio or defaults.max_ratio,
+        min_web_m=c.min_web_m if c.min_web_m is not None else defaults.min_web_m,
+        max_span_m=c.max_span_m)
+
+
 def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         Group, list[Pipe], list[Note]]:
     """Place and size the holes (or predict fixed ones) and report every fingering."""
@@ -182,45 +245,41 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     stock = spec.stock_named(flute.stock)
     assert stock is not None and stock.inside_diameter_m is not None
     bore_d, wall = stock.inside_diameter_m, stock.thickness_m
-    engine_head, head = _head(flute, bore_d, wall)
-    table, targets, registers, names = _rows(flute, spec)
-    c = flute.constraints
-    defaults = solve.HoleConstraints()
-    limits = solve.HoleConstraints(
-        min_diameter_m=c.min_diameter_m or defaults.min_diameter_m,
-        max_diameter_m=c.max_diameter_m or defaults.max_diameter_m,
-        max_ratio=c.max_ratio or defaults.max_ratio,
-        min_web_m=c.min_web_m if c.min_web_m is not None else defaults.min_web_m,
-        max_span_m=c.max_span_m)
+    engine_head, head, cork = _head(flute, bore_d, wall)
+    rows = _rows(flute, spec)
+    limits = _limits(flute)
     _check_fixed(flute, engine_head, limits.min_web_m)
     fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
     try:
         design = solve.design_holes(
-            Bore.cylinder(bore_d / 2), wall, engine_head, np.array(table, dtype=bool),
-            np.array(targets), air.state, registers=np.array(registers), constraints=limits,
-            fixed=fixed, drills_m=spec.fabrication.drills_m, length_m=flute.length_m,
-            radiation=flute.radiation, hole_radiation="unflanged", losses=flute.losses,
-            note_names=tuple(names))
+            Bore.cylinder(bore_d / 2), wall, engine_head, np.array(rows.closed, dtype=bool),
+            np.array(rows.targets_hz), air.state, registers=np.array(rows.registers),
+            constraints=limits, fixed=fixed, drills_m=spec.fabrication.drills_m,
+            length_m=flute.length_m, radiation=flute.radiation,
+            hole_radiation=HOLE_RADIATION[flute.radiation], losses=flute.losses,
+            note_names=rows.names, cork=cork, end_wall_m=wall,
+            second_weight=(solve.SECOND_REGISTER_WEIGHT if flute.second_register_weight is None
+                           else flute.second_register_weight))
     except solve.DesignError as exc:
-        raise PhysicsError.at(_where(flute, exc.subject), f"flute `{flute.id}`: {exc.message}",
-                              exc.hint) from None
-    # Predict the flute as it will be cut: length and free hole positions rounded to the
-    # spec's precision (drills are already snapped), then the model run again.
+        raise PhysicsError.at(_where(flute, exc, rows.positions),
+                              f"flute `{flute.id}`: {exc.message}", exc.hint) from None
+    # Predict the flute as it will be cut: length, free hole positions and a free cork
+    # rounded to the spec's precision (drills are already snapped), then the model run again.
     step = spec.fabrication.precision_m
     length = flute.length_m or plain.round_to(design.length_m, step)
-    positions = tuple(x if spec_hole.position_m is not None else plain.round_to(x, step)
-                      for spec_hole, x in zip(flute.holes, design.hole_positions_m, strict=True))
-    instrument = replace(design.instrument, length_m=length, holes=tuple(
+    positions = _as_cut(flute, design, limits, engine_head, step)
+    cavity = design.cork_m if cork is None or not cork.free else plain.round_to(
+        design.cork_m, step)
+    instrument = replace(design.instrument, length_m=length, head=replace(
+        design.instrument.head, cavity_length_m=cavity), holes=tuple(
         replace(h, position_m=x) for h, x in zip(design.instrument.holes, positions,
                                                  strict=True)))
-    predicted, residual, _ = playing.predictions(instrument, air.state,
-                                                 np.array(table, dtype=bool), np.array(targets),
-                                                 np.array(registers))
     if stock.length_m is not None and length > stock.length_m:
         raise PhysicsError.at(flute.where.get("stock", flute.position),
                               f"flute `{flute.id}`: the tube must be {length * 1000:.1f} mm long, "
                               f"but stock `{stock.name}` is {stock.length_m * 1000:.0f} mm",
                               "use longer stock, or a higher lowest note")
+    found = flute_report.report(flute, instrument, air.state, rows, design.advice)
     holes = tuple(
         Hole(number=i + 1, label=spec_hole.label or ("T" if abs(spec_hole.angle_deg) >= 90
                                                    else str(i + 1)),
@@ -229,31 +288,11 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
              fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None)
         for i, (spec_hole, x, d) in enumerate(zip(flute.holes, positions,
                                                   design.hole_diameters_m, strict=True)))
-    every = [
-        Fingering(note=names[i], closed=tuple(table[i]), register=registers[i],
-                  target_hz=targets[i], predicted_hz=float(predicted[i][registers[i] - 1]),
-                  error_cents=float(residual[i]))
-        for i in range(len(table))]
-    # A second register the model finds no resonance for has no prediction to report (and
-    # NaN has no place in the JSON or on the build sheet): leave it out, and say so.
-    fingerings = tuple(f for f in every
-                       if np.isfinite(f.predicted_hz) and np.isfinite(f.error_cents))
-    unpredicted = [Note(flute.where.get("fingerings", flute.position),
-                        f"flute `{flute.id}`: the model finds no register-{f.register} resonance "
-                        f"near {f.note} for the fingering "
-                        f"{''.join('x' if v else 'o' for v in f.closed)}; it is left out of "
-                        "the report") for f in every if f not in fingerings]
-    spec_rows = {note_name(f.note): f.position for f in flute.fingerings}
-    unpredicted += [Note(spec_rows.get(f.note) or _second_position(flute, f.closed),
-                         f"flute `{flute.id}`: the second register of "
-                         f"{''.join('x' if v else 'o' for v in f.closed)} is predicted "
-                         f"{f.error_cents:+.0f} cents from {f.note}; use another fingering for "
-                         "it (`second_register: none` leaves this one out)")
-                    for f in fingerings
-                    if f.register == 2 and abs(f.error_cents) > SECOND_REGISTER_WARNING_CENTS]
-    lowest = int(np.argmin([t if r == 1 else np.inf for t, r in zip(targets, registers,
-                                                                    strict=True)]))
-    closed = np.array(table[lowest], dtype=bool)
+    head = replace(head, cork_m=cavity if head.kind == "embouchure" else None,
+                   resonance_hz=found.head_resonance_hz)
+    lowest = int(np.argmin([t if r == 1 else np.inf
+                            for t, r in zip(rows.targets_hz, rows.registers, strict=True)]))
+    closed = np.array(rows.closed[lowest], dtype=bool)
     base = _first_register(instrument, air.state, closed)
     longer = _first_register(replace(instrument, length_m=length + SENSITIVITY_STEP_M),
                              air.state, closed)
@@ -262,19 +301,12 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     t = air.state.temperature_k
     warm = _first_register(instrument, air.at_temperature(t + SENSITIVITY_STEP_K), closed)
     cool = _first_register(instrument, air.at_temperature(t - SENSITIVITY_STEP_K), closed)
-    picks = sorted({lowest, len(flute.fingerings) // 2, len(flute.fingerings) - 1})
-    top = max(f for p in predicted for f in p if np.isfinite(f)) * 1.3
-    freqs, magnitude = playing.spectrum(instrument, air.state,
-                                        np.array([table[i] for i in picks], dtype=bool),
-                                        f_min_hz=50.0, f_max_hz=top, n=CURVE_POINTS)
-    curves = tuple(Curve(f"{names[i]} {''.join('x' if v else 'o' for v in table[i])}",
-                         tuple(float(f) for f in freqs), tuple(float(v) for v in magnitude[k]))
-                   for k, i in enumerate(picks))
+    target = rows.targets_hz[lowest]
     pipe = Pipe(
         id=flute.id, group=flute.id, family=flute.family, construction="stock-tube",
-        note=names[lowest], harmonic=1, stock=stock.name, material=stock.material,
-        target_hz=targets[lowest], predicted_hz=base, error_cents=cents(base, targets[lowest]),
-        harmonics_hz=tuple(float(f) for f in predicted[lowest] if np.isfinite(f)),
+        note=rows.names[lowest], harmonic=1, stock=stock.name, material=stock.material,
+        target_hz=target, predicted_hz=base, error_cents=cents(base, target),
+        harmonics_hz=tuple(f for f in found.predicted_hz[lowest] if np.isfinite(f)),
         cents_per_mm=cents(longer, shorter) / (2 * SENSITIVITY_STEP_M * 1000),
         cents_per_c=cents(warm, cool) / (2 * SENSITIVITY_STEP_K),
         section="round", inside_diameter_m=bore_d, outside_diameter_m=stock.outside_diameter_m,
@@ -286,20 +318,13 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                                                              - engine_head.mouth_position_m),
         speaking_length_m=length - engine_head.mouth_position_m,
         cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
-        holes=holes, fingerings=fingerings, curves=curves, source=flute.position)
+        holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position)
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))
-    warnings = list(air.warnings) + unpredicted
+    warnings = list(air.warnings) + list(found.warnings)
     if flute.measured:
         warnings.append(Note(flute.where.get("measured", flute.position),
                              f"flute `{flute.id}`: measured pitches are not fitted for flutes "
                              "yet; the prediction is uncalibrated"))
     return group, [pipe], warnings
-
-
-def _second_position(flute: spec_model.Flute, closed: tuple[bool, ...]) -> Position:
-    for f in flute.fingerings:
-        if f.closed == closed:
-            return f.position
-    return flute.where.get("fingerings", flute.position)

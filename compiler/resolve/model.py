@@ -165,7 +165,10 @@ class Head:
     embouchure_diameter_m: float | None
     embouchure_from_top_m: float | None
     cork_m: float | None
-    """Side-blown: from the embouchure centre up to the cork."""
+    """Side-blown: from the embouchure centre up to the cork (solved unless the spec fixes it)."""
+    resonance_hz: float | None = None
+    """The head's own resonance: the mouth opening against the closed cavity above it (cork or
+    block), the bore blocked. Second-register notes near or above it lose their octaves."""
 
 
 @dataclass(frozen=True)
@@ -197,6 +200,13 @@ class Fingering:
     """Surveys: predicted minus ``nearest_note``."""
     cents_per_c: float | None = None
     """Surveys: this fingering's pitch change for 1 °C warmer air."""
+    resonance: str = "clear"
+    """How the model's resonance for this register looks: ``clear``; ``weak`` (an admittance
+    peak too small for the jet to hold) or ``split`` (two resonances close together): then
+    ``error_cents`` is no pitch to trust, and the build sheet says so instead of a number."""
+    cutoff_hz: float | None = None
+    """The tone-hole lattice cutoff of this fingering's open holes (None: fewer than two open
+    holes below the first open one)."""
 
 
 @dataclass(frozen=True)

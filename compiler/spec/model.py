@@ -255,6 +255,9 @@ class Flute:
     measured: tuple[Measurement, ...]
     position: Position
     where: Mapping[str, Position] = field(default_factory=_frozen)
+    second_register_weight: float | None = None
+    """Weight of second-register notes against the first register's in the hole solve
+    (0.5–1; None: the solver's default)."""
 
 
 @dataclass(frozen=True)

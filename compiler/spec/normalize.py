@@ -524,6 +524,12 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         fingerings.append(model.FingeringSpec(
             note=note, closed=closed, frequency_hz=r.frequency((*p, "frequency")),
             second_register=read_second_register(r, p), position=r.at(p)))
+    weight = r.ratio((*base, "second_register_weight"))
+    if weight is not None and not 0.5 <= weight <= 1.0:
+        r.fail((*base, "second_register_weight"), f"second_register_weight: {weight:g} is "
+               "outside 1/2 to 1", "give 1/2 (the first register comes first) up to 1 (both "
+               "registers count alike)")
+        weight = None
     c = (*base, "constraints")
     smallest, largest = r.length((*c, "min_diameter")), r.length((*c, "max_diameter"))
     if smallest is not None and largest is not None and smallest > largest:
@@ -549,6 +555,7 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         environment=_environment(r, (*base, "environment")),
         measured=_measured(r, base),
         position=r.at(base),
+        second_register_weight=weight,
         where=model._frozen(r.where(base, "id", "family", "stock", "head", "holes",
                                     "fingerings", "constraints", "length", "measured",
                                     "head.cork", "head.embouchure.diameter",

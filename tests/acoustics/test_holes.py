@@ -51,6 +51,18 @@ def test_inner_length_check_value() -> None:
     assert float(inner_length(A, A)) / A == pytest.approx(0.16, abs=0.005)
 
 
+def test_inner_length_frequency_dependence() -> None:
+    # Lefebvre & Scavone (2012), eqs. 31-32 (seen quoted in secondary sources): t_i(0) times
+    # 1 + H(δ)·I(ka), H = 1 - 4.56δ + 6.55δ², I = 0.17ka + 0.92(ka)² + 0.16(ka)³ - 0.29(ka)⁴.
+    # Check value computed from the formula as written: b 4 mm, a 9.5 mm, ka 0.3 → 2.557 mm.
+    assert float(inner_length(0.004, A, 0.3 / A)) == pytest.approx(2.557e-3, abs=5e-7)
+    # it tends to the low-frequency fit as k → 0, and grows with frequency for a finger hole
+    # (the evanescent modes at the junction decay more slowly as k rises)
+    assert float(inner_length(0.004, A, 1e-6)) == pytest.approx(float(inner_length(0.004, A)))
+    ks = np.array([50.0, 100.0, 200.0])
+    assert np.all(np.diff(inner_length(0.004, A, ks)) > 0)
+
+
 @pytest.mark.parametrize(
     ("t_over_b", "open_ratio", "closed_ratio"),
     # check values computed from the Lefebvre & Scavone (2012) t_a fits (from memory)
@@ -83,6 +95,13 @@ def test_matching_and_radiation_lengths() -> None:
     # verified) lies between the limits for a finger-hole-sized opening
     mid = float(radiation_length("on-cylinder", b, A + 0.002))
     assert 0.5 * b < mid < 0.8216 * b
+    # with the frequency dependence of the unflanged end correction (Dalmont, Nederveen & Joly
+    # 2001, quoted in secondary sources): the same at k → 0, a little shorter at kb = 0.5
+    # (Δ(0.5)/Δ(0) = 0.5832/0.6133 from the REFERENCES table of that formula)
+    k = 0.5 / b
+    assert float(radiation_length("frequency-dependent", b, A + 0.002)) == pytest.approx(mid)
+    assert float(radiation_length("frequency-dependent", b, A + 0.002, k)) == pytest.approx(
+        mid * 0.5832 / 0.6133, rel=2e-4)
     with pytest.raises(ValueError):
         radiation_length("baffle", b, A)
 
@@ -169,7 +188,7 @@ def test_hole_elements_closed_stub_and_open_shunt() -> None:
     za_o, ys_o, za_c, ys_c = hole_elements(AIR, w, A, b, t, 0.0, "none", "unflanged")
     h = t + float(matching_length(b, A))
     np.testing.assert_allclose(
-        1 / ys_c, 1j * zh * (k * float(inner_length(b, A)) - 1 / np.tan(k * h)), rtol=1e-10
+        1 / ys_c, 1j * zh * (k * inner_length(b, A, k) - 1 / np.tan(k * h)), rtol=1e-10
     )
     t_e = float(effective_length(b, A, t))
     np.testing.assert_allclose((1 / ys_o).imag[0], zh * k[0] * t_e, rtol=2e-3)

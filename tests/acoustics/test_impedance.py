@@ -11,6 +11,7 @@ head cavity lowers the upper resonances more than the lower ones: from memory).
 from __future__ import annotations
 
 from collections.abc import Callable
+from dataclasses import replace
 
 import numpy as np
 import pytest
@@ -25,11 +26,15 @@ from compiler.acoustics.impedance import (
     Instrument,
     Segment,
     bore_impedance,
+    head_impedance,
     impedance_batch,
     input_admittance,
     input_impedance,
 )
 from compiler.acoustics.playing import resonances
+from compiler.acoustics.radiation import thick_wall_end_correction
+
+A9 = 0.0095
 
 C = AIR.speed_m_s
 LS = 0.6133  # Levine & Schwinger (1948)
@@ -161,6 +166,49 @@ def test_geometry_overrides_equal_separate_instruments() -> None:
         np.testing.assert_allclose(
             z[i], input_impedance(other, AIR, [400.0, 900.0], fing), rtol=1e-12
         )
+
+
+def test_cavity_override_equals_separate_instruments() -> None:
+    pipe = six_hole_flute()
+    fing = np.array([[True] * 6, [True, True, False, False, False, False]])
+    freqs = np.array([400.0, 900.0, 2100.0])
+    cavities = np.array([0.0, 0.007, 0.018])
+    z = impedance_batch(pipe, AIR, freqs, fing, cavity_length_m=cavities)
+    for i, cavity in enumerate(cavities):
+        other = Instrument(pipe.bore, pipe.holes, replace(pipe.head, cavity_length_m=cavity),
+                           pipe.length_m)
+        np.testing.assert_allclose(z[i], input_impedance(other, AIR, freqs, fing), rtol=1e-12)
+
+
+def test_a_thick_wall_at_the_foot_lowers_the_pitch() -> None:
+    # A wall at the open foot lengthens its end correction (Dalmont, Nederveen & Joly 2001:
+    # between 0.6133a and 0.8216a), so the tube sounds lower; the change is the extra
+    # correction over the acoustic length, as for any small length change (a 1 mm wall on
+    # a 9.5 mm bore adds about 0.02a = 0.2 mm: a few tenths of a cent at this length).
+    thin = Instrument(Bore.cylinder(A9), (), Head("open"), 0.3, losses="none")
+    thick = replace(thin, wall_m=0.0095)
+    f_thin = float(resonances(thin, AIR).frequencies_hz[0, 0])
+    f_thick = float(resonances(thick, AIR).frequencies_hz[0, 0])
+    extra = float(thick_wall_end_correction(A9, 2 * A9)) - 0.6133 * A9
+    want = f_thin * (0.3 + 2 * 0.6133 * A9) / (0.3 + 2 * 0.6133 * A9 + 2 * extra)
+    # both ends of the "open" head carry the wall; within 0.5 cent of the length rule
+    assert f_thick < f_thin
+    assert abs(cents(f_thick, want)) < 0.5
+
+
+def test_head_resonance_is_a_helmholtz_resonator() -> None:
+    # The mouth opening against the closed cork cavity is a Helmholtz resonator: for a cavity
+    # short against the wavelength f = (c/2π)·sqrt(S/(V·l)), so doubling the cavity lowers it
+    # by √2 (Rayleigh, The Theory of Sound, 1896, §303-306, from memory); within 3 %.
+    head = Head("embouchure", mouth_position_m=0.04, embouchure_radius_m=0.005,
+                embouchure_chimney_m=0.0008, cavity_length_m=0.005)
+    pipe = Instrument(Bore.cylinder(0.0102), (), head, 0.33)
+    f = np.geomspace(1000.0, 9000.0, 4000)
+    z = head_impedance(pipe, AIR, f, np.array([0.0025, 0.005]))
+    found = [f[np.flatnonzero((row.imag[:-1] < 0) & (row.imag[1:] >= 0))[0]] for row in z]
+    assert found[0] / found[1] == pytest.approx(np.sqrt(2.0), rel=0.03)
+    with pytest.raises(ValueError):
+        head_impedance(Instrument(Bore.cylinder(0.01), (), Head("open"), 0.3), AIR, [500.0])
 
 
 def test_per_fingering_frequencies() -> None:

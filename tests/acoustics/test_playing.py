@@ -13,8 +13,22 @@ import pytest
 from reference_air import AIR
 from scipy.optimize import brentq
 
-from compiler.acoustics.impedance import Bore, Head, Hole, Instrument, input_impedance
-from compiler.acoustics.playing import default_range, log_grid, resonances, spectrum
+from compiler.acoustics.impedance import (
+    Bore,
+    Head,
+    Hole,
+    Instrument,
+    impedance_batch,
+    input_impedance,
+)
+from compiler.acoustics.playing import (
+    default_range,
+    log_grid,
+    register_frequencies,
+    resonances,
+    second_register_quality,
+    spectrum,
+)
 
 
 def cents(f: float, ref: float) -> float:
@@ -106,3 +120,26 @@ def test_grid_and_range() -> None:
     lo, hi = default_range(flute(), AIR)
     f = resonances(flute(), AIR, SCALE).frequencies_hz
     assert lo < f.min() and f.max() < hi
+
+
+def test_register_frequencies_pick_each_rows_register() -> None:
+    # The n-th upward reactance crossing per row, the same as the two-register scan: an
+    # open-open pipe's first two resonances (half-wave series, Fletcher & Rossing 1998 ch. 8).
+    pipe = Instrument(Bore.cylinder(0.008), (), Head("open"), 0.5, losses="none")
+    closed = np.ones((2, 0), dtype=bool)
+
+    def evaluate(freqs: np.ndarray) -> np.ndarray:
+        return impedance_batch(pipe, AIR, freqs, closed)
+
+    both = resonances(pipe, AIR, closed).frequencies_hz
+    f, slope = register_frequencies(evaluate, (1, 2), [1, 2], 50.0, 3000.0)
+    np.testing.assert_allclose(f[0], [both[0, 0], both[1, 1]], rtol=1e-9)
+    assert np.all(slope > 0)  # upward crossings: the reactance rises through zero
+
+
+def test_second_register_of_a_plain_pipe_is_clear() -> None:
+    # A plain open pipe has a strong, single second resonance an octave up.
+    pipe = Instrument(Bore.cylinder(0.008), (), Head("open"), 0.5)
+    res = resonances(pipe, AIR)
+    assert second_register_quality(pipe, AIR, None, res.frequencies_hz) == ("clear",)
+    assert second_register_quality(pipe, AIR, None, [[np.nan, np.nan]]) == ("none",)

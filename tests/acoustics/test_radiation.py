@@ -126,3 +126,20 @@ def test_thick_wall_end_correction_limits_and_trend() -> None:
     # 0.8216 - 0.2083/1.05 + 0.057/1.05 (1 - 1.05^-5) = 0.6350; the same at 1.21: 0.6784.
     assert ratios[1] == pytest.approx(0.6350, abs=1e-4)
     assert ratios[2] == pytest.approx(0.6784, abs=1e-4)
+
+
+@pytest.mark.parametrize("model", ["unflanged", "frequency-dependent"])
+def test_a_wall_lengthens_the_end_correction(model: str) -> None:
+    # At low ka the end's reactance is zc·k·Δ with Δ the finite-wall correction of Dalmont,
+    # Nederveen & Joly (2001) (formula from memory); a wall as thin as nothing (outer radius =
+    # inner) gives the thin-wall Levine & Schwinger value 0.6133a back.
+    ka = np.array([0.005, 0.01])
+    k = ka / A
+    thin = radiation_impedance(model, A, k, 1.0, A)
+    np.testing.assert_allclose(thin.imag, 0.6133 * ka, rtol=1e-3)
+    walled = radiation_impedance(model, A, k, 1.0, 1.21 * A)
+    np.testing.assert_allclose(walled.imag / k, thick_wall_end_correction(A, 1.21 * A),
+                               rtol=1e-3)
+    # flanged ends already have their flange: the wall changes nothing
+    np.testing.assert_allclose(radiation_impedance("flanged", A, k, 1.0, 1.21 * A),
+                               radiation_impedance("flanged", A, k, 1.0))

@@ -23,9 +23,13 @@ def test_first_register_in_tune_after_drill_snapping(name: str) -> None:
     r = _resolve(EXAMPLES / f"{name}.yaml")
     pipe = r.pipes[0]
     first = [f for f in pipe.fingerings if f.register == 1]
+    second = [f for f in pipe.fingerings if f.register == 2]
     # Targets are 12-TET from the spec's A4 (f = A4·2^((m − 69)/12), the definition of equal
-    # temperament); 1 cent after drill snapping is our design tolerance, not a published figure.
-    assert first and all(abs(f.error_cents) < 1.0 for f in first)
+    # temperament); 2 cents (first register) and 10 (second) after drill snapping and rounding
+    # are the design's goals, not published figures.
+    assert first and all(abs(f.error_cents) <= 2.0 for f in first)
+    assert second and all(abs(f.error_cents) <= 10.0 and f.resonance == "clear"
+                          for f in second)
     # drill set given in the spec: 0.5 mm steps (every diameter a whole number of half mm)
     for hole in pipe.holes:
         assert (hole.diameter_m * 2000) == pytest.approx(round(hole.diameter_m * 2000), abs=1e-6)
@@ -108,8 +112,9 @@ def test_flutes_are_predicted_as_cut(tmp_path: Path) -> None:
 def test_impossible_heads_are_spec_errors(tmp_path: Path) -> None:
     # Facts of the trade: a cork above the top end of the tube, or an embouchure hole as wide
     # as the bore, cannot be made; both are spec errors at the line that asks for them.
+    head = "      embouchure: {diameter: 10 mm, from_top: 40 mm, lip_cover: 1/4}\n"
     cases = {
-        "cork: 18 mm": ("cork: 50 mm", "would sit above the top end"),
+        head: (head + "      cork: 50 mm\n", "would sit above the top end"),
         "embouchure: {diameter: 10 mm": ("embouchure: {diameter: 24 mm", "as wide as the bore"),
     }
     for old, (new, words) in cases.items():
@@ -119,5 +124,6 @@ def test_impossible_heads_are_spec_errors(tmp_path: Path) -> None:
         spec.write_text(text.replace(old, new))
         with pytest.raises(PhysicsError, match=words) as info:
             _resolve(spec)
-        line = next(i for i, ln in enumerate(spec.read_text().splitlines(), 1) if new in ln)
+        last = new.strip().splitlines()[-1]
+        line = next(i for i, ln in enumerate(spec.read_text().splitlines(), 1) if last in ln)
         assert info.value.problems[0].position.line == line

@@ -144,7 +144,9 @@ class Chart(Block):
 
 
 def _cells(f: Fingering) -> tuple[str, ...]:
-    cells = (hz(f.target_hz), hz(f.predicted_hz), cents(f.error_cents))
+    # A weak or split resonance is no pitch to tune to: say so instead of a number.
+    error = cents(f.error_cents) if f.resonance == "clear" else f.resonance
+    cells = (hz(f.target_hz), hz(f.predicted_hz), error)
     if f.nearest_note is None:
         return cells
     return cells + (safe(f.nearest_note),
@@ -176,16 +178,18 @@ def blocks(pipe: Pipe) -> list[Block]:
         Heading(f"Fingering chart: {pipe.id}", 13),
         Paragraph("Filled circle: hole closed. Open circle: hole open. Hole 1 (nearest the "
                   "head) is on the left; a dashed ring is a hole on the back (thumb hole). "
-                  "Error: predicted minus target, in cents." + (
+                  "Error: predicted minus target, in cents; 'weak' or 'split' where the model's "
+                  "resonance is too faint, or doubled, to tune to." + (
                       " Nearest: the note of the tuning nearest the prediction, and the "
                       "prediction's distance from it; cents/°C: its change in 1 °C warmer air."
-                      if any(f.nearest_note is not None for f in pipe.fingerings) else ""),
+                      if any(f.nearest_note is not None for f in pipe.fingerings) else "")
+                  + _head_words(pipe),
                   8.5, colour=GREY),
         Chart(tuple(sorted(pipe.holes, key=lambda h: h.number)), chart_rows(pipe)),
         Spacer(4 * MM),
     ]
     ordered = [f for reg in sorted({f.register for f in pipe.fingerings})
-               for f in pipe.fingerings if f.register == reg]
+               for f in pipe.fingerings if f.register == reg and f.resonance == "clear"]
     if ordered:
         out.append(ErrorPlot(f"Tuning error per note: {pipe.id}",
                              tuple(f.note for f in ordered),
@@ -201,6 +205,24 @@ def blocks(pipe: Pipe) -> list[Block]:
         out.append(CurvePlot(f"Input {quantity} magnitude: {pipe.id}", pipe.curves[:4],
                              axis, marks))
     return out
+
+
+def _head_words(pipe: Pipe) -> str:
+    head = pipe.head
+    if head is None:
+        return ""
+    words = []
+    if head.cork_m is not None:
+        words.append(f"Cork {head.cork_m * 1000:.1f} mm above the embouchure centre.")
+    if head.resonance_hz:
+        words.append(f"The head (mouth and the cavity above it) resonates at "
+                     f"{hz(head.resonance_hz)} Hz: notes near or above it lose their octave.")
+    cutoffs = [f.cutoff_hz for f in pipe.fingerings if f.cutoff_hz is not None]
+    if cutoffs:
+        words.append(f"The open holes' lattice cutoff lies between {hz(min(cutoffs))} and "
+                     f"{hz(max(cutoffs))} Hz depending on the fingering: second-register "
+                     "notes above it are weak.")
+    return (" " + " ".join(words)) if words else ""
 
 
 def pages(pipe: Pipe, frame: Frame) -> list[Page]:
