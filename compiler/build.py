@@ -239,6 +239,20 @@ def _remember(out_root: Path, build_key: str, slug: str) -> None:
     os.replace(temp, path)
 
 
+def _warn_if_other_spec(target: Path, resolved: Resolved, tell: Progress) -> None:
+    """Say so when the output about to be replaced was built from another spec file that
+    names the same instrument (two specs would keep overwriting each other's output)."""
+    try:
+        manifest = json.loads((target / "manifest.json").read_text(encoding="utf-8"))
+        before = str(manifest["spec_file"])
+    except (OSError, ValueError, KeyError, TypeError):
+        return
+    if before != resolved.spec_file:
+        tell(f"{resolved.spec_file}: warning: replacing {target}, the output of {before}: both "
+             f"specs name the instrument `{resolved.instrument}`; give one of them another "
+             "`instrument:` name to keep both outputs")
+
+
 def build(text: str | bytes, filename: str, out_root: Path, options: BuildOptions,
           progress: Progress | None = None, use_cache: bool = True,
           warn: Progress | None = None) -> Path:
@@ -290,6 +304,7 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
                 raise OutputError(f"a backend wrote outside the build folder: {path}")
         old = None
         if target.exists():
+            _warn_if_other_spec(target, compiled.resolved, tell)
             old = Path(tempfile.mkdtemp(prefix=f".{slug_name}.old-", dir=out_root))
             os.replace(target, old / "previous")
         os.replace(work, target)

@@ -117,13 +117,16 @@ def cmd_diff(args: argparse.Namespace) -> int:
     from compiler.diff import DiffInputError, run_diff
 
     try:
-        code, text = run_diff(args.old, args.new, Path.cwd())
+        code, text = run_diff(args.old, args.new, Path.cwd(), args.json)
     except DiffInputError as exc:
         raise UsageError(str(exc)) from None
     except SpecError as exc:  # as diff does: 1 means "they differ", so trouble is 2
         _report(exc.problems)
         return EXIT_USAGE
-    sys.stdout.write(text)
+    if args.json:
+        _write_json(text)
+    else:
+        sys.stdout.write(text)
     return code
 
 
@@ -263,6 +266,8 @@ def build_parser() -> argparse.ArgumentParser:
                           "exit 0 same, 1 changed, 2 trouble")
     diff.add_argument("old", metavar="OLD", help="a spec file, or FILE@REV (e.g. rank.yaml@HEAD)")
     diff.add_argument("new", metavar="NEW", help="a spec file, or FILE@REV")
+    diff.add_argument("--json", action="store_true",
+                      help="print the summary, a line per pipe and every change as JSON")
     diff.set_defaults(run=cmd_diff)
 
     from compiler.starters import FAMILIES  # a light module: no numpy

@@ -18,12 +18,19 @@ hash, plot samples and warnings. Differences below the JSON rounding vanish in t
 A length's change is given in mm, a frequency's in cents: 1200·log2(new/old) (A. J. Ellis,
 1885, the definition of the cent).
 
+The report leads with what to do at the bench, a line per pipe (``actions``): trim (only
+shorter), re-cut (parts change, or longer than cut), re-drill (holes move or change),
+re-set (only the stopper or plug moves), make (new) or drop (removed). ``as_json`` gives
+the same for ``--json``.
+
 The comparison and the report are pure; ``read_spec_arg`` reads a file or, for
 ``FILE@REV``, the file as it was at a git revision.
 """
 
 from __future__ import annotations
 
+import dataclasses
+import json
 import math
 import subprocess
 from collections.abc import Callable, Iterator
@@ -372,11 +379,130 @@ def summary(changes: list[Change]) -> str:
     return text
 
 
-def render(changes: list[Change]) -> str:
-    """The report: one line a change in aligned columns, a blank line between pipes, then the
-    summary; ``no changes`` when the list is empty."""
+_MODEL_ONLY = ("acoustic_length_mm", "end_correction_mm", "mouth.correction_mm")
+"""Lengths of the model, not of a part: they change nothing to cut."""
+
+
+@dataclass(frozen=True)
+class PipeAction:
+    """What a change means at the bench for one pipe: ``action`` is ``make`` (a new pipe),
+    ``drop`` (removed), ``trim`` (only shorter: cut the difference off), ``re-cut`` (parts
+    change: make them again), ``re-drill``, ``re-cut, re-drill``, ``re-set`` (only the
+    stopper or plug moves) or ``none`` (predictions only); ``line`` says it in one line."""
+
+    pipe: str
+    action: str
+    line: str
+
+
+def _mm(value: float) -> str:
+    return f"{abs(value):.2f} mm"
+
+
+def _part_change(c: Change) -> bool:
+    if c.field.startswith(("holes", "fingerings", "harmonics")) or c.field in _MODEL_ONLY:
+        return False
+    return c.unit == "mm" or c.field in ("stock", "material", "section", "construction")
+
+
+def _hole_words(c: Change) -> str:
+    hole = c.field.split("]")[0].removeprefix("holes[")
+    if c.status != "changed" or c.field.count(".") == 0:
+        return f"hole {hole} {c.status}"
+    name = c.field.rsplit(".", 1)[1]
+    if name == "diameter_mm" and c.delta is not None:
+        how = "enlarge" if c.delta > 0 else "smaller: a new tube"
+        return f"hole {hole} ø {_value(c.old, 2)} -> {_value(c.new, 2)} mm ({how})"
+    if name.startswith("position_from_top") and c.delta is not None:
+        return f"hole {hole} moves {c.delta:+.2f} mm from the top"
+    if name == "angle_deg" and c.delta is not None:
+        return f"hole {hole} turns {c.delta:+.2f}°"
+    return ""
+
+
+def _action(pipe: str, mine: list[Change]) -> PipeAction:
+    parts = [c for c in mine if _part_change(c)]
+    holes = [c for c in mine if c.field.startswith("holes")
+             and not c.field.endswith(("position_from_bottom_mm", "fixed", "label"))]
+    pitch = next((c for c in mine if c.field == "predicted_hz"), None)
+    tail = f"; predicted pitch {pitch.delta:+.2f} cents" if pitch and pitch.delta else ""
+    cut = next((c for c in parts if c.field == "cut_length_mm"), None)
+    others = [c for c in parts if c.field not in ("cut_length_mm", "speaking_length_mm")
+              and not c.field.startswith("stopper.")]
+    stopper = [c for c in parts if c.field.startswith("stopper.position")]
+    words: list[str] = []
+    if cut is not None and cut.delta is not None:
+        if cut.delta < 0:
+            words.append(f"cut length {_value(cut.old, 2)} -> {_value(cut.new, 2)} mm "
+                         f"(trim {_mm(cut.delta)})")
+        else:
+            words.append(f"cut length {_value(cut.old, 2)} -> {_value(cut.new, 2)} mm "
+                         f"({_mm(cut.delta)} longer: cut a new one)")
+    words += [f"{c.field} {_value(c.old, 2)} -> {_value(c.new, 2)}" for c in others[:3]]
+    if len(others) > 3:
+        words.append(f"{len(others) - 3} more")
+    if stopper and not words:
+        c = stopper[0]
+        words.append(f"stopper or plug {_mm(c.delta or 0.0)} "
+                     + ("further in" if (c.delta or 0) < 0 else "further out"))
+    drills = [w for w in (_hole_words(c) for c in holes) if w]
+    if drills:
+        words.append(", ".join(drills[:4]) + (f", {len(drills) - 4} more" if len(drills) > 4
+                                               else ""))
+    if holes and (cut is not None or others):
+        action = "re-cut, re-drill"
+    elif holes:
+        action = "re-drill"
+    elif others or (cut is not None and (cut.delta or 0) > 0):
+        action = "re-cut"
+    elif cut is not None:
+        action = "trim"
+    elif stopper:
+        action = "re-set"
+    else:
+        return PipeAction(pipe, "none", "nothing to cut or drill" + tail)
+    return PipeAction(pipe, action, f"{action}: " + "; ".join(words) + tail)
+
+
+def actions(changes: list[Change]) -> list[PipeAction]:
+    """One line per pipe that changed, was added or removed, in the order of ``changes``."""
+    by_pipe: dict[str, list[Change]] = {}
+    for c in changes:
+        if c.scope == "pipe":
+            by_pipe.setdefault(c.owner, []).append(c)
+    found = []
+    for pipe, mine in by_pipe.items():
+        if mine[0].status == "added":
+            found.append(PipeAction(pipe, "make", f"make: new pipe, {mine[0].new}"))
+        elif mine[0].status == "removed":
+            found.append(PipeAction(pipe, "drop", f"drop: no longer in the spec ({mine[0].old})"))
+        else:
+            found.append(_action(pipe, mine))
+    return found
+
+
+def _actions_block(changes: list[Change], pipes_in_new: int) -> list[str]:
+    found = actions(changes)
+    if not found:
+        return []
+    width = max(len(a.pipe) for a in found)
+    lines = ["what to re-cut or re-drill, one line per pipe:"]
+    lines += [f"  {a.pipe.ljust(width)}  {a.line}" for a in found]
+    untouched = pipes_in_new - sum(1 for a in found if a.action != "drop")
+    if untouched > 0:
+        lines.append(f"  ({_plural(untouched, 'other pipe')} unchanged)")
+    return lines + [""]
+
+
+def render(changes: list[Change], pipes_in_new: int = 0) -> str:
+    """The report: what to re-cut or re-drill (a line per pipe), then every change in
+    aligned columns, a blank line between pipes, then the summary; ``no changes`` when the
+    list is empty. ``pipes_in_new`` counts the unchanged pipes."""
     if not changes:
         return "no changes\n"
+    head = _actions_block(changes, pipes_in_new)
+    if head:
+        head.append("every change:")
     rows = [_row(c) for c in changes]
     # Added and removed lines carry a summary in the values column: they set no width.
     aligned = [row for row, c in zip(rows, changes, strict=True) if c.status == "changed"]
@@ -393,11 +519,22 @@ def render(changes: list[Change]) -> str:
         lines.append("  ".join(cells).rstrip())
     lines.append("")
     lines.append(summary(changes))
-    return "\n".join(lines) + "\n"
+    return "\n".join(head + lines) + "\n"
 
 
-def run_diff(old_arg: str, new_arg: str, cwd: Path) -> tuple[int, str]:
-    """Resolve both specs and report: (0, "no changes") or (1, the report).
+def as_json(changes: list[Change]) -> dict[str, Any]:
+    """``diff --json``: the summary, the line per pipe, and every change."""
+    return {
+        "changed": bool(changes),
+        "summary": summary(changes) if changes else "no changes",
+        "pipes": [dataclasses.asdict(a) for a in actions(changes)],
+        "changes": [dataclasses.asdict(c) for c in changes],
+    }
+
+
+def run_diff(old_arg: str, new_arg: str, cwd: Path, json_output: bool = False) -> tuple[int, str]:
+    """Resolve both specs and report: (0, "no changes") or (1, the report); with
+    ``json_output`` the report is ``as_json`` as text.
 
     Raises ``DiffInputError`` when an argument cannot be read and ``SpecError`` when a spec
     is wrong; the command line turns both into exit code 2, as ``diff`` does on trouble.
@@ -410,4 +547,8 @@ def run_diff(old_arg: str, new_arg: str, cwd: Path) -> tuple[int, str]:
     old = resolve(load_spec(old_bytes, old_name))
     new = resolve(load_spec(new_bytes, new_name))
     changes = compare(old, new)
-    return (EXIT_CHANGED if changes else EXIT_SAME), render(changes)
+    code = EXIT_CHANGED if changes else EXIT_SAME
+    if json_output:
+        return code, json.dumps(as_json(changes), indent=2, sort_keys=True,
+                                ensure_ascii=False) + "\n"
+    return code, render(changes, len(new.pipes))

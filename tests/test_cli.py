@@ -125,3 +125,23 @@ def test_a_terminal_without_the_characters_gets_escapes_not_a_traceback(tmp_path
     assert json.loads(problems.stdout)[0]["message"] == "unknown key `größe` in the spec"
     built = _ascii_terminal(["build", str(spec), "-o", str(tmp_path / "out")], tmp_path)
     assert built.returncode == 0 and "Traceback" not in built.stderr
+
+
+def test_build_warns_when_it_replaces_another_specs_output(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    text = (ROOT / "specs_examples" / "blown-stopped-tubes.yaml").read_text(encoding="utf-8")
+    first, second = tmp_path / "tubes.yaml", tmp_path / "tubes-wider.yaml"
+    first.write_text(text, encoding="utf-8")
+    second.write_text(text.replace("alu-20, alu-25]", "alu-25]"), encoding="utf-8")
+    out = tmp_path / "out"
+    assert main(["build", str(first), "-o", str(out)]) == 0
+    assert "warning" not in capsys.readouterr().err
+    assert main(["build", str(second), "-o", str(out)]) == 0
+    err = capsys.readouterr().err
+    assert ("tubes-wider.yaml: warning: replacing " in err and "the output of tubes.yaml" in err
+            and "`Riverside workshop stopped tubes`" in err)
+    # the same spec again, or edited: its own output, no warning
+    second.write_text(text.replace("alu-20, alu-25]", "alu-20]"), encoding="utf-8")
+    assert main(["build", str(second), "-o", str(out)]) == 0
+    assert main(["build", str(second), "-o", str(out)]) == 0
+    assert "warning" not in capsys.readouterr().err

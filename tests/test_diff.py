@@ -278,3 +278,74 @@ def test_git_errors(repo: Path, tmp_path_factory: pytest.TempPathFactory) -> Non
     (elsewhere / "spec.yaml").write_bytes(ORGAN.read_bytes())
     with pytest.raises(DiffInputError, match="not in a git repository"):
         read_spec_arg("spec.yaml@HEAD", elsewhere)
+
+
+# --- what to do at the bench ------------------------------------------------------------------
+
+
+def test_report_leads_with_one_line_per_pipe_to_trim_or_recut(organ: Resolved) -> None:
+    from compiler.diff import actions
+
+    cooler = _resolve(_edit(ORGAN, "temperature: 18 C", "temperature: 12 C"))
+    changes = compare(organ, cooler)
+    cuts = _by(changes, "pipe", "cut_length_mm")
+    found = {a.pipe: a for a in actions(changes)}
+    # Colder air, slower sound: every pipe shorter, so each is trimmed by what its cut
+    # length lost (c ∝ √T: Kinsler et al., Fundamentals of Acoustics, 2000, from memory).
+    assert set(found) == {p.id for p in organ.pipes} == set(cuts)
+    for pipe, change in cuts.items():
+        assert change.delta is not None and change.delta < 0
+        assert found[pipe].action == "trim"
+        assert f"(trim {abs(change.delta):.2f} mm)" in found[pipe].line
+    text = render(changes, len(cooler.pipes))
+    first = text.splitlines()
+    assert first[0] == "what to re-cut or re-drill, one line per pipe:"
+    assert first[1].split()[:2] == ["principal-4-C3", "trim:"]
+    assert len([ln for ln in first if ln.startswith("  principal-4-")]) == len(organ.pipes)
+    assert "every change:" in text
+    # The other way round the pipes are too short: new ones.
+    back = {a.pipe: a for a in actions(compare(cooler, organ))}
+    assert all(a.action == "re-cut" and "longer: cut a new one" in a.line
+               for a in back.values())
+
+
+def test_a_cooler_flute_is_recut_and_redrilled() -> None:
+    from compiler.diff import actions
+
+    old = _resolve(WHISTLE.read_text(encoding="utf-8"))
+    new = _resolve(_edit(WHISTLE, "temperature: 30 C", "temperature: 25 C"))
+    [whistle] = actions(compare(old, new))
+    assert whistle.action == "re-cut, re-drill"
+    assert "hole 1 moves -" in whistle.line and "from the top" in whistle.line
+
+
+def test_added_and_removed_pipes_and_a_wider_scale(organ: Resolved) -> None:
+    from compiler.diff import actions
+
+    fewer = _resolve(_edit(ORGAN, "notes: C3..C6", "notes: D3..C6"))
+    found = {a.pipe: a for a in actions(compare(organ, fewer))}
+    assert found["principal-4-C3"].action == "drop" and "principal-4-Cs3" in found
+    found = {a.pipe: a for a in actions(compare(fewer, organ))}
+    assert found["principal-4-C3"].action == "make"
+    assert found["principal-4-C3"].line.startswith("make: new pipe, C3,")
+
+
+def test_diff_json(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    import json
+
+    from compiler.cli import main
+
+    (tmp_path / "a.yaml").write_bytes(ORGAN.read_bytes())
+    (tmp_path / "b.yaml").write_text(_edit(ORGAN, "temperature: 18 C", "temperature: 12 C"),
+                                     encoding="utf-8")
+    assert main(["diff", "--json", str(tmp_path / "a.yaml"), str(tmp_path / "b.yaml")]) == 1
+    data = json.loads(capsys.readouterr().out)
+    assert data["changed"] is True and data["summary"].startswith("37 pipes changed")
+    assert {p["action"] for p in data["pipes"]} == {"trim"} and len(data["pipes"]) == 37
+    change = next(c for c in data["changes"] if c["field"] == "cut_length_mm")
+    assert set(change) == {"scope", "owner", "status", "field", "old", "new", "delta", "unit"}
+    assert change["unit"] == "mm" and change["delta"] == pytest.approx(change["new"]
+                                                                        - change["old"])
+    assert main(["diff", "--json", str(tmp_path / "a.yaml"), str(tmp_path / "a.yaml")]) == 0
+    assert json.loads(capsys.readouterr().out) == {"changed": False, "summary": "no changes",
+                                                   "pipes": [], "changes": []}
