@@ -168,7 +168,7 @@ def _git_show(path: Path, rev: str, shown: str) -> bytes:
 
 def _unit(name: str) -> str:
     """The unit a field's change is reported in, from its JSON name."""
-    if name.startswith("cents_per_"):
+    if "cents_per_" in name:  # a sensitivity (``cents_per_mm``, ``cutup_cents_per_mm``)
         return ""
     for suffix, unit in (("_mm", "mm"), ("_hz", "cents"), ("_cents", "cents"),
                          ("_m_s", "m/s"), ("_kg_m3", "kg/m3"), ("_c", "C"), ("_pa", "Pa"),
