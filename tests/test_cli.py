@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
+from fractions import Fraction
 from pathlib import Path
 
 import pytest
@@ -75,14 +77,21 @@ def test_resolve_table_shows_inches_for_inch_specs(tmp_path: Path,
     # 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
     spec = tmp_path / "inch.yaml"
     spec.write_text((ROOT / "specs_examples" / "blown-stopped-tubes.yaml").read_text()
-                    .replace("units: mm", "units: in"))
+                    .replace("units: mm", "units: in").replace("precision: 0.1 mm", ""))
     assert main(["resolve", str(spec)]) == 0
     lines = capsys.readouterr().out.splitlines()
     header = next(ln for ln in lines if ln.startswith("note "))
-    assert header.rstrip().endswith("speaking in  cut in")
-    c4 = next(ln for ln in lines if ln.startswith("C4 ")).split()
-    cut_mm, cut_in = float(c4[5]), float(c4[-1])
-    assert cut_in == pytest.approx(cut_mm / 25.4, abs=0.003)
+    assert re.search(r"speaking in +cut in$", header.rstrip())
+    c4 = next(ln for ln in lines if ln.startswith("C4 "))
+    cut_mm = float(c4.split()[5])
+    # the last column: the cut length in inches, in 32nds (the default precision of a spec
+    # in inches): "8 15/32" or "8"
+    shown = re.search(r"  (\d+)(?: (\d+)/(\d+))?$", c4)
+    assert shown is not None
+    whole, num, den = shown.group(1), shown.group(2), shown.group(3)
+    cut_in = Fraction(int(whole)) + (Fraction(int(num), int(den)) if num else 0)
+    assert 32 % cut_in.denominator == 0
+    assert float(cut_in) == pytest.approx(cut_mm / 25.4, abs=1 / 64 + 0.05 / 25.4)
 
 
 def test_build_into_a_file_is_a_usage_error(tmp_path: Path,

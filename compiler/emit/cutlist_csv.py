@@ -7,6 +7,7 @@ import io
 from pathlib import Path
 
 from compiler.cache import Cache
+from compiler.display import Inches, in_inches, inches_for
 from compiler.geometry.model import Parts
 from compiler.options import BuildOptions
 from compiler.resolve.model import Resolved
@@ -16,7 +17,12 @@ COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantit
            "length_mm", "width_mm", "source", "note")
 
 
-def render(parts: Parts) -> str:
+INCH_COLUMNS = ("length_in", "width_in")
+"""After ``width_mm`` for a spec written in inches: the same sizes in inches, in fractions of
+the spec's precision (``5 3/8``; ``compiler.display``)."""
+
+
+def render(parts: Parts, inches: Inches | None = None) -> str:
     """CSV text, by stock, then in the order of the pipes (as in the spec: low to high);
     sheet parts name the sheet they are nested on, tube pieces the stock length they are
     cut from; each stock's lengths to buy (``geometry.stock_plan``) close its rows.
@@ -52,15 +58,26 @@ def render(parts: Parts) -> str:
                      f"cut in this order: {', '.join(bar.pieces)}; pieces and kerfs "
                      f"{bar.used_mm:.2f} mm, offcut {bar.offcut_mm:.2f} mm"))
     rows.sort(key=lambda r: r[0])  # stable: each stock's rows stay in the order above
+    header: tuple[str, ...] = COLUMNS
+    if inches is not None:
+        at = COLUMNS.index("width_mm") + 1
+        header = COLUMNS[:at] + INCH_COLUMNS + COLUMNS[at:]
+        shown: list[tuple[str, ...]] = [
+            row[:at] + (inches.text_of_mm(float(row[at - 2])),
+                         inches.text_of_mm(float(row[at - 1]))) + row[at:-1]
+            + (in_inches(row[-1], inches),) for row in rows]
+    else:
+        shown = list(rows)
     out = io.StringIO()
     writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(COLUMNS)
-    writer.writerows(rows)
+    writer.writerow(header)
+    writer.writerows(shown)
     return out.getvalue()
 
 
 def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path,
           cache: Cache | None = None) -> list[Path]:
     path = out_dir / "cut-list.csv"
-    path.write_text(render(parts), encoding="utf-8")
+    inches = inches_for(resolved.fabrication.units, resolved.fabrication.precision_m)
+    path.write_text(render(parts, inches), encoding="utf-8")
     return [path]

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from compiler.display import Inches, inches_for
 from compiler.resolve.model import Group, Pipe, Resolved
 
 
@@ -9,9 +10,10 @@ def _mm(metres: float | None) -> str:
     return "" if metres is None else f"{metres * 1000:.1f}"
 
 
-def _in(metres: float | None) -> str:
-    """Decimal inches (1 in = 25.4 mm exactly), for specs written in inches or feet."""
-    return "" if metres is None else f"{metres / 0.0254:.3f}"
+def _in(metres: float | None, inches: Inches | None) -> str:
+    """Inches in fractions of the spec's precision (``compiler.display``), for specs
+    written in inches or feet."""
+    return "" if metres is None or inches is None else inches.text(metres)
 
 
 def _signed(value: float | None) -> str:
@@ -44,7 +46,7 @@ def _calibration(group: Group) -> str:
     return text + f"rms {fit.rms_cents:.2f} cents over {len(fit.residuals)} measurements"
 
 
-def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[str]:
+def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) -> list[str]:
     air = group.air
     lines = [f"{group.id} ({group.family}, {group.construction}): "
              f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
@@ -73,7 +75,7 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
     if inches:
         header += ["speaking in", "cut in"]
         for row, p in zip(rows[1:], pipes, strict=True):
-            row += [_in(p.speaking_length_m), _in(p.cut_length_m)]
+            row += [_in(p.speaking_length_m, inches), _in(p.cut_length_m, inches)]
     extra = 3 if banded else 0  # the band's columns sit before the stock's (column 10)
     right = {1, 2, 3, 4, 5, 7, 8, 9} | set(range(10, 10 + extra)) | {11 + extra, 12 + extra}
     lines += _align(rows, right=right)
@@ -85,7 +87,8 @@ def _group_table(group: Group, pipes: list[Pipe], inches: bool = False) -> list[
                          + (["from top in", "diameter in"] if inches else [])]
             hole_rows += [[h.label, _mm(h.position_from_top_m), _mm(h.position_from_bottom_m),
                            _mm(h.diameter_m), f"{h.angle_deg:g}°"]
-                          + ([_in(h.position_from_top_m), _in(h.diameter_m)] if inches else [])
+                          + ([_in(h.position_from_top_m, inches), _in(h.diameter_m, inches)]
+                             if inches else [])
                           for h in p.holes]
             lines += _align(hole_rows, right={1, 2, 3, 4, 5, 6})
         if p.head is not None and (p.head.cork_m is not None or p.head.resonance_hz):
@@ -140,6 +143,7 @@ def render(resolved: Resolved) -> str:
     for group in resolved.groups:
         lines.append("")
         lines += _group_table(group, [by_id[i] for i in group.pipe_ids],
-                              resolved.fabrication.units in ("in", "ft"))
+                              inches_for(resolved.fabrication.units,
+                                         resolved.fabrication.precision_m))
         lines += _trim_table(group)
     return "\n".join(lines) + "\n"

@@ -9,8 +9,10 @@ at once as one :class:`~compiler.errors.GeometryError`, each at the pipe's spec 
 from __future__ import annotations
 
 from collections.abc import Callable
+from dataclasses import replace
 from typing import Any
 
+from compiler.display import in_inches, inches_for
 from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry import stock_plan
 from compiler.geometry.boards import board_drafts
@@ -161,5 +163,7 @@ def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> 
                                     {p.id: p.source for p in resolved.pipes})
     problems += found
     if problems:
-        raise GeometryError(problems)
+        inches = inches_for(fab.units, fab.precision_m)
+        raise GeometryError([replace(p, message=in_inches(p.message, inches),
+                                     hint=in_inches(p.hint, inches)) for p in problems])
     return Parts(tuple(parts), sheets, tuple(cuts), bought)

@@ -2,12 +2,15 @@
 
 from __future__ import annotations
 
+import dataclasses
 import re
 import unicodedata
 from collections.abc import Callable
 from functools import partial
 from typing import Any
 
+from compiler.display import in_inches, inches_for
+from compiler.errors import SpecError
 from compiler.resolve import flue, plain, tubes
 from compiler.resolve.model import (
     FabricationReport,
@@ -54,8 +57,26 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
     impossible.
 
     ``memo(inputs, make)`` may return a stored result for the same inputs (the build's
-    cache); each group depends only on itself and the spec's shared blocks.
+    cache); each group depends only on itself and the spec's shared blocks. A spec written
+    in inches gets its errors' and warnings' lengths in inches too.
     """
+    inches = inches_for(spec.units, spec.fabrication.precision_m)
+    try:
+        resolved = _resolve(spec, memo)
+    except SpecError as err:
+        if inches is None:
+            raise
+        raise type(err)([dataclasses.replace(p, message=in_inches(p.message, inches),
+                                             hint=in_inches(p.hint, inches))
+                         for p in err.problems]) from err
+    if inches is None:
+        return resolved
+    return dataclasses.replace(resolved, warnings=tuple(
+        dataclasses.replace(n, message=in_inches(n.message, inches))
+        for n in resolved.warnings))
+
+
+def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
     from compiler.resolve import flutes, surveys  # numpy-heavy engine, loaded when needed
 
     shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)

@@ -9,6 +9,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any, TypeVar
 
+from compiler.display import INCH_PRECISION_M, INCH_UNITS
 from compiler.errors import Position, Problem, UnitError
 from compiler.spec import model, notes, units
 from compiler.spec.loader import Document, Path
@@ -267,7 +268,9 @@ def _fabrication(r: _Reader) -> model.Fabrication:
         spacing_m=default.spacing_m if spacing is None else spacing,
         allowance_fraction=allowance_fraction,
         allowance_m=allowance_m,
-        precision_m=precision or default.precision_m,
+        # a spec in inches works to a rule's 1/32 in unless it says otherwise
+        precision_m=precision or (INCH_PRECISION_M if r.units in INCH_UNITS
+                                  else default.precision_m),
         seam_allowance_m=default.seam_allowance_m if seam is None else seam,
         drills_m=_drills(r, (*base, "drills")),
         paper=r.get((*base, "paper")) or "a4",

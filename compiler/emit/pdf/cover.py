@@ -24,9 +24,9 @@ from compiler.emit.pdf.style import (
     cents,
     fixed,
     hz,
+    inches_of,
     length,
     speed,
-    uses_inches,
 )
 from compiler.resolve.model import AirReport, Resolved
 
@@ -38,7 +38,7 @@ def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
     """The fabrication settings that apply to this build: sheet, spacing and seam only where
     parts are nested on sheets or rolled; the tuning allowance only where it is added."""
     fab = resolved.fabrication
-    inches = uses_inches(fab.units)
+    inches = inches_of(fab)
     constructions = {p.construction for p in resolved.pipes}
     nested = bool(constructions & {"rolled-sheet", "boards"}) or any(
         g.holder is not None for g in resolved.groups)
@@ -59,7 +59,7 @@ def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
 
 def _title_blocks(resolved: Resolved) -> list[Block]:
     fab = resolved.fabrication
-    inches = uses_inches(fab.units)
+    inches = inches_of(fab)
     return [
         Paragraph(resolved.instrument, 20, bold=True),
         Paragraph("Build sheet: cut list, pipe drawings, predicted tuning, full-size "
@@ -68,7 +68,8 @@ def _title_blocks(resolved: Resolved) -> list[Block]:
         KeyValues((
             ("spec file", resolved.spec_file),
             ("spec sha256", resolved.spec_sha256),
-            ("lengths", "millimetres" + (", inches beside them" if inches else "")
+            ("lengths", "millimetres" + (f", inches beside them to the nearest "
+                                         f"{inches.step_text}" if inches else "")
              + f" (spec written in {fab.units})"),
             *_settings(resolved),
             ("tuning", f"A4 = {hz(resolved.tuning.a4_hz)} Hz, {resolved.tuning.temperament} "

@@ -10,16 +10,16 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from compiler.display import Inches
 from compiler.emit.pdf.document import Block, Column, Heading, Page, Paragraph, Spacer, Table
 from compiler.emit.pdf.document import flow_pages as _flow_pages
 from compiler.emit.pdf.style import (
     MM,
     Frame,
-    inch_of,
+    inches_of,
     length,
     mm_of,
     percent,
-    uses_inches,
 )
 from compiler.geometry.model import Part, Parts, Sheet, StockLength, TubeCut
 from compiler.resolve.model import Resolved, StockItem
@@ -29,7 +29,7 @@ PIVOT_LIMIT = 6
 """More part names than this in one stock: one row per part instead of one per pipe."""
 
 
-def _stock_line(name: str, item: StockItem | None, inches: bool, material: str) -> str:
+def _stock_line(name: str, item: StockItem | None, inches: Inches | None, material: str) -> str:
     if item is None:
         return f"{name}: {material}"
     text = f"{name}: {item.material}, {item.kind}, {length(item.thickness_m, inches)} thick"
@@ -45,9 +45,9 @@ def _stock_line(name: str, item: StockItem | None, inches: bool, material: str) 
     return text
 
 
-def _inches(part: Part) -> str:
+def _inches(part: Part, inches: Inches) -> str:
     length, width = part.length_by_width
-    return f"{inch_of(length)} × {inch_of(width)} in"
+    return f"{inches.text_of_mm(length)} × {inches.text_of_mm(width)} in"
 
 
 def _size(part: Part) -> str:
@@ -81,7 +81,7 @@ def _shared_notes(parts: Sequence[Part]) -> dict[str, str]:
             sum(1 for p in parts if p.name == name) > 1}
 
 
-def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool
+def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: Inches | None
            ) -> list[Block] | None:
     names: list[str] = []
     for p in parts:
@@ -121,16 +121,17 @@ def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool
     return out
 
 
-def _second_line(part: Part | None, inches: bool, shared: bool) -> str:
+def _second_line(part: Part | None, inches: Inches | None, shared: bool) -> str:
     """Under a size: the inches (spec in inches) and the part's note (unless it is the
     same for every pipe and said under the table)."""
     if part is None:
         return ""
     note = "" if shared else part.note
-    return " · ".join(t for t in ((_inches(part) if inches else ""), note) if t)
+    return " · ".join(t for t in ((_inches(part, inches) if inches else ""), note) if t)
 
 
-def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> list[Block]:
+def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: Inches | None
+              ) -> list[Block]:
     """One row per part (pipe, part name); notes the same for every part of a name are
     said once under the table."""
     shared = _shared_notes(parts)
@@ -140,7 +141,7 @@ def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: bool) -> 
                   "{} × {}".format(*map(mm_of, p.length_by_width)), sheet_of[p.id],
                   "" if p.name in shared else p.note)
                  for p in parts)
-    sub = tuple(("", "", "", _inches(p), "", "") for p in parts) if inches else ()
+    sub = tuple(("", "", "", _inches(p, inches), "", "") for p in parts) if inches else ()
     out: list[Block] = [Table(cols, rows, sub, size=8)]
     names = list(dict.fromkeys(p.name for p in parts))
     out += [Paragraph(f"Every {name}: {shared[name]}.", 8.5) for name in names
@@ -157,7 +158,7 @@ def _sheets_table(sheets: Sequence[Sheet]) -> Table:
     return Table(cols, rows, size=8)
 
 
-def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool,
+def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: Inches | None,
                  from_length: dict[str, str]) -> Table:
     cols = (Column("pipe", 1.8), Column("length mm", 1.0, "right"),
             Column("outside ø mm", 1.0, "right"), Column("from stock length", 1.0, "right"),
@@ -169,12 +170,14 @@ def _tubes_table(cuts: Sequence[TubeCut], notes: dict[str, str], inches: bool,
     rows.append((f"total ({pieces}, kerf not included)", mm_of(total), "", "", ""))
     sub: tuple[tuple[str, ...], ...] = ()
     if inches:
-        sub = tuple(("", f"{inch_of(t.length_mm)} in", f"{inch_of(t.outside_diameter_mm)} in",
-                     "", "") for t in cuts) + (("", f"{inch_of(total)} in", "", "", ""),)
+        sub = tuple(("", f"{inches.text_of_mm(t.length_mm)} in",
+                     f"{inches.text_of_mm(t.outside_diameter_mm)} in", "", "") for t in cuts) + (
+            ("", f"{inches.text_of_mm(total)} in", "", "", ""),)
     return Table(cols, tuple(rows), sub, size=8, shade=(len(rows) - 1,))
 
 
-def _stock_plan(bars: Sequence[StockLength], kerf_mm: float, inches: bool) -> list[Block]:
+def _stock_plan(bars: Sequence[StockLength], kerf_mm: float, inches: Inches | None
+                ) -> list[Block]:
     """The lengths of one stock tube to buy and what each is cut into, in order."""
     if not bars:
         return [Paragraph("No stock length given for this tube: add its `length` to plan "
@@ -185,16 +188,19 @@ def _stock_plan(bars: Sequence[StockLength], kerf_mm: float, inches: bool) -> li
             Column("pieces and kerfs mm", 1.2, "right"), Column("offcut mm", 0.9, "right"))
     rows = tuple((str(b.number), ", ".join(b.pieces), mm_of(b.used_mm), mm_of(b.offcut_mm))
                  for b in bars)
+    sub = tuple(("", "", f"{inches.text_of_mm(b.used_mm)} in",
+                 f"{inches.text_of_mm(b.offcut_mm)} in") for b in bars) if inches else ()
     return [Spacer(1.5 * MM),
-            Paragraph(f"Buy {count} of {size}: a saw cut of {mm_of(kerf_mm)} mm between "
+            Paragraph(f"Buy {count} of {size}: a saw cut of {length(kerf_mm / 1000, inches)} "
+                      "between "
                       "pieces, planned longest piece first, each into the first length it "
                       "fits (first-fit decreasing: few lengths, not always the fewest).", 8.5),
-            Table(cols, rows, size=8, min_rows=1)]
+            Table(cols, rows, sub, size=8, min_rows=1)]
 
 
 def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
     """Headings and tables for every stock the parts use, in the order of the stock names."""
-    inches = uses_inches(resolved.fabrication.units)
+    inches = inches_of(resolved.fabrication)
     items = {s.name: s for s in resolved.stock}
     cut_parts = [p for p in parts.parts if p.kind in ("sheet", "board")]
     tube_notes = {p.pipe_id: p.note for p in parts.parts if p.kind == "tube" and p.pipe_id}

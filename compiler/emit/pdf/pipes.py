@@ -12,6 +12,7 @@ from collections.abc import Callable, Sequence
 
 from reportlab.pdfgen.canvas import Canvas
 
+from compiler.display import Inches
 from compiler.emit.pdf import dimensions as D
 from compiler.emit.pdf import fingering
 from compiler.emit.pdf.document import (
@@ -38,13 +39,14 @@ from compiler.emit.pdf.style import (
     cents,
     fixed,
     hz,
-    inch,
+    inches_of,
+    length,
     mm,
+    per_step_words,
     safe,
     sensitivity,
     speed,
     strip_prefix,
-    uses_inches,
 )
 from compiler.resolve.model import Group, Mouth, Pipe, Resolved
 
@@ -58,7 +60,7 @@ KEY_BAND = 78 * MM
 
 def pages(resolved: Resolved, frame: Frame) -> list[Page]:
     """The pipe pages of every group, in the order of the resolved model."""
-    inches = uses_inches(resolved.fabrication.units)
+    inches = inches_of(resolved.fabrication)
     by_id = {p.id: p for p in resolved.pipes}
     out: list[Page] = []
     for group in resolved.groups:
@@ -83,16 +85,16 @@ def describe(pipe: Pipe) -> str:
             f"{D.construction_words(pipe.construction)} · stock {pipe.stock} ({pipe.material})")
 
 
-def _two_col(name: str, inches: bool) -> tuple[Column, ...]:
+def _two_col(name: str, inches: Inches | None) -> tuple[Column, ...]:
     cols = (Column(name, 2.2), Column("mm", 1.0, "right"))
     return cols + ((Column("in", 0.9, "right"),) if inches else ())
 
 
-def _length_row(name: str, value_m: float, inches: bool) -> tuple[str, ...]:
-    return (name, mm(value_m)) + ((inch(value_m),) if inches else ())
+def _length_row(name: str, value_m: float, inches: Inches | None) -> tuple[str, ...]:
+    return (name, mm(value_m)) + ((inches.text(value_m),) if inches else ())
 
 
-def pipe_blocks(pipe: Pipe, inches: bool) -> list[Block]:
+def pipe_blocks(pipe: Pipe, inches: Inches | None) -> list[Block]:
     """The tables beside a pipe's drawing: pitch, dimensions, sensitivity, acoustic lengths."""
     harmonics = ", ".join(hz(f) for f in pipe.harmonics_hz[:4])
     pitch = Table((Column("pitch", 1.5), Column("", 2.1, "right")), (
@@ -124,8 +126,11 @@ def pipe_blocks(pipe: Pipe, inches: bool) -> list[Block]:
             (f"mouth width / {across}", fixed(pipe.mouth.width_fraction, 4)),
             ("cut-up / mouth width", fixed(pipe.mouth.cutup_fraction, 4)),
         ), min_rows=1)]
-    rows = [("cents per mm longer", sensitivity(pipe.cents_per_mm)),
-            ("cents per °C warmer", sensitivity(pipe.cents_per_c))]
+    rows = [("cents per mm longer", sensitivity(pipe.cents_per_mm))]
+    if inches:
+        rows.append((f"cents per {per_step_words()} longer",
+                     sensitivity(inches.per_step(pipe.cents_per_mm))))
+    rows.append(("cents per °C warmer", sensitivity(pipe.cents_per_c)))
     if pipe.mouth is not None and pipe.mouth.band_percent:
         rows.append(("cents per mm more cut-up", sensitivity(pipe.mouth.cutup_cents_per_mm)))
     blocks += [Spacer(2 * MM), Table((Column("sensitivity", 2.4), Column("", 1.0, "right")),
@@ -146,7 +151,7 @@ def mouth_band_table(pipe: Pipe) -> Table:
     ), min_rows=1)
 
 
-def holes_table(pipe: Pipe, inches: bool) -> Table:
+def holes_table(pipe: Pipe, inches: Inches | None) -> Table:
     """The holes of a pipe: positions from both ends, diameters, angles, chimneys."""
     cols = (Column("hole", 0.8), Column("label", 1.0), Column("from top\nmm", 1.3, "right"),
             Column("from bottom\nmm", 1.4, "right"), Column("diameter\nmm", 1.2, "right"),
@@ -157,8 +162,9 @@ def holes_table(pipe: Pipe, inches: bool) -> Table:
                   "yes" if h.fixed else "") for h in pipe.holes)
     sub: tuple[tuple[str, ...], ...] = ()
     if inches:
-        sub = tuple(("", "", f"{inch(h.position_from_top_m)} in",
-                     f"{inch(h.position_from_bottom_m)} in", f"{inch(h.diameter_m)} in", "",
+        sub = tuple(("", "", f"{inches.text(h.position_from_top_m)} in",
+                     f"{inches.text(h.position_from_bottom_m)} in",
+                     f"{inches.text(h.diameter_m)} in", "",
                      "", "", "") for h in pipe.holes)
     return Table(cols, rows, sub, title_rows=2, min_rows=1)
 
@@ -176,7 +182,7 @@ def _title(c: Canvas, frame: Frame, title: str, line: str) -> None:
     c.setFillColor(INK)
 
 
-def _pipe_page(pipe: Pipe, group: Group, inches: bool) -> Draw:
+def _pipe_page(pipe: Pipe, group: Group, inches: Inches | None) -> Draw:
     def draw(c: Canvas, frame: Frame) -> None:
         _title(c, frame, pipe.id, describe(pipe) + f" · spec {pipe.source.shown()}")
         top = frame.top - TITLE_BAND
@@ -207,7 +213,7 @@ def _pipe_page(pipe: Pipe, group: Group, inches: bool) -> Draw:
     return draw
 
 
-def group_table(group: Group, pipes: Sequence[Pipe], inches: bool) -> Table:
+def group_table(group: Group, pipes: Sequence[Pipe], inches: Inches | None) -> Table:
     """One row per pipe: pitch, the key dimensions (lettered) and the sensitivities."""
     keyed = [d for d in D.dimensions(pipes[0]) if d.key]
     named = any(strip_prefix(p.id, group.id) != p.note for p in pipes)
@@ -215,7 +221,8 @@ def group_table(group: Group, pipes: Sequence[Pipe], inches: bool) -> Table:
     cols += [Column("note", 0.75), Column("target\nHz", 1.05, "right"),
              Column("predicted\nHz", 1.1, "right"), Column("error\ncents", 0.9, "right")]
     cols += [Column(f"{d.key}\nmm", 1.0, "right") for d in keyed]
-    cols += [Column("cents\n/ mm", 0.9, "right"), Column("cents\n/ °C", 0.9, "right")]
+    per_mm = "cents\n/ mm" + (f"\n(/ {per_step_words()})" if inches else "")
+    cols += [Column(per_mm, 0.9, "right"), Column("cents\n/ °C", 0.9, "right")]
     stocks = len({p.stock for p in pipes}) > 1
     if stocks:
         cols.append(Column("stock", 1.1))
@@ -230,12 +237,14 @@ def group_table(group: Group, pipes: Sequence[Pipe], inches: bool) -> Table:
         rows.append(tuple(row))
         if inches:
             lead = ("",) * (5 if named else 4)
-            sub.append(lead + tuple(inch(values[d.name]) if d.name in values else ""
-                                    for d in keyed) + ("", "") + (("",) if stocks else ()))
+            sub.append(lead + tuple(inches.text(values[d.name]) if d.name in values else ""
+                                    for d in keyed)
+                       + (sensitivity(inches.per_step(pipe.cents_per_mm)), "")
+                       + (("",) if stocks else ()))
     return Table(tuple(cols), tuple(rows), tuple(sub), size=8, title_rows=2)
 
 
-def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: bool
+def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: Inches | None
                  ) -> list[Page]:
     table = group_table(group, pipes, inches)
     height = frame.content_height - TITLE_BAND - KEY_BAND
@@ -249,7 +258,8 @@ def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: bool
     return out
 
 
-def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str, inches: bool
+def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str,
+                inches: Inches | None
                 ) -> Draw:
     first = pipes[0]
 
@@ -268,7 +278,7 @@ def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str, in
         c.drawString(frame.left, top - KEY_BAND + 2 * MM,
                      f"Key drawing: proportions of {first.note}.")
         x = frame.left + key_w + 6 * MM
-        _legend(c, x, top - 2 * MM, frame.right - x, group, pipes)
+        _legend(c, x, top - 2 * MM, frame.right - x, group, pipes, inches)
         table.draw(c, frame.left, top - KEY_BAND, frame.content_width)
 
     return draw
@@ -298,7 +308,7 @@ def common(pipes: Sequence[Pipe]) -> list[D.Dim]:
 
 
 def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
-            pipes: Sequence[Pipe]) -> None:
+            pipes: Sequence[Pipe], inches: Inches | None = None) -> None:
     keyed = [d for d in D.dimensions(pipes[0]) if d.key]
     c.setFillColor(INK)
     c.setFont(FONT_BOLD, 9)
@@ -322,7 +332,7 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
     banded = [p.mouth for p in pipes if p.mouth is not None and p.mouth.band_percent]
     if len(banded) == len(pipes):
         lines.append(_band_legend(banded))
-    same = [f"{d.name} {mm(d.value_m)} mm" for d in common(pipes)]
+    same = [f"{d.name} {length(d.value_m, inches)}" for d in common(pipes)]
     mouths = [p.mouth for p in pipes if p.mouth is not None]
     if len(mouths) == len(pipes) and mouths:
         across = "width" if pipes[0].section == "rect" else "circumference"

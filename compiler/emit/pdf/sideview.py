@@ -15,6 +15,7 @@ from dataclasses import dataclass
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 
+from compiler.display import Inches
 from compiler.emit.pdf import dimensions as D
 from compiler.emit.pdf.document import wrap
 from compiler.emit.pdf.style import (
@@ -26,7 +27,6 @@ from compiler.emit.pdf.style import (
     INK,
     LIGHT,
     MM,
-    inch,
     mm,
 )
 from compiler.resolve.model import Head, Pipe
@@ -100,7 +100,7 @@ def _k(dims: dict[str, D.Dim], *names: str) -> str:
     return " × ".join(dims[n].key for n in names if n in dims and dims[n].key)
 
 
-def build_view(pipe: Pipe, inches: bool) -> View:
+def build_view(pipe: Pipe, inches: Inches | None) -> View:
     """The side view of a resolved pipe, in its own millimetres."""
     dims = D.by_name(D.dimensions(pipe))
     shapes: list[Shape] = []
@@ -245,11 +245,11 @@ LEVEL = 6.0 * MM
 MIN_WIDTH = 10.0 * MM
 
 
-def _dim_label(dim: D.Dim, inches: bool, key: bool) -> str:
+def _dim_label(dim: D.Dim, inches: Inches | None, key: bool) -> str:
     if key:
         return dim.key
     text = f"{D.SHORT.get(dim.name, dim.name)} {mm(dim.value_m)}"
-    return text + (f" ({inch(dim.value_m)} in)" if inches else "")
+    return text + (f" ({inches.text(dim.value_m)} in)" if inches else "")
 
 
 TEXT_PT = 8.0
@@ -261,7 +261,7 @@ def _font(key: bool) -> tuple[str, float]:
 
 
 def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
-              inches: bool, key: bool = False) -> str:
+              inches: Inches | None, key: bool = False) -> str:
     """Draw ``view`` fitted into the box (points); returns the scale note shown under it."""
     font, size = _font(key)
     vdims = [v for v in view.vdims if v.dim.key or not key]

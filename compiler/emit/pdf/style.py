@@ -5,7 +5,8 @@ Every number the PDF prints goes through one of the formatters here, rounded exa
 negative zero shown as zero), so a value in ``resolved.json`` appears digit for digit:
 
 - lengths: millimetres to 0.01 mm (:func:`mm`, ``92.50``); inches beside them for specs
-  written in ``in`` or ``ft`` (:func:`inch`, 0.001 in);
+  written in ``in`` or ``ft``, in fractions of the spec's precision (``3 5/8``, from
+  ``compiler.display``, the one home of lengths shown to a maker);
 - frequencies: 0.01 Hz (:func:`hz`);
 - cents: 0.01 cent, signed (:func:`cents`, ``+1.25`` sharp, ``-0.40`` flat);
 - sensitivities (cents per mm, cents per °C): 0.001, signed (:func:`sensitivity`);
@@ -22,10 +23,11 @@ from reportlab.lib.colors import Color
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 
+from compiler.display import SENSITIVITY_STEP_IN, Inches, inches_for
+from compiler.resolve.model import FabricationReport
+
 MM = 72.0 / 25.4
 """Points per millimetre: the one scale between the page (points) and the drawings (mm)."""
-
-INCH_M = 0.0254
 
 PAPER_MM: dict[str, tuple[float, float]] = {"a4": (210.0, 297.0), "letter": (215.9, 279.4)}
 """Portrait page sizes in millimetres (ISO 216 A4; ANSI letter, 8.5 × 11 in)."""
@@ -125,22 +127,23 @@ def mm_of(value_mm: float) -> str:
     return fixed(value_mm, 2)
 
 
-def inch(length_m: float) -> str:
-    """A length in metres as decimal inches to 0.001 in."""
-    return fixed(length_m / INCH_M, 3)
+def inches_of(fab: FabricationReport) -> Inches | None:
+    """How the build shows inches: None for a metric spec, else fractions (or decimals) of
+    the spec's precision."""
+    return inches_for(fab.units, fab.precision_m)
 
 
-def inch_of(value_mm: float) -> str:
-    """A length in millimetres (Parts) as decimal inches to 0.001 in."""
-    return fixed(value_mm / 25.4, 3)
-
-
-def length(length_m: float, inches: bool, unit: bool = True) -> str:
-    """``92.50 mm``, or ``92.50 mm (3.642 in)`` for a spec written in inches."""
+def length(length_m: float, inches: Inches | None, unit: bool = True) -> str:
+    """``92.50 mm``, or ``92.50 mm (3 5/8 in)`` for a spec written in inches."""
     text = mm(length_m) + (" mm" if unit else "")
-    if inches:
-        text += f" ({inch(length_m)} in)"
+    if inches is not None:
+        text += f" ({inches.text(length_m)} in)"
     return text
+
+
+def per_step_words() -> str:
+    """The inch sensitivity's unit, as a column or row says it."""
+    return f"1/{SENSITIVITY_STEP_IN.denominator} in"
 
 
 def hz(frequency_hz: float) -> str:
@@ -169,11 +172,6 @@ def celsius(value_c: float) -> str:
 
 def speed(value_m_s: float) -> str:
     return f"{fixed(value_m_s, 3)} m/s"
-
-
-def uses_inches(units: str) -> bool:
-    """The spec was written in inches or feet: show inches beside millimetres."""
-    return units in ("in", "ft")
 
 
 def safe(text: str) -> str:

@@ -4,7 +4,7 @@ its stopper, cap or plug so it sounds its target in the spec's air (``resolve.tr
 from __future__ import annotations
 
 from compiler.emit.pdf.document import Block, Column, Heading, Paragraph, Spacer, Table
-from compiler.emit.pdf.style import MM, celsius, cents, fixed, hz, length, uses_inches
+from compiler.emit.pdf.style import MM, celsius, cents, fixed, hz, inches_of, length
 from compiler.resolve.model import Resolved
 
 
@@ -13,7 +13,7 @@ def blocks(resolved: Resolved) -> list[Block]:
     trims = [(g, t) for g in resolved.groups for t in g.trims]
     if not trims:
         return []
-    inches = uses_inches(resolved.fabrication.units)
+    inches = inches_of(resolved.fabrication)
     cols = (Column("pipe", 1.6), Column("built", 1.0, "right"),
             Column("measured", 1.5, "right"), Column("in the spec's air", 1.3, "right"),
             Column("target", 1.0, "right"), Column("off cents", 0.8, "right"),
