@@ -41,6 +41,7 @@ def _calibration(group: Group) -> str:
     if not fit.calibrated:
         return "uncalibrated"
     text = f"calibrated, {fit.parameter} {fit.value:.3f}, "
+    text += "".join(f"{m.name} {m.value:.3f}, " for m in fit.more)
     if len(fit.residuals) == 1:
         return text + "an exact fit of one measurement (measure more pipes to check the model)"
     return text + f"rms {fit.rms_cents:.2f} cents over {len(fit.residuals)} measurements"

@@ -10,7 +10,7 @@ the length together, so no tuning allowance is added.
 
 from __future__ import annotations
 
-from dataclasses import replace
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -20,8 +20,8 @@ from compiler.acoustics.impedance import Bore, Instrument
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
-from compiler.resolve import calibration, flute_report, plain
-from compiler.resolve.environment import group_air
+from compiler.resolve import calibration, flute_calibration, flute_report, plain
+from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.model import Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
@@ -227,6 +227,61 @@ def _as_cut(flute: spec_model.Flute, design: solve.Design, limits: solve.HoleCon
     return tuple(x)
 
 
+@dataclass(frozen=True)
+class _Made:
+    """A solved flute as it will be cut: the design, the instrument with its length, free
+    hole positions and free cork rounded to the spec's precision, and those positions."""
+
+    design: solve.Design
+    instrument: Instrument
+    positions: tuple[float, ...]
+
+
+def _design(flute: spec_model.Flute, spec: spec_model.Spec, engine_head: EngineHead,
+            cork: solve.CorkRange | None, rows: flute_report.Rows,
+            limits: solve.HoleConstraints, air: GroupAir) -> _Made:
+    """Solve the flute, then round it as cut (drills are already snapped)."""
+    stock = spec.stock_named(flute.stock)
+    assert stock is not None and stock.inside_diameter_m is not None
+    bore_d, wall = stock.inside_diameter_m, stock.thickness_m
+    fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
+    try:
+        design = solve.design_holes(
+            Bore.cylinder(bore_d / 2), wall, engine_head, np.array(rows.closed, dtype=bool),
+            np.array(rows.targets_hz), air.state, registers=np.array(rows.registers),
+            constraints=limits, fixed=fixed, drills_m=spec.fabrication.drills_m,
+            length_m=flute.length_m, radiation=flute.radiation,
+            hole_radiation=HOLE_RADIATION[flute.radiation], losses=flute.losses,
+            note_names=rows.names, cork=cork, end_wall_m=wall,
+            second_weight=(solve.SECOND_REGISTER_WEIGHT if flute.second_register_weight is None
+                           else flute.second_register_weight))
+    except solve.DesignError as exc:
+        raise PhysicsError.at(_where(flute, exc, rows.positions),
+                              f"flute `{flute.id}`: {exc.message}", exc.hint) from None
+    step = spec.fabrication.precision_m
+    length = flute.length_m or plain.round_to(design.length_m, step)
+    positions = _as_cut(flute, design, limits, engine_head, step)
+    cavity = design.cork_m if cork is None or not cork.free else plain.round_to(
+        design.cork_m, step)
+    instrument = replace(design.instrument, length_m=length, head=replace(
+        design.instrument.head, cavity_length_m=cavity), holes=tuple(
+        replace(h, position_m=x) for h, x in zip(design.instrument.holes, positions,
+                                                 strict=True)))
+    return _Made(design, instrument, positions)
+
+
+def prototype(flute: spec_model.Flute, spec: spec_model.Spec) -> Instrument:
+    """The flute as the uncalibrated model makes it, as cut: what a measured prototype is
+    taken to be (``flute_calibration``)."""
+    air = group_air(flute.family, spec.environment, flute.environment)
+    stock = spec.stock_named(flute.stock)
+    assert stock is not None and stock.inside_diameter_m is not None
+    engine_head, _, cork = _head(flute, stock.inside_diameter_m, stock.thickness_m)
+    limits = _limits(flute)
+    _check_fixed(flute, engine_head, limits.min_web_m)
+    return _design(flute, spec, engine_head, cork, _rows(flute, spec), limits, air).instrument
+
+
 def _limits(flute: spec_model.Flute) -> solve.HoleConstraints:
     c = flute.constraints
     defaults = solve.HoleConstraints()
@@ -249,31 +304,18 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
     rows = _rows(flute, spec)
     limits = _limits(flute)
     _check_fixed(flute, engine_head, limits.min_web_m)
-    fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
-    try:
-        design = solve.design_holes(
-            Bore.cylinder(bore_d / 2), wall, engine_head, np.array(rows.closed, dtype=bool),
-            np.array(rows.targets_hz), air.state, registers=np.array(rows.registers),
-            constraints=limits, fixed=fixed, drills_m=spec.fabrication.drills_m,
-            length_m=flute.length_m, radiation=flute.radiation,
-            hole_radiation=HOLE_RADIATION[flute.radiation], losses=flute.losses,
-            note_names=rows.names, cork=cork, end_wall_m=wall,
-            second_weight=(solve.SECOND_REGISTER_WEIGHT if flute.second_register_weight is None
-                           else flute.second_register_weight))
-    except solve.DesignError as exc:
-        raise PhysicsError.at(_where(flute, exc, rows.positions),
-                              f"flute `{flute.id}`: {exc.message}", exc.hint) from None
-    # Predict the flute as it will be cut: length, free hole positions and a free cork
-    # rounded to the spec's precision (drills are already snapped), then the model run again.
-    step = spec.fabrication.precision_m
-    length = flute.length_m or plain.round_to(design.length_m, step)
-    positions = _as_cut(flute, design, limits, engine_head, step)
-    cavity = design.cork_m if cork is None or not cork.free else plain.round_to(
-        design.cork_m, step)
-    instrument = replace(design.instrument, length_m=length, head=replace(
-        design.instrument.head, cavity_length_m=cavity), holes=tuple(
-        replace(h, position_m=x) for h, x in zip(design.instrument.holes, positions,
-                                                 strict=True)))
+    made = _design(flute, spec, engine_head, cork, rows, limits, air)
+    fit = calibration.uncalibrated()
+    if flute.measured:
+        # The prototype is the flute as the uncalibrated model made it; the head's fitted
+        # corrections then shape the flute to cut.
+        correction, fit = flute_calibration.fit(flute, made.instrument, air, rows)
+        engine_head = replace(engine_head, extra_length_m=correction.extra_length_m)
+        if correction.lip_cover is not None:
+            engine_head = replace(engine_head, lip_coverage=correction.lip_cover)
+        made = _design(flute, spec, engine_head, cork, rows, limits, air)
+    design, instrument, positions = made.design, made.instrument, made.positions
+    length, cavity = instrument.length_m, instrument.head.cavity_length_m
     if stock.length_m is not None and length > stock.length_m:
         raise PhysicsError.at(flute.where.get("stock", flute.position),
                               f"flute `{flute.id}`: the tube must be {length * 1000:.1f} mm long, "
@@ -321,10 +363,6 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position)
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
-                  calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))
+                  calibration=fit, holder=None, pipe_ids=(pipe.id,))
     warnings = list(air.warnings) + list(found.warnings)
-    if flute.measured:
-        warnings.append(Note(flute.where.get("measured", flute.position),
-                             f"flute `{flute.id}`: measured pitches are not fitted for flutes "
-                             "yet; the prediction is uncalibrated"))
     return group, [pipe], warnings

@@ -86,6 +86,14 @@ class Residual:
 
 
 @dataclass(frozen=True)
+class Fitted:
+    """A further parameter a calibration fitted (a flute's lip cover), by name."""
+
+    name: str
+    value: float
+
+
+@dataclass(frozen=True)
 class Calibration:
     calibrated: bool
     parameter: str
@@ -93,6 +101,9 @@ class Calibration:
     value: float
     residuals: tuple[Residual, ...]
     rms_cents: float
+    more: tuple[Fitted, ...] = ()
+    """Further fitted parameters (a side-blown flute's lip cover beside its embouchure
+    correction)."""
 
 
 @dataclass(frozen=True)

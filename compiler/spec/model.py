@@ -88,6 +88,8 @@ class Measurement:
     temperature_k: float
     length_m: float | None
     position: Position
+    fingering: tuple[bool, ...] | None = None
+    """Flutes: the fingering played (True = closed), where the note has more than one."""
 
 
 @dataclass(frozen=True)

@@ -354,7 +354,11 @@ def _measured(r: _Reader, base: Path) -> tuple[model.Measurement, ...]:
             (*m, "temperature"))
         if note is None or freq is None or temp is None:
             continue
-        items.append(model.Measurement(note, freq, temp, r.length((*m, "length")), r.at(m)))
+        played = r.get((*m, "fingering"))
+        fingering = (tuple(ch in "xX" for ch in str(played) if ch in "xXoO")
+                     if played is not None else None)
+        items.append(model.Measurement(note, freq, temp, r.length((*m, "length")), r.at(m),
+                                       fingering))
     return tuple(items)
 
 

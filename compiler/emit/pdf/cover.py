@@ -28,7 +28,7 @@ from compiler.emit.pdf.style import (
     length,
     speed,
 )
-from compiler.resolve.model import AirReport, Resolved
+from compiler.resolve.model import AirReport, Pipe, Resolved
 
 SECTION = "Cover"
 WARNINGS_SHOWN = 12
@@ -124,27 +124,43 @@ def _calibration_table(resolved: Resolved) -> Table:
             rows.append((g.id, "calibrated", cal.parameter, f"{cal.value:.4f}",
                          fixed(cal.rms_cents, 2),
                          ", ".join(f"{r.note} {cents(r.error_cents)}" for r in cal.residuals)))
+            rows += [("", "", m.name, f"{m.value:.4f}", "", "") for m in cal.more]
     return Table(cols, tuple(rows), size=8)
 
 
 def _summary_table(resolved: Resolved) -> Table:
     by_id = {p.id: p for p in resolved.pipes}
-    cols = (Column("group", 1.6), Column("kind", 0.9), Column("family", 1.2),
+    cols = (Column("group", 1.4), Column("kind", 0.7), Column("family", 1.2),
             Column("construction", 1.1), Column("pipes", 0.6, "right"),
-            Column("notes", 1.1), Column("stock", 1.1), Column("largest\nerror cents", 1.0,
-                                                               "right"))
+            Column("notes", 0.9), Column("stock", 0.9),
+            Column("1st register\nlargest cents", 1.1, "right"),
+            Column("2nd register\nlargest cents", 1.2, "right"))
     rows = []
     for g in resolved.groups:
         pipes = [by_id[i] for i in g.pipe_ids if i in by_id]
         notes = f"{pipes[0].note} to {pipes[-1].note}" if len(pipes) > 1 else (
             pipes[0].note if pipes else "-")
-        errors = [p.error_cents for p in pipes] + [f.error_cents for p in pipes
-                                                  for f in p.fingerings]
-        worst = max(errors, key=abs) if errors else 0.0
         stock = ", ".join(sorted({p.stock for p in pipes}))
         rows.append((g.id, g.kind, g.family, g.construction, str(len(pipes)), notes, stock,
-                     cents(worst)))
+                     *_register_errors(pipes)))
     return Table(cols, tuple(rows), size=8, title_rows=2)
+
+
+def _register_errors(pipes: Sequence[Pipe]) -> tuple[str, str]:
+    """The largest error in cents of the first register (a pipe's own pitch, or a holed
+    pipe's first-register fingerings) and of the second; a weak or split second-register
+    resonance is counted, not given a number."""
+    first = [p.error_cents for p in pipes if not p.fingerings]
+    first += [f.error_cents for p in pipes for f in p.fingerings if f.register == 1]
+    second = [f.error_cents for p in pipes for f in p.fingerings
+              if f.register == 2 and f.resonance == "clear"]
+    flagged = sum(1 for p in pipes for f in p.fingerings
+                  if f.register == 2 and f.resonance != "clear")
+    one = cents(max(first, key=abs)) if first else "-"
+    two = cents(max(second, key=abs)) if second else "-"
+    if flagged:
+        two = f"{two}, {flagged} weak or split" if second else f"{flagged} weak or split"
+    return one, two
 
 
 def _contents(contents: Sequence[tuple[str, int]]) -> Table:
