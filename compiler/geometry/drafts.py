@@ -12,10 +12,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import shapely
 from shapely.geometry import LinearRing, LineString, Polygon
 from shapely.geometry import box as shapely_box
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.kerf import OffsetError, compensate
@@ -97,26 +97,38 @@ def _text_at(text: str, center: Point, height: float, upright: bool) -> Text:
     return Text("engrave", (cx - w / 2.0, cy - height / 2.0), round(height, 3), text, 0.0)
 
 
-def _box(t: Text) -> Polygon:
+def _extent(t: Text) -> tuple[float, float, float, float]:
+    """(x0, y0, x1, y1) of a label's box (horizontal or turned 90°)."""
     w = text_width(t.text, t.height)
     x, y = t.insert
     if t.rotation_deg == 90.0:
-        return shapely_box(x - t.height, y, x, y + w)
-    return shapely_box(x, y, x + w, y + t.height)
+        return x - t.height, y, x, y + w
+    return x, y, x + w, y + t.height
 
 
-def _obstacles(avoid: tuple[Entity, ...]) -> BaseGeometry | None:
+def _box(t: Text, grow: float = 0.0) -> Polygon:
+    x0, y0, x1, y1 = _extent(t)
+    return shapely_box(x0 - grow, y0 - grow, x1 + grow, y1 + grow)
+
+
+OBSTACLE_SAG_MM = 0.1
+"""Arcs become chords within this much when labels are kept clear of them (well inside the
+clearance)."""
+
+
+def _obstacles(avoid: tuple[Entity, ...]) -> list[BaseGeometry]:
     shapes: list[BaseGeometry] = []
     for e in avoid:
         if isinstance(e, Text):
             shapes.append(_box(e))
         elif isinstance(e, Circle):
-            shapes.append(to_polygon(e).exterior)
+            # finer on a small disk: its chords would eat into the room for the label
+            shapes.append(to_polygon(e, min(OBSTACLE_SAG_MM, 0.02 * e.radius)).exterior)
         elif len(e.points) >= 2:
-            points = flatten(e)
+            points = flatten(e, OBSTACLE_SAG_MM)
             shapes.append(LinearRing(points) if e.closed and len(points) >= 3
                           else LineString(points))
-    return unary_union(shapes) if shapes else None
+    return shapes
 
 
 def label(text: str, center: Point, box_w: float, box_h: float,
@@ -130,8 +142,8 @@ def label(text: str, center: Point, box_w: float, box_h: float,
     (the note of the pipe, say): the long text only where it can stand ``LABEL_LONG_MIN_MM``
     tall; ``clear`` mm from every line. None if nothing fits at ``smallest`` (mm)."""
     obstacles = _obstacles(avoid)
-    free = shapely_box(center[0] - box_w / 2.0, center[1] - box_h / 2.0,
-                       center[0] + box_w / 2.0, center[1] + box_h / 2.0)
+    fx0, fy0 = center[0] - box_w / 2.0 - 1e-9, center[1] - box_h / 2.0 - 1e-9
+    fx1, fy1 = center[0] + box_w / 2.0 + 1e-9, center[1] + box_h / 2.0 + 1e-9
     texts = [text, *short]
     for k, words in enumerate(texts):
         chars = max(len(words), 1)
@@ -144,9 +156,10 @@ def label(text: str, center: Point, box_w: float, box_h: float,
             while size >= least - 1e-9:
                 for spot in _candidates(center, box_w, box_h):
                     found = _text_at(words, spot, size, turned)
-                    room = _box(found)
-                    if free.contains(room) and (obstacles is None or not room.buffer(
-                            clear).intersects(obstacles)):
+                    x0, y0, x1, y1 = _extent(found)
+                    if not (fx0 <= x0 and fy0 <= y0 and x1 <= fx1 and y1 <= fy1):
+                        continue  # outside the free box
+                    if not shapely.intersects(obstacles, _box(found, clear)).any():
                         return found
                 size *= 0.8
     return None

@@ -200,7 +200,7 @@ def languid(pipe: Pipe) -> Draft:
     lab = label(f"{pipe.id} languid", (r, 0.75 * r), 1.3 * r, 0.5 * r, avoid=(disk, *marks),
                 short=(f"{pipe.note} languid", pipe.note)) or label(
         pipe.note, (r, 0.8 * r), 1.6 * r, 1.0 * r, avoid=(disk, *marks),
-        smallest=TINY_LABEL_MM, clear=0.1)
+        smallest=TINY_LABEL_MM, clear=0.05)
     return _draft(pipe, "languid", 2 * r, 2 * r, Circle("cut-outer", (r, r), r),
                   (*marks, *labels(lab)), "file the marked front edge straight to form the flue")
 
