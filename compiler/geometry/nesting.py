@@ -73,6 +73,9 @@ def _orient(part: Part, box: Box, lx: float, ly: float) -> tuple[bool, float, fl
 def _too_big(part: Part, box: Box, size: SheetSize, spacing: float,
              source: Position) -> Problem:
     w, h = box[2] - box[0], box[3] - box[1]
+    # the part's size as every output names it: length × width
+    length, width = ((max(w, h), min(w, h)) if part.length_along_x is None else
+                     (w, h) if part.length_along_x else (h, w))
     if part.kind == "sheet":
         turn, need = "", (max(w, h) + 2 * spacing, min(w, h) + 2 * spacing)
     else:
@@ -80,7 +83,8 @@ def _too_big(part: Part, box: Box, size: SheetSize, spacing: float,
         need = (w + 2 * spacing, h + 2 * spacing)
     return Problem(
         source,
-        f"part `{part.id}` ({w:.1f} × {h:.1f} mm with the kerf) does not fit the "
+        f"part `{part.id}` ({length:.1f} × {width:.1f} mm with the kerf, length × width) "
+        "does not fit the "
         f"{size.length_mm:g} × {size.width_mm:g} mm sheet of `{part.stock}` less "
         f"{spacing:g} mm spacing at its edges{turn}",
         f"it needs a sheet of at least {math.ceil(need[0])} × {math.ceil(need[1])} mm: give "
