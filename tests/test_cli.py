@@ -26,11 +26,14 @@ def test_check_ok(capsys: pytest.CaptureFixture[str]) -> None:
 def test_check_json(capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["check", "--json", str(BAD), str(EXAMPLE)]) == 1
     problems = json.loads(capsys.readouterr().out)
-    assert problems == [{
+    # the misspelt key, and (independently) the pipes this fragment of a spec lacks
+    assert [p["message"] for p in problems] == ["the spec has no pipes",
+                                                "unknown key `humidty` in environment"]
+    assert problems[1] == {
         "file": str(BAD), "line": 5, "col": 3, "severity": "error", "category": "schema",
         "message": "unknown key `humidty` in environment",
         "hint": "did you mean `humidity`? valid keys here: `co2`, `humidity`, `pressure`, "
-                "`sound_speed`, `temperature`"}]
+                "`sound_speed`, `temperature`"}
 
 
 def test_usage_errors() -> None:
@@ -43,7 +46,7 @@ def test_python_dash_m_is_the_same_program() -> None:
     done = subprocess.run([sys.executable, "-m", "compiler", "check", str(BAD)],
                           capture_output=True, text=True, cwd=ROOT, check=False)
     assert done.returncode == 1
-    assert done.stderr.startswith(f"{BAD}:5:3: error: unknown key `humidty`")
+    assert f"{BAD}:5:3: error: unknown key `humidty`" in done.stderr
 
 
 def test_check_imports_no_heavy_modules() -> None:
@@ -154,3 +157,20 @@ def test_build_warns_when_it_replaces_another_specs_output(
     assert main(["build", str(second), "-o", str(out)]) == 0
     assert main(["build", str(second), "-o", str(out)]) == 0
     assert "warning" not in capsys.readouterr().err
+
+
+def test_resolve_reports_the_problems_of_every_group(tmp_path: Path,
+                                                     capsys: pytest.CaptureFixture[str]) -> None:
+    spec = tmp_path / "two.yaml"
+    spec.write_text(
+        "boresmith: 1\ninstrument: Two bad groups\nstock:\n"
+        "  alu: {material: aluminium, tube: {outside_diameter: 20 mm, wall: 1 mm, "
+        "length: 1000 mm}}\n"
+        "tube_sets:\n"
+        "  - {id: a, family: stopped-tube, stock: alu, notes: [C2]}\n"   # far too long
+        "  - {id: b, family: stopped-tube, stock: alu, notes: [C9]}\n",  # far too short
+        encoding="utf-8")
+    assert main(["resolve", str(spec)]) == 1
+    err = capsys.readouterr().err
+    assert "tube set `a`: no listed stock can make C2" in err
+    assert "tube set `b`: no listed stock can make C9" in err

@@ -92,11 +92,19 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []
+    failed: list[SpecError] = []
     for subject, make in work:
-        group, made, notes = memo(("group", subject, shared), make)
+        # Groups are independent: a problem in one does not hide those of the others.
+        try:
+            group, made, notes = memo(("group", subject, shared), make)
+        except SpecError as exc:
+            failed.append(exc)
+            continue
         groups.append(group)
         pipes.extend(made)
         warnings.extend(notes)
+    if failed:
+        raise type(failed[0])([p for exc in failed for p in exc.problems])
     low, high = USUAL_A4_HZ
     if not low <= spec.tuning.a4_hz <= high and "a4" in spec.tuning.where:
         warnings.append(Note(spec.tuning.where["a4"],

@@ -39,6 +39,9 @@ class Document:
     sha256: str = ""
     values: dict[Path, Position] = field(default_factory=dict)
     keys: dict[Path, Position] = field(default_factory=dict)
+    problems: tuple[Problem, ...] = ()
+    """Problems that did not stop the reading (a duplicate key, a tag): reported with the
+    others that ``load_spec`` finds, all at once."""
 
     def at(self, path: Path) -> Position:
         """Position of the value at ``path``, or of its nearest enclosing value."""
@@ -91,6 +94,10 @@ class _Builder:
         self.seen: set[int] = set()
         self.expanded = 0
         self.constructor = yaml.SafeLoader("")
+        self.problems: list[Problem] = []
+
+    def _problem(self, mark: Any, message: str, hint: str) -> None:
+        self.problems.extend(_error(self.file, mark, message, hint).problems)
 
     def build(self, node: yaml.Node, path: Path, depth: int) -> Any:
         self.count += 1
@@ -115,27 +122,35 @@ class _Builder:
 
     def _mapping(self, node: yaml.MappingNode, path: Path, depth: int) -> dict[str, Any]:
         result: dict[str, Any] = {}
+        # A bad key is reported and left out; the rest is read on, so every independent
+        # problem of the file is found in one run.
         for key_node, value_node in node.value:
             if key_node.tag == "tag:yaml.org,2002:merge":
-                raise _error(self.file, key_node.start_mark,
-                             "merge keys (`<<`) are not supported",
-                             "write the keys out, or use an alias for a whole value")
+                self._problem(key_node.start_mark, "merge keys (`<<`) are not supported",
+                              "write the keys out, or use an alias for a whole value")
+                continue
             if not isinstance(key_node, yaml.ScalarNode):
-                raise _error(self.file, key_node.start_mark,
-                             "a key must be a plain word, not a list or mapping",
-                             "write `name: value`")
+                self._problem(key_node.start_mark,
+                              "a key must be a plain word, not a list or mapping",
+                              "write `name: value`")
+                continue
             key = str(key_node.value)
             if key in result:
                 first = self.keys[(*path, key)]
-                raise _error(self.file, key_node.start_mark,
-                             f"duplicate key `{key}` (first given at line {first.line})",
-                             "keep one of them: YAML would silently drop the first")
+                self._problem(key_node.start_mark,
+                              f"duplicate key `{key}` (first given at line {first.line})",
+                              "keep one of them: YAML would silently drop the first")
+                continue
             self.keys[(*path, key)] = _position(self.file, key_node)
             result[key] = self.build(value_node, (*path, key), depth + 1)
         return result
 
     def _scalar(self, node: yaml.Node) -> Any:
-        value = self.constructor.construct_object(node, deep=True)
+        try:
+            value = self.constructor.construct_object(node, deep=True)
+        except yaml.constructor.ConstructorError as exc:
+            self._problem(exc.problem_mark, *_tag_problem(exc))
+            return str(node.value)
         # Dates and binary are no quantities of ours; keep the text so errors quote it.
         if not isinstance(value, str | int | float | bool | type(None)):
             return str(node.value)
@@ -225,13 +240,17 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
     try:
         data = builder.build(nodes[0], (), 0)
     except yaml.constructor.ConstructorError as exc:
-        problem = str(exc.problem)
-        tag = re.search(r"for the tag '([^']*)'", problem)
-        if tag:
-            shown = tag[1].replace("tag:yaml.org,2002:", "!!")
-            problem = (f"the tag `{shown}` is not allowed: a spec holds only text, numbers, "
-                       "true/false, lists and mappings")
-        raise _error(filename, exc.problem_mark, f"YAML value: {problem}",
-                     "remove the tag (the word starting with `!`), or quote the value if it "
-                     "is meant as text") from None
-    return Document(data, filename, digest, builder.values, builder.keys)
+        raise _error(filename, exc.problem_mark, *_tag_problem(exc)) from None
+    return Document(data, filename, digest, builder.values, builder.keys,
+                    tuple(builder.problems))
+
+
+def _tag_problem(exc: yaml.constructor.ConstructorError) -> tuple[str, str]:
+    problem = str(exc.problem)
+    tag = re.search(r"for the tag '([^']*)'", problem)
+    if tag:
+        shown = tag[1].replace("tag:yaml.org,2002:", "!!")
+        problem = (f"the tag `{shown}` is not allowed: a spec holds only text, numbers, "
+                   "true/false, lists and mappings")
+    return (f"YAML value: {problem}", "remove the tag (the word starting with `!`), or quote "
+            "the value if it is meant as text")

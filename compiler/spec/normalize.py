@@ -6,7 +6,7 @@ collected with its position, and all are raised together as one ``UnitError``.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from typing import Any, TypeVar
 
 from compiler.display import INCH_PRECISION_M, INCH_UNITS
@@ -28,14 +28,21 @@ PITCH_CLASS_KEYS = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "G#", "A", "Bb", 
 class _Reader:
     """Reads values at paths, converting units and collecting problems."""
 
-    def __init__(self, document: Document) -> None:
+    def __init__(self, document: Document, refused: Sequence[Path] = ()) -> None:
         self.doc = document
         self.problems: list[Problem] = []
+        self.refused = tuple(refused)
+        """Paths whose values the schema refused: read as absent, never judged again."""
         self.units = str(document.data.get("units", "mm"))
         self.rejected: set[str] = set()
         """Stock names given but refused (already reported): not reported again as missing."""
 
+    def _refused(self, path: Path) -> bool:
+        return any(path[: len(r)] == r for r in self.refused)
+
     def get(self, path: Path) -> Any:
+        if self.refused and self._refused(path):
+            return None
         node: Any = self.doc.data
         for part in path:
             if isinstance(node, dict) and isinstance(part, str):
@@ -47,6 +54,8 @@ class _Reader:
         return node
 
     def fail(self, path: Path, message: str, hint: str = "") -> None:
+        if self.refused and self._refused(path):
+            return  # the schema's problem there says it already
         self.problems.append(Problem(self.doc.at(path), message, hint, "units"))
 
     def convert(self, path: Path, parse: Callable[[Any], T], default: T) -> T:
@@ -104,16 +113,36 @@ def _name(path: Path) -> str:
 
 def normalize(document: Document) -> model.Spec:
     """Build the typed ``Spec``; raise ``UnitError`` listing every problem."""
+    r = _Reader(document)
+    spec = _build(r, document)
+    if r.problems:
+        raise UnitError(r.problems)
+    return spec
+
+
+def unit_problems(document: Document, refused: Sequence[Path]) -> list[Problem]:
+    """The unit and reference problems of a spec the schema found problems in, leaving out
+    the values it refused (``refused`` paths). The rest of the document is not sure to be
+    well formed, so a value of an unexpected shape ends the search: what was found so far
+    is returned."""
+    r = _Reader(document, refused)
+    try:
+        _build(r, document)
+    except (TypeError, ValueError, KeyError, AttributeError, IndexError):
+        pass
+    return r.problems
+
+
+def _build(r: _Reader, document: Document) -> model.Spec:
     from compiler.spec.surveys import read_survey  # it reads with this module's helpers
 
-    r = _Reader(document)
     data = document.data
     stock = _stock(r)
     spec = model.Spec(
         file=document.file,
         sha256=document.sha256,
-        format_version=int(data["boresmith"]),
-        instrument=str(data["instrument"]),
+        format_version=int(data.get("boresmith", 1)),
+        instrument=str(data.get("instrument", "")),
         units=r.units,
         environment=_environment(r, ("environment",)),
         tuning=_tuning(r),
@@ -125,8 +154,6 @@ def normalize(document: Document) -> model.Spec:
         surveys=tuple(read_survey(r, i) for i in range(len(data.get("surveys", [])))),
     )
     _check_references(r, spec)
-    if r.problems:
-        raise UnitError(r.problems)
     return spec
 
 
@@ -190,10 +217,14 @@ def _stock(r: _Reader) -> tuple[model.Stock, ...]:
         material = str(entry.get("material", ""))
         if "tube" in entry:
             t = (*base, "tube")
+            before = len(r.problems)
             od = r.length((*t, "outside_diameter"))
             inner = r.length((*t, "inside_diameter"))
             wall = r.length((*t, "wall"))
             given = sum(v is not None for v in (od, inner, wall))
+            if len(r.problems) > before:  # a size that could not be read: said already
+                r.rejected.add(name)
+                continue
             if given != 2:
                 r.fail(t, f"stock `{name}`: give two of `outside_diameter`, `inside_diameter` and "
                        "`wall`", "for example `{outside_diameter: 22 mm, wall: 1 mm}`")
@@ -328,12 +359,13 @@ def _notes(r: _Reader, path: Path) -> tuple[int, ...]:
 
 
 def _check_duplicates(r: _Reader, path: Path, midis: tuple[int, ...]) -> None:
-    seen = set()
+    seen: set[int] = set()
+    said: set[int] = set()
     for note in midis:
-        if note in seen:
+        if note in seen and note not in said:
             r.fail(path, f"{_name(path)}: the note {notes.note_name(note)} is listed twice",
                    "each note makes one pipe; remove the repeat")
-            return
+            said.add(note)
         seen.add(note)
 
 

@@ -69,29 +69,54 @@ def dotted(path: tuple[str | int, ...] | list[str | int]) -> str:
 
 def validate_document(document: Document) -> None:
     """Raise ``SchemaError`` with every problem of ``document``, or return quietly."""
+    problems, _ = schema_problems(document)
+    if problems:
+        raise SchemaError(problems)
+
+
+def schema_problems(document: Document) -> tuple[list[Problem], list[tuple[str | int, ...]]]:
+    """Every schema problem of ``document``, and the paths of the values they concern (a
+    later stage leaves those out, so it reports only the problems independent of these).
+
+    Raises ``SchemaError`` at once when nothing else can be checked: the spec is not a
+    mapping, or is written for another format version.
+    """
     data = document.data
     if not isinstance(data, dict):
         raise SchemaError.at(document.at(()), "the spec must be a mapping of keys to values",
                              "start with `boresmith: 1` and `instrument: ...`")
-    _check_version(document)
     problems: list[Problem] = []
+    if "boresmith" not in data:
+        problems.append(Problem(document.at(()), "missing the format version `boresmith: 1`",
+                                f"add `boresmith: {FORMAT_VERSION}` as the first line",
+                                "schema"))
+    else:
+        _check_version(document)
     errors = list(_validator().iter_errors(data))
     # A mapping that misses a required key also has too few keys: say only the first.
     missing = {tuple(e.absolute_path) for e in errors if e.validator == "required"}
+    paths: list[tuple[str | int, ...]] = []
     for error in errors:
-        if error.validator == "minProperties" and tuple(error.absolute_path) in missing:
+        path = tuple(error.absolute_path)
+        if error.validator == "minProperties" and path in missing:
             continue
+        if error.validator == "required":
+            name = error.message.split("'")[1] if "'" in error.message else ""
+            if not path and name == "boresmith":
+                continue  # said above
+            paths.append((*path, name))
+        elif error.validator == "additionalProperties" and isinstance(error.instance, dict):
+            known = error.schema.get("properties", {}) if isinstance(error.schema, dict) else {}
+            paths += [(*path, key) for key in error.instance if key not in known]
+        elif path:
+            paths.append(path)
         problems.extend(_describe(error, document))
-    if problems:
-        unique = {(p.position, p.message): p for p in problems}
-        raise SchemaError(list(unique.values()))
+    unique = {(p.position, p.message): p for p in problems}
+    return list(unique.values()), paths
 
 
 def _check_version(document: Document) -> None:
     data = document.data
-    if "boresmith" not in data:
-        raise SchemaError.at(document.at(()), "missing the format version `boresmith: 1`",
-                             f"add `boresmith: {FORMAT_VERSION}` as the first line")
     version = data["boresmith"]
     where = document.at(("boresmith",))
     if isinstance(version, bool) or not isinstance(version, int):

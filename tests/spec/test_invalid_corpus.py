@@ -88,4 +88,40 @@ def test_all_problems_reported_at_once(tmp_path: Path,
     assert main(["check", str(spec)]) == 1
     lines = [ln for ln in capsys.readouterr().err.splitlines() if ": error: " in ln]
     assert [ln.split(": error")[0] for ln in lines] == [
-        f"{spec}:3:8", f"{spec}:5:3", f"{spec}:7:16"]
+        f"{spec}:1:1", f"{spec}:3:8", f"{spec}:5:3", f"{spec}:7:16"]
+    assert "the spec has no pipes" in lines[0]
+
+
+def test_every_independent_problem_in_one_run(tmp_path: Path,
+                                              capsys: pytest.CaptureFixture[str]) -> None:
+    # YAML, schema, unit and reference problems in different places: each is reported, and
+    # a value the schema refused is not judged again by the unit reader.
+    spec = tmp_path / "many.yaml"
+    spec.write_text(
+        "boresmith: 1\n"
+        "instrument: Many\n"
+        "environment: {temprature: 20 C}\n"                               # 3: schema
+        "stock:\n"
+        "  alu: {material: aluminium, tube: {outside_diameter: 20 mmm, wall: 1 mm}}\n"  # 5: unit
+        "tube_sets:\n"
+        "  - id: a\n"
+        "    family: stopped-tube\n"
+        "    stock: steel\n"                                              # 9: reference
+        "    notes: [C5, D5, C5, D5]\n"                                   # 10: two repeats
+        "    harmonic: two\n"                                             # 11: schema
+        "  - id: b\n"
+        "    family: open-tube\n"
+        "    stock: alu\n"
+        "    notes: C5..C6\n"
+        "    notes: C4..C5\n"                                             # 16: duplicate key
+        "    end_correction: {model: unflanged, k: 3 mm}\n",             # 17: unit
+        encoding="utf-8")
+    assert main(["check", str(spec)]) == 1
+    err = capsys.readouterr().err
+    where = [ln.split(": error: ")[0].rsplit(":", 2)[1:] for ln in err.splitlines()
+             if ": error: " in ln]
+    assert [int(line) for line, _ in where] == [3, 5, 9, 10, 10, 11, 16, 17], err
+    assert "unknown key `temprature`" in err and "duplicate key `notes`" in err
+    assert "the note C5 is listed twice" in err and "the note D5 is listed twice" in err
+    assert "no stock named `steel`" in err and "give two of" not in err
+    assert sum("harmonic" in ln for ln in err.splitlines() if ": error: " in ln) == 1
