@@ -26,7 +26,9 @@ from __future__ import annotations
 
 import json
 import math
+from pathlib import Path
 
+import jsonschema
 import pytest
 from scipy.optimize import brentq
 
@@ -37,6 +39,7 @@ from compiler.resolve.targets import nearest_note
 from compiler.spec import load_spec
 from compiler.spec.model import Tuning
 
+SCHEMAS = Path(__file__).resolve().parents[2] / "schemas"
 DRY_ROOM = "environment: {temperature: 20 C, humidity: 0 %, co2: 400 ppm}\n"
 
 
@@ -260,7 +263,10 @@ def test_resolved_json_carries_the_survey() -> None:
     resolved = _resolve(_plain("reed", 300, "[{from_top: 0 mm, diameter: 5 mm}, "
                                "{from_top: 300 mm, diameter: 12 mm}]",
                                extra=", reed: {extra_length: 10 mm}"))
-    data = json.loads(json.dumps(to_dict(resolved)))
+    data = json.loads(json.dumps(to_dict(resolved), allow_nan=False))
+    # JSON Schema draft 2020-12 (json-schema.org), validated by the jsonschema library.
+    schema = json.loads((SCHEMAS / "boresmith-resolved.schema.json").read_text())
+    jsonschema.Draft202012Validator(schema).validate(data)
     pipe = data["pipes"][0]
     assert pipe["family"] == "survey" and pipe["head"]["kind"] == "reed"
     assert pipe["bore"] == [{"from_top_mm": 0.0, "diameter_mm": 5.0},
@@ -268,3 +274,27 @@ def test_resolved_json_carries_the_survey() -> None:
     assert {"nearest_note", "nearest_cents", "cents_per_c"} <= set(pipe["fingerings"][0])
     assert all(c["quantity"] == "impedance" for c in pipe["curves"])
     assert data["groups"][0]["kind"] == "survey"
+
+
+def test_a_copy_from_stock_tube_names_it_and_warns_of_another_bore() -> None:
+    stock = ("stock:\n  alu-16: {material: aluminium, tube: {outside_diameter: 16 mm, "
+             "wall: 1 mm, length: 1000 mm}}\n")
+    fingerings = ("    fingerings:\n      - {closed: xxx, second_register: D6}\n"
+                  "    stock: alu-16\n")
+    resolved = _resolve(FIFE.format(third="from_top: 195.5 mm", fingerings=fingerings),
+                        DRY_ROOM + stock)
+    pipe = resolved.pipes[0]
+    assert pipe.stock == "alu-16" and pipe.material == "aluminium"
+    assert pipe.outside_diameter_m == pytest.approx(0.016)  # the template wraps the stock
+    # the stock's 14 mm bore is not the measured 12.2 mm one: the copy would play otherwise
+    assert any("14.00 mm bore" in n.message and "12.20 mm" in n.message
+               for n in resolved.warnings)
+    second = next(f for f in pipe.fingerings if f.register == 2)
+    assert second.note == "D6" and second.target_hz == pytest.approx(1174.659, abs=1e-3)
+
+
+def test_without_stock_the_outside_is_the_bore_and_two_walls() -> None:
+    pipe = _resolve(FIFE.format(third="from_top: 195.5 mm", fingerings="")).pipes[0]
+    assert pipe.outside_diameter_m == pytest.approx(0.0122 + 2 * 0.0034)
+    assert pipe.stock == "fife" and pipe.material == "as measured"
+    assert [h.chimney_m for h in pipe.holes] == [pytest.approx(0.0034)] * 3
