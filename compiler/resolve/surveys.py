@@ -294,6 +294,7 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
                               f"{name}: the outside diameter ({_mm(outside)}) is not larger "
                               f"than the bore at the top ({_mm(top_d)})",
                               "check `outside_diameter` against the bore")
+    stock_notes = _stock_notes(survey, stock, top_d) if stock is not None else []
     engine_head, head = _head(survey, bore)
     holes = _holes(survey, bore, engine_head, outside)
     instrument = _instrument(survey, bore, engine_head, holes)
@@ -320,8 +321,7 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
     if lowest is None:
         raise PhysicsError.at(survey.position, f"{name}: the model finds no resonance for any "
                               "fingering", "check the length, bore and holes as measured")
-    if stock is not None:
-        warnings += _stock_notes(survey, stock, top_d)
+    warnings += stock_notes
     pipe = _pipe(survey, air, instrument, engine_head, head, holes, (top_d, outside),
                  fingerings, lowest, stock)
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",
