@@ -17,10 +17,11 @@ from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry import stock_plan
 from compiler.geometry.boards import board_drafts
 from compiler.geometry.drafts import Draft, finish
+from compiler.geometry.flute_jig import flute_parts
 from compiler.geometry.model import Part, Parts, TubeCut
 from compiler.geometry.nesting import SheetSize, nest
 from compiler.geometry.rolled import rolled_drafts
-from compiler.geometry.tube import duct_block, holder_drafts, template, tube_cut
+from compiler.geometry.tube import holder_drafts, template, tube_cut
 from compiler.geometry.units import mm
 from compiler.geometry.validation import check_draft
 from compiler.options import BuildOptions
@@ -54,10 +55,7 @@ def _pipe_drafts(pipe: Pipe, resolved: Resolved, stock: dict[str, StockItem]) ->
     drafts: list[Draft] = []
     if pipe.holes or pipe.head is not None or pipe.mouth is not None:
         drafts.append(template(pipe))
-        block = duct_block(pipe)
-        if block is not None:
-            drafts.append(block)
-    return drafts
+    return drafts + flute_parts(pipe)
 
 
 def _holders(resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:

@@ -10,10 +10,8 @@ closes up when wrapped. Ticks every 10 mm (longer every 50 mm) run down both sid
 the edges meet square; the window and labium (duct flutes), the embouchure hole and the
 cork line (side-blown flutes) or the mouth (tube flue pipes) are outlined.
 
-Duct block (kind ``template``): a side view of the block (bore × block length, its top
-end up) with the duct flat marked ``duct height`` in from the front edge, and an end view:
-the bore's circle with the flat's chord. The block fills the tube from its top end to the
-window's upper edge (the duct exit).
+A flute's cutter parts (drilling strips, the duct block's profile, the window template)
+are in ``flute_jig``; its duct block is drawn at full size on the build sheet.
 
 Holder (tube sets): a plate with one round opening per tube (outside diameter +
 clearance) in a row, ``spacing`` clear between tubes and ``margin`` clear to the edges,
@@ -28,7 +26,7 @@ import math
 from compiler.errors import Position
 from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline, Text, TubeCut
-from compiler.geometry.paths import bulge_for, closed, line, rect, text_width
+from compiler.geometry.paths import line, rect, text_width
 from compiler.geometry.units import mm
 from compiler.resolve.model import Group, Hole, Pipe
 
@@ -158,45 +156,6 @@ def template(pipe: Pipe) -> Draft:
                  openings=(), marks=(*marks, *labels(lab), top), source=pipe.source,
                  note=f"wrap round the {od:.1f} mm tube, front line to the front, top end up",
                  length_along_x=False)
-
-
-def duct_block(pipe: Pipe) -> Draft | None:
-    """Side and end views of a duct flute's block with its duct flat, or None (also when the
-    duct's height is not given: there is no flat to draw)."""
-    head = pipe.head
-    if (head is None or head.kind != "duct" or head.labium_from_top_m is None
-            or pipe.inside_diameter_m is None or head.duct_height_m is None):
-        return None
-    bore = mm(pipe.inside_diameter_m)
-    length = mm(head.labium_from_top_m) - mm(head.window_length_m or 0.0)
-    flat = mm(head.duct_height_m or 0.0)
-    if length <= 0 or not 0 < flat < bore / 2:
-        raise pipe_error(pipe, f"the duct block cannot be drawn (length {length:.1f} mm, "
-                    f"duct {flat:.2f} mm)", "check the window's position and the duct height")
-    r = bore / 2.0
-    gap = max(10.0, r)
-    cx, cy = bore + gap + r, r
-    half = math.sqrt(r * r - (r - flat) ** 2)
-    yf = cy + r - flat
-    # Clockwise from the flat's right end, round the bottom, to its left end.
-    sweep = -(360.0 - 2.0 * math.degrees(math.asin(half / r)))
-    end_view = closed("mark", [(cx + half, yf), (cx - half, yf)], [bulge_for(sweep), 0.0])
-    marks: list[Entity] = [
-        line("mark", (flat, 0.0), (flat, length)),
-        end_view,
-    ]
-    text = f"{pipe.id} duct block"
-    top = max(length, 2 * r) + 2.0
-    title = Text("engrave", (0.0, top), TEMPLATE_TEXT_MM, text)
-    width = max(bore + gap + bore, text_width(text, TEMPLATE_TEXT_MM))
-    height = top + TEMPLATE_TEXT_MM
-    return Draft(id=f"{pipe.id}-duct-block", pipe_id=pipe.id, group=pipe.group,
-                 name="duct-block", material="paper", stock=pipe.stock, thickness_mm=0.0,
-                 kind="template", width_mm=width, height_mm=height,
-                 outline=rect("mark", 0, 0, bore, length), openings=(),
-                 marks=(*marks, title), source=pipe.source,
-                 note=f"block {bore:.1f} mm round, {length:.1f} mm long; plane the duct "
-                      f"flat {flat:.2f} mm deep along the front (left edge in the side view)")
 
 
 def holder_drafts(group: Group, pipes: list[Pipe], kind: str, max_length_mm: float,

@@ -22,7 +22,7 @@ from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
 from compiler.resolve import calibration, flute_calibration, flute_report, plain
 from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.model import Group, Head, Hole, Note, Pipe
+from compiler.resolve.model import Group, Head, Hole, Jig, Note, Pipe
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
@@ -37,6 +37,11 @@ LIP_COVER = 0.25
 about a quarter to a third (common practice, from memory). A quarter, the lower end: the
 starter and the examples use it, and a flute designed there is lipped down to pitch by
 covering more (the easier direction for most players); `measured:` fits the player's own."""
+DEFAULT_JIG_STOCK = "jig-sheet"
+DEFAULT_JIG_MATERIAL = "plywood"
+DEFAULT_JIG_THICKNESS_M = 0.003
+"""Without a `jig` in the spec, the drilling jig and head gauges are cut from 3 mm plywood
+(MDF or acrylic serve as well): stiff enough to clamp, thin enough to drill through."""
 HOLE_RADIATION = {"unflanged": "on-cylinder", "flanged": "flanged",
                   "frequency-dependent": "frequency-dependent"}
 """The spec's radiation model for the open holes (see ``compiler.acoustics.holes``): an
@@ -282,6 +287,14 @@ def prototype(flute: spec_model.Flute, spec: spec_model.Spec) -> Instrument:
     return _design(flute, spec, engine_head, cork, _rows(flute, spec), limits, air).instrument
 
 
+def _jig(flute: spec_model.Flute, spec: spec_model.Spec) -> Jig:
+    """The sheet the flute's cutter parts come from: the spec's `jig`, else the default."""
+    item = spec.stock_named(flute.jig) if flute.jig is not None else None
+    if item is None:
+        return Jig(DEFAULT_JIG_STOCK, DEFAULT_JIG_MATERIAL, DEFAULT_JIG_THICKNESS_M, "sheet")
+    return Jig(item.name, item.material, item.thickness_m, item.kind)
+
+
 def _limits(flute: spec_model.Flute) -> solve.HoleConstraints:
     c = flute.constraints
     defaults = solve.HoleConstraints()
@@ -360,7 +373,8 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                                                              - engine_head.mouth_position_m),
         speaking_length_m=length - engine_head.mouth_position_m,
         cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
-        holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position)
+        holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position,
+        jig=_jig(flute, spec))
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=fit, holder=None, pipe_ids=(pipe.id,))

@@ -298,6 +298,20 @@ class Pipe:
     bore: tuple[BoreStation, ...] = ()
     """Surveys: the measured bore from the top end down (empty: ``inside_diameter_m`` all
     along)."""
+    jig: Jig | None = None
+    """Flutes: the sheet their drilling jig and head gauges are cut from."""
+
+
+@dataclass(frozen=True)
+class Jig:
+    """The sheet a flute's cutter parts (drilling strips, duct-block profile, window
+    template) are cut from: a sheet or board of the spec's stock, or the default."""
+
+    stock: str
+    material: str
+    thickness_m: float
+    kind: str
+    """``sheet`` or ``board``."""
 
 
 @dataclass(frozen=True)

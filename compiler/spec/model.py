@@ -260,6 +260,9 @@ class Flute:
     second_register_weight: float | None = None
     """Weight of second-register notes against the first register's in the hole solve
     (0.5–1; None: the solver's default)."""
+    jig: str | None = None
+    """The sheet or board stock the drilling jig and head gauges are cut from (None: the
+    default sheet)."""
 
 
 @dataclass(frozen=True)

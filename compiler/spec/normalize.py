@@ -595,8 +595,9 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         measured=_measured(r, base),
         position=r.at(base),
         second_register_weight=weight,
+        jig=r.get((*base, "jig")),
         where=model._frozen(r.where(base, "id", "family", "stock", "head", "holes",
-                                    "fingerings", "constraints", "length", "measured",
+                                    "fingerings", "constraints", "length", "measured", "jig",
                                     "head.cork", "head.embouchure.diameter",
                                     "head.embouchure.from_top", "head.window.width",
                                     "head.window.length", "head.window.from_top",
@@ -637,6 +638,9 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
                      f"tube set `{tubes.id}`")
     for i, flute in enumerate(spec.flutes):
         need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
+        if flute.jig is not None:
+            need(flute.jig, ("sheet", "board"), ("flutes", i, "jig"),
+                 f"jig of flute `{flute.id}`")
     for i, survey in enumerate(spec.surveys):
         if survey.stock is not None:
             need(survey.stock, ("tube",), ("surveys", i, "stock"), f"survey `{survey.id}`")

@@ -22,6 +22,7 @@ from compiler.resolve.model import (
     Head,
     Holder,
     Hole,
+    Jig,
     Mouth,
     Pipe,
     Resolved,
@@ -126,7 +127,8 @@ def duct_flute() -> Pipe:
         inside_diameter_m=0.020, outside_diameter_m=0.022, wall_m=0.001,
         speaking_length_m=0.270, cut_length_m=length,
         head=Head("duct", 0.0045, 0.010, 0.0012, 0.030, None, None, None),
-        holes=holes, source=Position(SPEC, 80, 5))
+        holes=holes, source=Position(SPEC, 80, 5),
+        jig=Jig("jig-ply", "plywood", 0.003, "sheet"))
 
 
 def _group(gid: str, kind: str, family: str, construction: str, pipes: list[Pipe],

@@ -33,7 +33,8 @@ def test_parts_of_each_construction(parts: Parts) -> None:
         "principal-4-C3-body", "principal-4-C3-foot", "principal-4-C3-languid",
         "stopped-wood-C3-front", "stopped-wood-C3-back", "stopped-wood-C3-side",
         "stopped-wood-C3-block", "stopped-wood-C3-cap", "stopped-wood-C3-stopper",
-        "stopped-wood-C3-handle", "whistle-d-template", "whistle-d-duct-block",
+        "stopped-wood-C3-handle", "whistle-d-template", "whistle-d-jig-front",
+        "whistle-d-jig-10deg", "whistle-d-duct-block-profile", "whistle-d-window-template",
         "tubes-holder",
     ]
     assert [c.pipe_id for c in parts.tube_cuts] == ["tubes-C5", "tubes-E5", "tubes-G5",

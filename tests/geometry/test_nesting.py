@@ -53,9 +53,10 @@ def test_sample_sheets_hold_every_part_apart() -> None:
     cut = [p for p in parts.parts if p.kind in ("sheet", "board")]
     placements = [pl for s in parts.sheets for pl in s.placements]
     assert len(placements) == sum(p.quantity for p in cut)
-    assert {s.material for s in parts.sheets} == {"birch-ply", "pine", "spotted-metal"}
+    assert {s.material for s in parts.sheets} == {"birch-ply", "pine", "plywood",
+                                                  "spotted-metal"}
     assert [s.id for s in parts.sheets] == ["sheet-01-birch-ply", "sheet-02-pine",
-                                            "sheet-03-spotted-metal"]
+                                            "sheet-03-plywood", "sheet-04-spotted-metal"]
 
 
 def test_board_sheet_utilisation() -> None:

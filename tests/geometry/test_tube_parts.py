@@ -106,24 +106,17 @@ def test_side_blown_template_has_the_embouchure_and_cork() -> None:
 
 
 def test_duct_block_profile() -> None:
-    block = layout(samples.flute_model(), BuildOptions()).part("whistle-d-duct-block")
-    assert block.kind == "template"
-    (outline,) = [e for e in block.entities
-                  if isinstance(e, Polyline) and e.closed and len(e.points) == 4]
-    xs = sorted({p[0] for p in outline.points})
-    ys = sorted({p[1] for p in outline.points})
-    # Bore 20 mm wide; from the top end to the window's upper edge: 30 − 4.5 mm.
-    assert xs == pytest.approx([0.0, 20.0]) and ys == pytest.approx([0.0, 25.5])
-    flat = [e for e in block.entities if isinstance(e, Polyline) and not e.closed
-            and e.points[0][0] == pytest.approx(1.2)]
-    assert len(flat) == 1
-    (end,) = [e for e in block.entities if isinstance(e, Polyline) and e.closed
-              and len(e.points) == 2]
-    # End view: the chord of a flat h deep on a circle of radius r is 2·√(r² − (r − h)²).
-    chord = math.dist(*end.points)
-    assert chord == pytest.approx(2 * math.sqrt(10.0**2 - (10.0 - 1.2) ** 2))
+    # The block's cross-section, cut from the jig sheet: the bore's circle less the duct's
+    # flat. The chord of a flat h deep on a circle of radius r is 2·√(r² − (r − h)²) (plane
+    # geometry); the cut path lies kerf/2 outside the nominal outline.
+    block = layout(samples.flute_model(), BuildOptions()).part("whistle-d-duct-block-profile")
+    assert block.kind == "sheet" and block.material == "plywood"
+    (end,) = [e for e in block.entities if isinstance(e, Polyline) and e.closed]
+    assert end.operation == "cut-outer"
     (arc,) = [arc_of(a, b, k) for a, b, k in segments(end) if k]
-    assert arc.radius == pytest.approx(10.0)
+    assert arc.radius == pytest.approx(10.0 + KERF / 2)
+    chord = [math.dist(a, b) for a, b, k in segments(end) if not k]
+    assert chord == [pytest.approx(2 * math.sqrt(10.0**2 - (10.0 - 1.2) ** 2), abs=KERF)]
 
 
 def test_holder_plate() -> None:

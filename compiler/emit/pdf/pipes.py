@@ -14,7 +14,7 @@ from reportlab.pdfgen.canvas import Canvas
 
 from compiler.display import Inches
 from compiler.emit.pdf import dimensions as D
-from compiler.emit.pdf import fingering
+from compiler.emit.pdf import duct_block, fingering
 from compiler.emit.pdf.document import (
     Block,
     Column,
@@ -72,6 +72,7 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
                 out.append(Page(SECTION, _pipe_page(pipe, group, inches), label=pipe.id,
                                 key=("pipe", pipe, group, inches)))
                 out += fingering.pages(pipe, frame)
+                out += duct_block.pages(pipe, frame)
         else:
             out += _group_pages(group, pipes, frame, inches)
     if out:
