@@ -147,10 +147,11 @@ def _block_profile(pipe: Pipe, jig: Jig) -> Draft | None:
     sweep = -(360.0 - 2.0 * math.degrees(math.asin(half / r)))
     outline = closed("cut-outer", [(r + half, yf), (r - half, yf)], [bulge_for(sweep), 0.0])
     tag = label("duct", (r, yf - 2.0), 2.0 * half, 3.0, 2.0)
+    name = label(pipe.id, (r, r - 2.0), 1.4 * r, r, 2.5, short=(pipe.note,), smallest=1.2)
     return Draft(id=f"{pipe.id}-duct-block-profile", pipe_id=pipe.id, group=pipe.group,
                  name="duct-block-profile", material=jig.material, stock=jig.stock,
                  thickness_mm=mm(jig.thickness_m), kind=jig.kind, width_mm=bore,
-                 height_mm=yf, outline=outline, openings=(), marks=labels(tag),
+                 height_mm=yf, outline=outline, openings=(), marks=labels(tag, name),
                  source=pipe.source,
                  note=f"gauge of the block's end: {bore:.1f} mm round, the duct's flat "
                       f"{flat:.2f} mm deep (at the top)")
@@ -173,8 +174,14 @@ def _window_template(pipe: Pipe, jig: Jig) -> Draft | None:
         line("mark", (MARGIN_MM, 0.0), (MARGIN_MM, top)),
         line("mark", (MARGIN_MM + od, 0.0), (MARGIN_MM + od, top)),
     ]
-    texts = labels(label("labium", (cx, top - labium - 2.5), width - 2.0, 3.5, 2.0),
-                   label("TOP", (cx, top - 2.5), width - 2.0, 3.5, 2.5))
+    avoid = (window, *marks)
+    texts = labels(label("labium", (cx, top - labium - 2.5), width - 2.0, 3.5, 2.0,
+                         avoid=avoid, clear=0.2),
+                   label("TOP", (cx, top - 2.5), width - 2.0, 3.5, 2.5, avoid=avoid,
+                         clear=0.2),
+                   label(f"{pipe.id} window", (cx, (top - labium) / 2.0), width - 2.0,
+                         max(top - labium - 6.0, 3.0), 2.5, avoid=avoid,
+                         short=(pipe.note,), smallest=1.2, clear=0.2))
     return Draft(id=f"{pipe.id}-window-template", pipe_id=pipe.id, group=pipe.group,
                  name="window-template", material=jig.material, stock=jig.stock,
                  thickness_mm=mm(jig.thickness_m), kind=jig.kind, width_mm=width,

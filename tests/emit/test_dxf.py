@@ -65,7 +65,7 @@ def _placed_counts(parts: Parts, sheet_id: str) -> Counter[str]:
 def test_files_written(model: Resolved, parts: Parts, tmp_path: pathlib.Path) -> None:
     paths = dxf.write(model, parts, BuildOptions(), tmp_path)
     assert [p.name for p in paths] == ["sheet-01-birch-ply.dxf", "sheet-02-pine.dxf",
-                                       "sheet-03-spotted-metal.dxf"]
+                                       "sheet-03-plywood.dxf", "sheet-04-spotted-metal.dxf"]
     assert paths == sorted(paths) and not (tmp_path / "parts").exists()
 
 
@@ -113,8 +113,8 @@ def test_entities_per_layer_match_the_parts(model: Resolved, parts: Parts,
 def test_sheet_coordinates_read_back(model: Resolved, parts: Parts,
                                      tmp_path: pathlib.Path) -> None:
     dxf.write(model, parts, BuildOptions(), tmp_path)
-    doc = ezdxf.readfile(tmp_path / "sheet-03-spotted-metal.dxf")
-    sheet = parts.sheets[2]
+    doc = ezdxf.readfile(tmp_path / "sheet-04-spotted-metal.dxf")
+    sheet = next(s for s in parts.sheets if s.material == "spotted-metal")
     expected = [e for pl in sheet.placements
                 for e in placed(parts.part(pl.part_id).entities, pl)]
     outlines = [e for e in expected if isinstance(e, Polyline) and e.operation == "cut-outer"]
@@ -147,7 +147,7 @@ def test_r12_closed_polylines(model: Resolved, parts: Parts, tmp_path: pathlib.P
         assert Counter(e.dxf.layer for e in msp) == _placed_counts(parts, path.stem)
         sheet = next(s for s in parts.sheets if s.id == path.stem)
         assert doc.header["$LIMMAX"][:2] == (sheet.length_mm, sheet.width_mm)
-    foot = next(e for e in ezdxf.readfile(tmp_path / "sheet-03-spotted-metal.dxf")
+    foot = next(e for e in ezdxf.readfile(tmp_path / "sheet-04-spotted-metal.dxf")
                 .modelspace().query("POLYLINE[layer=='cut-outer']")
                 if any(v.dxf.bulge for v in e.vertices))
     assert sum(1 for v in foot.vertices if v.dxf.bulge) == 2
@@ -185,7 +185,7 @@ def test_same_bytes_in_fresh_processes(tmp_path: pathlib.Path) -> None:
         runs.append(subprocess.run([sys.executable, "-c", code, str(tmp_path / seed)],
                                    check=True, capture_output=True, text=True, env=env,
                                    cwd=ROOT).stdout)
-    assert runs[0] == runs[1] and runs[0].count("\n") == 3
+    assert runs[0] == runs[1] and runs[0].count("\n") == 4
 
 
 def test_header_is_fixed_and_seeded(model: Resolved, parts: Parts,
@@ -243,7 +243,7 @@ def test_gdal_reads_the_same_coordinates(model: Resolved, parts: Parts,
     for (_, a), (_, b) in zip(labels, texts, strict=True):
         assert a == pytest.approx(b, abs=1e-6)
     # Metal sheet: the body's outline, placed (and turned) on the sheet, vertex for vertex.
-    sheet = parts.sheets[2]
+    sheet = next(s for s in parts.sheets if s.material == "spotted-metal")
     body_pl = next(pl for pl in sheet.placements if pl.part_id == "principal-4-C3-body")
     (body,) = [e for e in placed(parts.part("principal-4-C3-body").entities, body_pl)
                if e.operation == "cut-outer"]

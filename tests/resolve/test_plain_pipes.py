@@ -273,7 +273,7 @@ def test_resolved_json_follows_its_schema() -> None:
             assert key.endswith(("_mm", "_hz", "_cents", "_c", "_m_s")) or key in {
                 "id", "group", "family", "construction", "note", "harmonic", "stock", "material",
                 "section", "mouth", "foot", "block", "stopper", "head", "holes", "fingerings",
-                "curves", "source", "bore"}, key
+                "curves", "source", "bore", "jig"}, key
 
 
 @pytest.mark.parametrize(("a4", "warned"), [("415 Hz", False), ("440 Hz", False),
