@@ -8,7 +8,9 @@ sound (when the spec says) and with the nearest note of the spec's tuning. Sensi
 per °C per fingering (the air 0.5 K warmer and cooler), and cents per mm of tube length for the
 lowest fingering (the foot trimmed).
 
-Head details as for flutes (common practice, from memory): a duct head's block fills the tube
+The open ends and holes radiate as a flute's do: the foot's end correction sees the wall
+(Dalmont, Nederveen & Joly 2001), and the holes take ``flutes.HOLE_RADIATION``. Head details as
+for flutes (common practice, from memory): a duct head's block fills the tube
 down to the window's upper edge (the duct exit); a side-blown head's cork sits one bore
 diameter above the embouchure centre unless the spec gives it. A reed end's reed and
 mouthpiece are an extra length of closed bore above the top end.
@@ -30,6 +32,7 @@ from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir, group_air
+from compiler.resolve.flutes import HOLE_RADIATION
 from compiler.resolve.model import BoreStation, Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import nearest_note, target_hz
 from compiler.spec import model as spec_model
@@ -250,8 +253,9 @@ def _instrument(survey: spec_model.Survey, bore: Bore, head: EngineHead,
     engine_holes = tuple(EngineHole(h.position_from_top_m + shift, h.diameter_m / 2, h.chimney_m,
                                     h.undercut_m) for h in holes)
     return Instrument(bore, engine_holes, head, survey.length_m + shift,
-                      radiation=survey.radiation, hole_radiation="unflanged",
-                      losses=survey.losses)
+                      radiation=survey.radiation,
+                      hole_radiation=HOLE_RADIATION[survey.radiation], losses=survey.losses,
+                      wall_m=survey.wall_m)
 
 
 def _resonances(instrument: Instrument, air: GroupAir, closed: NDArray[np.bool_],
@@ -260,11 +264,40 @@ def _resonances(instrument: Instrument, air: GroupAir, closed: NDArray[np.bool_]
     return playing.resonances(instrument, state, closed).frequencies_hz
 
 
-def _report(rows: list[_Row], found: NDArray[np.float64], per_c: NDArray[np.float64],
+@dataclass(frozen=True)
+class _Predicted:
+    """Per row: the frequency (NaN: none found), cents per °C (NaN: not found), how its
+    resonance looks (``playing.second_register_quality``) and its lattice cutoff."""
+
+    frequency_hz: tuple[float, ...]
+    per_c: tuple[float, ...]
+    resonance: tuple[str, ...]
+    cutoff_hz: tuple[float | None, ...]
+
+
+def _predict(instrument: Instrument, air: GroupAir, rows: list[_Row]) -> _Predicted:
+    unique = sorted({r.closed for r in rows})
+    closed = np.array(unique, dtype=bool).reshape(len(unique), len(instrument.holes))
+    t = air.state.temperature_k
+    base, warm, cool = (_resonances(instrument, air, closed, temp)
+                        for temp in (None, t + SENSITIVITY_STEP_K, t - SENSITIVITY_STEP_K))
+    quality = playing.second_register_quality(instrument, air.state, closed, base)
+    cutoffs = playing.lattice_cutoffs(instrument, air.state, closed)
+    pick = [(unique.index(r.closed), r.register - 1) for r in rows]
+    with np.errstate(invalid="ignore"):
+        per_c = tuple(1200 * math.log2(warm[i, k] / cool[i, k]) / (2 * SENSITIVITY_STEP_K)
+                      if np.isfinite(warm[i, k] * cool[i, k]) else math.nan for i, k in pick)
+    return _Predicted(tuple(float(base[i, k]) for i, k in pick), per_c,
+                      tuple(quality[i] if k == 1 else "clear" for i, k in pick),
+                      tuple(cutoffs[i] for i, _ in pick))
+
+
+def _report(rows: list[_Row], predicted: _Predicted,
             spec: spec_model.Spec) -> tuple[list[Fingering], list[_Row]]:
     """Fingerings with a prediction, and the rows the model found no resonance for."""
     done, missing = [], []
-    for row, f, slope in zip(rows, found, per_c, strict=True):
+    for i, row in enumerate(rows):
+        f, slope = predicted.frequency_hz[i], predicted.per_c[i]
         if not math.isfinite(f):
             missing.append(row)
             continue
@@ -274,7 +307,9 @@ def _report(rows: list[_Row], found: NDArray[np.float64], per_c: NDArray[np.floa
         done.append(Fingering(note=note_name(note), closed=row.closed, register=row.register,
                               target_hz=target, predicted_hz=f, error_cents=cents(f, target),
                               nearest_note=note_name(near), nearest_cents=cents(f, near_hz),
-                              cents_per_c=float(slope) if math.isfinite(slope) else None))
+                              cents_per_c=slope if math.isfinite(slope) else None,
+                              resonance=predicted.resonance[i],
+                              cutoff_hz=predicted.cutoff_hz[i]))
     return done, missing
 
 
@@ -299,19 +334,7 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
     holes = _holes(survey, bore, engine_head, outside)
     instrument = _instrument(survey, bore, engine_head, holes)
     rows = _rows(survey)
-    unique = sorted({r.closed for r in rows})
-    closed = np.array(unique, dtype=bool).reshape(len(unique), len(holes))
-    index = [unique.index(r.closed) for r in rows]
-    t = air.state.temperature_k
-    base, warm, cool = (_resonances(instrument, air, closed, temp)
-                        for temp in (None, t + SENSITIVITY_STEP_K, t - SENSITIVITY_STEP_K))
-    pick = [(i, r.register - 1) for i, r in zip(index, rows, strict=True)]
-    found = np.array([base[i, k] for i, k in pick])
-    with np.errstate(invalid="ignore"):
-        per_c = np.array([1200 * math.log2(warm[i, k] / cool[i, k]) / (2 * SENSITIVITY_STEP_K)
-                          if np.isfinite(warm[i, k] * cool[i, k]) else math.nan
-                          for i, k in pick])
-    fingerings, missing = _report(rows, found, per_c, spec)
+    fingerings, missing = _report(rows, _predict(instrument, air, rows), spec)
     warnings = list(air.warnings)
     warnings += [Note(r.position, f"{name}: the model finds no register-{r.register} resonance "
                       f"for the fingering {pattern(r.closed)}; it is left out of the report")

@@ -13,9 +13,11 @@ Sources:
 - One open side hole: the lumped effective length of the air column, Δ = L_d/(1 + L_d·Sh/(S·t_e))
   (low frequency) and cot kΔ = cot kL_d + (Sh/S)/(k·t_e) (lossless), after Nederveen,
   Acoustical Aspects of Woodwind Instruments (1969; attribution from memory; the structure is
-  that of Woodhouse, Euphonics §11.1.3), with t_e = t + t_m + t_i + 0.6133b: t_i the fit of
-  Lefebvre & Scavone, JASA 131(4), 3153-3163 (2012), t_m = bδ(1 + 0.207δ³)/8 of Nederveen,
-  Jansen & van Hassel, Acustica 84 (1998) (both from memory).
+  that of Woodhouse, Euphonics §11.1.3), with t_e = t + t_m + t_i + 0.8216b (a flanged hole,
+  the infinite-flange limit 0.8216 of Norris & Sheng 1989 as quoted by Dalmont, Nederveen &
+  Joly 2001, also at the foot): t_i the fit of Lefebvre & Scavone, JASA 131(4), 3153-3163
+  (2012), t_m = bδ(1 + 0.207δ³)/8 of Nederveen, Jansen & van Hassel, Acustica 84 (1998)
+  (both from memory).
 - Wall losses: D. H. Keefe, JASA 75(1), 58-62 (1984): phase velocity c/(1 + 1.045/rv),
   rv = a·sqrt(ρω/η); air viscosity and density from the linearisation of A. H. Benade, JASA
   44(2), 616-623 (1968).
@@ -53,8 +55,11 @@ def _pipe(surveys: str, head: str = DRY_ROOM) -> tuple[float, Pipe]:
     return resolved.groups[0].air.speed_m_s, resolved.pipes[0]
 
 
-def _plain(end: str, length_mm: float, bore: str, losses: str = "none", extra: str = "") -> str:
-    return (f"  - {{id: p, length: {length_mm} mm, bore: {bore}, wall: 1 mm, "
+def _plain(end: str, length_mm: float, bore: str, losses: str = "none", extra: str = "",
+           wall: str = "0.01 mm") -> str:
+    """A plain tube; by default with a wall thin enough for Levine & Schwinger's thin-walled
+    end (0.01 mm moves the end correction by 0.2 %: Dalmont et al. 2001, below)."""
+    return (f"  - {{id: p, length: {length_mm} mm, bore: {bore}, wall: {wall}, "
             f"blowing_end: {end}, losses: {losses}, radiation: unflanged{extra}}}\n")
 
 
@@ -85,6 +90,19 @@ def test_closed_open_cylinder_quarter_wave_series() -> None:
     assert abs(cents(f1, want)) < 0.05
     assert abs(cents(f2, 3 * want)) < 0.05
     assert pipe.acoustic_length_m == pytest.approx(length + 0.6133 * a, rel=1e-4)
+
+
+@pytest.mark.parametrize("wall_mm", [0.5, 2.0])
+def test_a_thick_wall_lengthens_the_open_end(wall_mm: float) -> None:
+    # Dalmont, Nederveen & Joly, J. Sound Vib. 244(3), 505-534 (2001): with inner radius a and
+    # outer radius b, Δ = Δ∞ + (a/b)(Δ0 − Δ∞) + 0.057(a/b)(1 − (a/b)^5)·a, Δ0 = 0.6133a,
+    # Δ∞ = 0.8216a (the formula recalled from memory, its limits exact). A closed-open cylinder
+    # then sounds c/4(L + Δ), within 0.1 cent.
+    a, length = 0.004, 0.5
+    q = a / (a + wall_mm / 1000)
+    delta = (0.8216 + q * (0.6133 - 0.8216) + 0.057 * q * (1 - q**5)) * a
+    c, pipe = _pipe(_plain("closed", 500, "8 mm", wall=f"{wall_mm} mm"))
+    assert abs(cents(_registers(pipe)[0], c / (4 * (length + delta)))) < 0.1
 
 
 def _cone_reference(n: int, c: float, x1: float, length: float, delta: float) -> float:
@@ -119,11 +137,11 @@ def test_cone_closed_at_its_narrow_end(apex_mm: float) -> None:
 
 
 def _hole_lengths(a: float, b: float, t: float) -> float:
-    """t_e = t + t_m + t_i + 0.6133b (module docstring)."""
+    """t_e = t + t_m + t_i + 0.8216b: a flanged hole (module docstring)."""
     d = b / a
     t_i = b * (0.822 - 0.095 * d - 1.566 * d**2 + 2.138 * d**3 - 1.640 * d**4 + 0.502 * d**5)
     t_m = b * d * (1 + 0.207 * d**3) / 8
-    return t + t_m + t_i + 0.6133 * b
+    return t + t_m + t_i + 0.8216 * b
 
 
 @pytest.mark.parametrize(("hole_mm", "radius_mm"), [(370.0, 4.0), (380.0, 3.5)])
@@ -134,13 +152,13 @@ def test_one_open_hole_low_frequency_lumped_length(hole_mm: float, radius_mm: fl
     a, t, length = 0.0095, 0.004, 0.4
     x, b = hole_mm / 1000, radius_mm / 1000
     c, pipe = _pipe(f"  - {{id: p, length: 400 mm, bore: 19 mm, wall: 4 mm, "
-                    f"blowing_end: open, losses: none, radiation: unflanged, holes: "
+                    f"blowing_end: open, losses: none, radiation: flanged, holes: "
                     f"[{{from_top: {hole_mm} mm, diameter: {2 * radius_mm} mm}}], "
                     "fingerings: [{closed: o}]}\n")
     t_e = _hole_lengths(a, b, t)
-    l_d = length - x + 0.6133 * a
+    l_d = length - x + 0.8216 * a
     delta = l_d / (1 + l_d * (b / a) ** 2 / t_e)
-    want = c / (2 * (x + delta + 0.6133 * a))
+    want = c / (2 * (x + delta + 0.8216 * a))
     f1 = next(f.predicted_hz for f in pipe.fingerings if f.register == 1)
     assert 2 * math.pi * f1 / c * l_d < 0.3
     assert abs(cents(f1, want)) < 1.0
@@ -151,14 +169,14 @@ def test_one_open_hole_lossless_lumped_form_higher_up() -> None:
     # lumped form cot kΔ = cot kL_d + (Sh/S)/(k t_e) still agrees within 1 cent.
     a, b, t, length, x = 0.0095, 0.004, 0.004, 0.4, 0.3
     c, pipe = _pipe("  - {id: p, length: 400 mm, bore: 19 mm, wall: 4 mm, blowing_end: open, "
-                    "losses: none, radiation: unflanged, holes: [{from_bottom: 100 mm, "
+                    "losses: none, radiation: flanged, holes: [{from_bottom: 100 mm, "
                     "diameter: 8 mm}], fingerings: [{closed: o}]}\n")
-    t_e, l_d = _hole_lengths(a, b, t), length - x + 0.6133 * a
+    t_e, l_d = _hole_lengths(a, b, t), length - x + 0.8216 * a
     f = c / (2 * length)
     for _ in range(60):
         k = 2 * math.pi * f / c
         delta = math.atan(1 / (1 / math.tan(k * l_d) + (b / a) ** 2 / (k * t_e))) / k
-        f = c / (2 * (x + delta + 0.6133 * a))
+        f = c / (2 * (x + delta + 0.8216 * a))
     f1 = next(fg.predicted_hz for fg in pipe.fingerings if fg.register == 1)
     assert abs(cents(f1, f)) < 1.0
 
