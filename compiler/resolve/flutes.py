@@ -287,9 +287,9 @@ def prototype(flute: spec_model.Flute, spec: spec_model.Spec) -> Instrument:
     return _design(flute, spec, engine_head, cork, _rows(flute, spec), limits, air).instrument
 
 
-def _jig(flute: spec_model.Flute, spec: spec_model.Spec) -> Jig:
-    """The sheet the flute's cutter parts come from: the spec's `jig`, else the default."""
-    item = spec.stock_named(flute.jig) if flute.jig is not None else None
+def jig(name: str | None, spec: spec_model.Spec) -> Jig:
+    """The sheet a holed tube's cutter parts come from: the spec's `jig`, else the default."""
+    item = spec.stock_named(name) if name is not None else None
     if item is None:
         return Jig(DEFAULT_JIG_STOCK, DEFAULT_JIG_MATERIAL, DEFAULT_JIG_THICKNESS_M, "sheet")
     return Jig(item.name, item.material, item.thickness_m, item.kind)
@@ -374,7 +374,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         speaking_length_m=length - engine_head.mouth_position_m,
         cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
         holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position,
-        jig=_jig(flute, spec))
+        jig=jig(flute.jig, spec))
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=fit, holder=None, pipe_ids=(pipe.id,))

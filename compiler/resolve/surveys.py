@@ -32,7 +32,7 @@ from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.flutes import HOLE_RADIATION
+from compiler.resolve.flutes import HOLE_RADIATION, jig
 from compiler.resolve.model import BoreStation, Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import nearest_note, target_hz
 from compiler.spec import model as spec_model
@@ -345,8 +345,8 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
         raise PhysicsError.at(survey.position, f"{name}: the model finds no resonance for any "
                               "fingering", "check the length, bore and holes as measured")
     warnings += stock_notes
-    pipe = _pipe(survey, air, instrument, engine_head, head, holes, (top_d, outside),
-                 fingerings, lowest, stock)
+    pipe = replace(_pipe(survey, air, instrument, engine_head, head, holes, (top_d, outside),
+                         fingerings, lowest, stock), jig=jig(survey.jig, spec))
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",
                   air=air.report, end_correction_model=survey.radiation,
                   calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))

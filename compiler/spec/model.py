@@ -315,6 +315,8 @@ class Survey:
     outside_diameter_m: float | None
     stock: str | None
     material: str | None
+    jig: str | None
+    """The sheet or board stock the copy's cutter parts are cut from (None: the default)."""
     blowing_end: str
     """``duct``, ``embouchure``, ``reed``, ``closed`` or ``open``."""
     head: Head

@@ -644,6 +644,9 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
     for i, survey in enumerate(spec.surveys):
         if survey.stock is not None:
             need(survey.stock, ("tube",), ("surveys", i, "stock"), f"survey `{survey.id}`")
+        if survey.jig is not None:
+            need(survey.jig, ("sheet", "board"), ("surveys", i, "jig"),
+                 f"jig of survey `{survey.id}`")
     seen: dict[str, Path] = {}
     groups: list[tuple[str, Path]] = []
     groups += [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]

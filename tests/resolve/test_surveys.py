@@ -316,3 +316,16 @@ def test_without_stock_the_outside_is_the_bore_and_two_walls() -> None:
     assert pipe.outside_diameter_m == pytest.approx(0.0122 + 2 * 0.0034)
     assert pipe.stock == "fife" and pipe.material == "as measured"
     assert [h.chimney_m for h in pipe.holes] == [pytest.approx(0.0034)] * 3
+
+
+def test_a_copy_gets_the_flutes_cutter_parts() -> None:
+    # A copy is drilled like a flute: a drilling strip per side of the tube with holes (and a
+    # window template for a duct head), cut from the default 3 mm jig sheet.
+    from compiler.geometry.layout import layout
+    from compiler.options import BuildOptions
+
+    resolved = _resolve(FIFE.format(third="from_top: 195.5 mm, angle: 180 deg",
+                                    fingerings=""))
+    names = sorted(p.name for p in layout(resolved, BuildOptions()).parts)
+    assert "jig-front" in names and "jig-back" in names and "template" in names
+    assert resolved.pipes[0].jig is not None and resolved.pipes[0].jig.thickness_m == 0.003
