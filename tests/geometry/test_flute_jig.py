@@ -16,7 +16,7 @@ from pathlib import Path
 import ezdxf
 import pytest
 
-from compiler.build import build
+from compiler.build import build, compile_text
 from compiler.options import BuildOptions
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "specs_examples"
@@ -100,3 +100,16 @@ def test_window_template_and_block_profile_match_the_head(tmp_path: Path) -> Non
     a, b = points[straight[0]], points[(straight[0] + 1) % len(points)]
     chord = math.dist(a[:2], b[:2])
     assert chord == pytest.approx(2 * math.sqrt(r * r - (r - h) ** 2), abs=2 * half_kerf)
+
+
+def test_the_spec_names_the_sheet_the_jig_is_cut_from() -> None:
+    text = (EXAMPLES / "duct-flute-d.yaml").read_text()
+    text = text.replace("stock:\n", "stock:\n  acrylic-3: {material: acrylic, sheet: {thickness: "
+                        "3 mm, size: 600 x 400 mm}}\n", 1)
+    text = text.replace("    losses: keefe\n", "    losses: keefe\n    jig: acrylic-3\n")
+    parts = compile_text(text, "duct-flute-d.yaml", BuildOptions()).parts
+    cutters = [p for p in parts.parts if p.kind != "template"]
+    assert {p.name for p in cutters} == {"jig-front", "duct-block-profile", "window-template"}
+    assert {(p.stock, p.material, p.thickness_mm) for p in cutters} == {("acrylic-3", "acrylic",
+                                                                         3.0)}
+    assert [s.stock for s in parts.sheets] == ["acrylic-3"]
