@@ -52,6 +52,7 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
     lines = [f"{group.id} ({group.family}, {group.construction}): "
              f"{air.temperature_c:.1f} C, {air.humidity_percent:.0f} % RH, "
              f"c = {air.speed_m_s:.2f} m/s ({air.sound_speed_model}); "
+             + (f"wall losses: {group.losses}; " if group.losses else "")
              + _calibration(group)]
     if air.sound_speed_formula:
         lines.append(f"  speed of sound: {air.sound_speed_formula}")

@@ -141,7 +141,8 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
                             rank.where.get("stopper", rank.position))
     group = Group(
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
-        air=air.report, end_correction_model=rank.end_correction.model, calibration=fit,
+        air=air.report, end_correction_model=rank.end_correction.model, losses=rank.losses,
+        calibration=fit,
         holder=None, pipe_ids=tuple(p.id for p in pipes),
         trims=trim.advise(rank.measured, observe, fit.value, air, pipes,
                           spec.fabrication.precision_m))
@@ -195,13 +196,17 @@ def _acoustics(rank: spec_model.Rank, section: Section, mouth_width: float, cutu
     # The open top's wall: the rolled sheet, or the boards of a wooden pipe.
     if section.round:
         end_ratio = simple.wall_end_ratio(section.radius_m, section.radius_m + wall)
+        loss_radius = section.radius_m
     else:
-        assert section.width_m is not None
-        end_ratio = mouth.wooden_top_ratio(wall, section.width_m)
+        w, depth = section.width_m, section.depth_m
+        assert w is not None and depth is not None
+        end_ratio = mouth.wooden_top_ratio(wall, w)
+        loss_radius = w * depth / (w + depth)  # 2S/P: see simple.PipeAcoustics.loss_radius_m
     return simple.PipeAcoustics(
         stopped=stopped, open_ends=0 if stopped else 1, radius_m=section.radius_m,
         end_model=rank.end_correction.model, k=rank.end_correction.k, end_ratio=end_ratio,
-        mouth_m=_mouth_term(section, mouth_width, cutup, lip)[0], scale=scale)
+        mouth_m=_mouth_term(section, mouth_width, cutup, lip)[0], scale=scale,
+        losses=rank.losses, loss_radius_m=loss_radius)
 
 
 def _mouth_numbers(rank: spec_model.Rank, note: int, section: Section, thickness: float,

@@ -359,6 +359,9 @@ class Group:
     pipe_ids: tuple[str, ...]
     trims: tuple[Trim, ...] = ()
     """Trim advice for each measured pipe (ranks and tube sets)."""
+    losses: str | None = None
+    """Wall-loss model of a rank's or tube set's closed form (``keefe`` or ``none``); None
+    where the group does not report it here (flutes and surveys carry their own)."""
 
 
 @dataclass(frozen=True)

@@ -33,7 +33,7 @@ def _acoustics(tubes: spec_model.TubeSet, stock: spec_model.Stock,
     return simple.PipeAcoustics(
         stopped=stopped, open_ends=1 if stopped else 2, radius_m=radius,
         end_model=tubes.end_correction.model, k=tubes.end_correction.k,
-        end_ratio=simple.wall_end_ratio(radius, outer), scale=scale)
+        end_ratio=simple.wall_end_ratio(radius, outer), scale=scale, losses=tubes.losses)
 
 
 def _plug(tubes: spec_model.TubeSet, stock: spec_model.Stock) -> float:
@@ -134,7 +134,8 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
                         tubes.where.get("holder", tubes.position))
     group = Group(id=tubes.id, kind="tube-set", family=tubes.family,
                   construction="stock-tube", air=air.report,
-                  end_correction_model=tubes.end_correction.model, calibration=fit,
+                  end_correction_model=tubes.end_correction.model, losses=tubes.losses,
+                  calibration=fit,
                   holder=holder, pipe_ids=tuple(p.id for p in pipes),
                   trims=trim.advise(tubes.measured, observe, fit.value, air, pipes,
                                     fab.precision_m))

@@ -172,6 +172,8 @@ class Rank:
     measured: tuple[Measurement, ...]
     position: Position
     where: Mapping[str, Position] = field(default_factory=_frozen)
+    losses: str = "keefe"
+    """Wall-loss model along the pipes: ``keefe`` or ``none``."""
 
 
 @dataclass(frozen=True)
@@ -190,6 +192,8 @@ class TubeSet:
     measured: tuple[Measurement, ...]
     position: Position
     where: Mapping[str, Position] = field(default_factory=_frozen)
+    losses: str = "keefe"
+    """Wall-loss model along the tubes: ``keefe`` or ``none``."""
 
 
 @dataclass(frozen=True)

@@ -38,8 +38,11 @@ def _resolve(text: str):  # type: ignore[no-untyped-def]
 
 
 def _tube_set(family: str, model: str, notes: str = "[A4]", extra: str = "",
-              stock: str = "foil-20") -> str:
+              stock: str = "foil-20", losses: str = "none") -> str:
+    # Lossless unless asked: these checks are against lossless closed forms; the wall losses
+    # have their own tests (tests/resolve/test_losses.py).
     return _spec(f"tube_sets:\n  - id: t\n    family: {family}\n    stock: {stock}\n"
+                 f"    losses: {losses}\n"
                  f"    notes: {notes}\n    end_correction: {model}\n{extra}")
 
 
@@ -224,6 +227,7 @@ def test_stopped_wooden_pipe_has_a_stopper_and_block() -> None:
     scale: {reference: {note: C3, width: 60 mm, depth: 75 mm}, halving_interval: 17}
     mouth: {width: 1, cutup: 0.4}
     stopper: {length: 50 mm, travel: 20 mm}
+    losses: none
 """)
     pipe = _resolve(text).pipes[0]
     assert pipe.section == "rect"
@@ -297,7 +301,7 @@ def test_a_measured_speed_of_sound_is_used_as_given() -> None:
     # 1200·log2 sqrt(T)).
     env = "{temperature: 18 C, sound_speed: 344.1 m/s}"
     r = resolve(load_spec(_spec("tube_sets:\n  - {id: t, family: open-tube, stock: foil-20, "
-                                "notes: [A4]}\n", environment=env), "b.yaml"))
+                                "notes: [A4], losses: none}\n", environment=env), "b.yaml"))
     air = r.groups[0].air
     assert air.speed_m_s == 344.1 and air.sound_speed_model == "measured"
     assert air.sound_speed_formula.startswith("measured 344.10 m/s at 18.0 °C")

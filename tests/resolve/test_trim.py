@@ -37,7 +37,7 @@ def tube_spec(family: str, measured: str, allowance: str = "0 mm", extra: str = 
             f"fabrication: {{precision: 0.01 mm, tuning_allowance: {allowance}}}\n"
             "stock:\n  alu: {material: aluminium, tube: {inside_diameter: 20 mm, wall: 1 mm}}\n"
             f"tube_sets:\n  - id: t\n    family: {family}\n    stock: alu\n    notes: [A4]\n"
-            "    end_correction: {model: rule-of-thumb}\n" + extra
+            "    end_correction: {model: rule-of-thumb}\n    losses: none\n" + extra
             + f"    measured:\n      - {measured}\n")
 
 

@@ -327,7 +327,8 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
     yy -= half * 4.3 * MM + 3 * MM
     air = group.air
     lines = [f"Air: {celsius(air.temperature_c)}, speed of sound {speed(air.speed_m_s)} "
-             f"({air.sound_speed_model}); end correction: {group.end_correction_model}.",
+             f"({air.sound_speed_model}); end correction: {group.end_correction_model}"
+             + (f"; wall losses: {group.losses}." if group.losses else "."),
              "Error: predicted minus target, in cents. Sensitivity: cents for 1 mm more "
              "speaking length, and for 1 °C warmer air."]
     banded = [p.mouth for p in pipes if p.mouth is not None and p.mouth.band_percent]
