@@ -29,8 +29,8 @@ from compiler.cache import FOLDER as CACHE_FOLDER
 from compiler.cache import Cache, key_of, memo
 from compiler.errors import Problem, SpecError
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 from compiler.spec.model import Spec
 
 Progress = Callable[[str], None]

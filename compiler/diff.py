@@ -39,7 +39,7 @@ from pathlib import Path
 from typing import Any
 
 from compiler.emit.resolved_json import to_dict
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 from compiler.spec.loader import SpecFileError, read_spec_file
 
 Value = float | int | str | bool | None

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from compiler.diff import Change, DiffInputError, compare, read_spec_arg, render, run_diff
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
 

@@ -9,8 +9,8 @@ from pathlib import Path
 from compiler.cache import Cache
 from compiler.display import Inches, in_inches, inches_for
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 
 NAME = "csv"
 COLUMNS = ("stock", "material", "thickness_mm", "part", "pipe", "what", "quantity",

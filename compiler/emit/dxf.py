@@ -40,8 +40,8 @@ from compiler.cache import Cache, key_of
 from compiler.geometry.model import Circle, Entity, Part, Parts, Sheet, Text
 from compiler.geometry.paths import Box, bounds_of, placed, rect, text_centre
 from compiler.geometry.units import snap, snap_bulge
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 
 NAME = "dxf"
 

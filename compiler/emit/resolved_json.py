@@ -15,8 +15,8 @@ from typing import Any
 from compiler.cache import Cache
 from compiler.errors import Position
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 
 NAME = "json"
 FORMAT = "boresmith-resolved"

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from compiler.display import Inches, inches_for
-from compiler.resolve.model import Group, Pipe, Resolved
+from compiler.ir import Group, Pipe, Resolved
 
 
 def _mm(metres: float | None) -> str:

@@ -28,7 +28,7 @@ from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline
 from compiler.geometry.paths import closed, line, rect
 from compiler.geometry.units import mm
-from compiler.resolve.model import Pipe
+from compiler.ir import Pipe
 
 STOPPER_CLEARANCE_MM = 1.0
 """Total clearance of the stopper in the bore, for its leather or felt facing (common

@@ -21,7 +21,7 @@ from compiler.errors import GeometryError, Position, Problem
 from compiler.geometry.kerf import OffsetError, compensate
 from compiler.geometry.model import Circle, Entity, Part, Point, Polyline, Text
 from compiler.geometry.paths import area, flatten, snapped, text_width, to_polygon
-from compiler.resolve.model import Pipe
+from compiler.ir import Pipe
 
 LABEL_MAX_MM = 5.0
 LABEL_MIN_MM = 1.5

@@ -31,7 +31,7 @@ from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity
 from compiler.geometry.paths import bulge_for, closed, line, rect
 from compiler.geometry.units import mm
-from compiler.resolve.model import Hole, Jig, Pipe
+from compiler.ir import Hole, Jig, Pipe
 
 MARGIN_MM = 8.0
 END_MM = 10.0

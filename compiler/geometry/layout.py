@@ -24,8 +24,8 @@ from compiler.geometry.rolled import rolled_drafts
 from compiler.geometry.tube import holder_drafts, template, tube_cut
 from compiler.geometry.units import mm
 from compiler.geometry.validation import check_draft
+from compiler.ir import Pipe, Resolved, StockItem
 from compiler.options import BuildOptions
-from compiler.resolve.model import Pipe, Resolved, StockItem
 
 
 def sheet_size(resolved: Resolved, stock_name: str) -> SheetSize:

@@ -25,7 +25,7 @@ from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline
 from compiler.geometry.paths import bounds, bulge_for, closed, line, moved
 from compiler.geometry.units import mm
-from compiler.resolve.model import FabricationReport, Pipe
+from compiler.ir import FabricationReport, Pipe
 
 TICK_MM = 5.0
 """Length of the short marks on a rolled body (front line, speaking length): ticks rather

@@ -17,7 +17,7 @@ from collections.abc import Mapping, Sequence
 from compiler.errors import Position, Problem
 from compiler.geometry.model import StockLength, TubeCut
 from compiler.geometry.units import mm
-from compiler.resolve.model import StockItem
+from compiler.ir import StockItem
 
 TOLERANCE_MM = 1e-6
 

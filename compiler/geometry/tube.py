@@ -28,7 +28,7 @@ from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline, Text, TubeCut
 from compiler.geometry.paths import line, rect, text_width
 from compiler.geometry.units import mm
-from compiler.resolve.model import Group, Hole, Pipe
+from compiler.ir import Group, Hole, Pipe
 
 TICK_STEP_MM = 10.0
 TICK_MM = 3.0

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from compiler.acoustics import simple
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError
-from compiler.resolve.model import Calibration, Residual
+from compiler.ir import Calibration, Residual
 from compiler.spec.model import Measurement
 from compiler.spec.notes import note_name
 

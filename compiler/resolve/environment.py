@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from compiler.acoustics import air as airmod
-from compiler.resolve.model import AirReport, Note
+from compiler.ir import AirReport, Note
 from compiler.spec import model as spec_model
 
 BREATH_FAMILIES = ("duct-flute", "side-blown-flute")

@@ -12,9 +12,7 @@ from dataclasses import dataclass
 
 from compiler.acoustics import mouth, simple
 from compiler.errors import PhysicsError
-from compiler.resolve import calibration, mouth_band, plain, trim
-from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.model import (
+from compiler.ir import (
     Block,
     Foot,
     Group,
@@ -23,6 +21,8 @@ from compiler.resolve.model import (
     Pipe,
     Stopper,
 )
+from compiler.resolve import calibration, mouth_band, plain, trim
+from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name

@@ -35,10 +35,10 @@ from compiler.acoustics import playing
 from compiler.acoustics.impedance import Instrument
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError
+from compiler.ir import Calibration, Fitted, Residual
 from compiler.resolve.calibration import MAX_RESIDUAL_CENTS
 from compiler.resolve.environment import GroupAir
 from compiler.resolve.flute_report import Rows, pattern
-from compiler.resolve.model import Calibration, Fitted, Residual
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
 

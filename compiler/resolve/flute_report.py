@@ -19,7 +19,7 @@ from compiler.acoustics import playing, solve
 from compiler.acoustics.air import Air
 from compiler.acoustics.impedance import Instrument
 from compiler.errors import PhysicsError, Position
-from compiler.resolve.model import Curve, Fingering, Note
+from compiler.ir import Curve, Fingering, Note
 from compiler.spec import model as spec_model
 
 CURVE_POINTS = 400

@@ -20,9 +20,9 @@ from compiler.acoustics.impedance import Bore, Instrument
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
+from compiler.ir import Group, Head, Hole, Jig, Note, Pipe
 from compiler.resolve import calibration, flute_calibration, flute_report, plain
 from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.model import Group, Head, Hole, Jig, Note, Pipe
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name

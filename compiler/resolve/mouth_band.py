@@ -22,7 +22,7 @@ from compiler.acoustics import mouth, simple
 from compiler.acoustics.air import Air
 from compiler.acoustics.tuning import cents
 from compiler.errors import Position
-from compiler.resolve.model import Note
+from compiler.ir import Note
 
 CUTUP_STEP_M = 1e-4
 """Half the step of the cut-up sensitivity's central difference (0.1 mm)."""

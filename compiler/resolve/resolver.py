@@ -11,8 +11,7 @@ from typing import Any
 
 from compiler.display import in_inches, inches_for
 from compiler.errors import SpecError
-from compiler.resolve import flue, plain, tubes
-from compiler.resolve.model import (
+from compiler.ir import (
     FabricationReport,
     Group,
     Note,
@@ -21,6 +20,7 @@ from compiler.resolve.model import (
     StockItem,
     TuningReport,
 )
+from compiler.resolve import flue, plain, tubes
 from compiler.resolve.targets import tonic_name
 from compiler.spec import model as spec_model
 

@@ -30,10 +30,10 @@ from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.impedance import Hole as EngineHole
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
+from compiler.ir import BoreStation, Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.flutes import HOLE_RADIATION, jig
-from compiler.resolve.model import BoreStation, Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve.targets import nearest_note, target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name

@@ -21,10 +21,10 @@ from collections.abc import Callable, Sequence
 from compiler.acoustics import simple
 from compiler.acoustics.air import Air
 from compiler.acoustics.tuning import cents
+from compiler.ir import Pipe, Trim
 from compiler.resolve import plain
 from compiler.resolve.calibration import Observation
 from compiler.resolve.environment import GroupAir
-from compiler.resolve.model import Pipe, Trim
 from compiler.spec.model import Measurement
 from compiler.spec.notes import note_name
 

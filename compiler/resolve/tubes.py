@@ -10,9 +10,9 @@ from __future__ import annotations
 
 from compiler.acoustics import simple
 from compiler.errors import PhysicsError
+from compiler.ir import Group, Holder, Note, Pipe, Stopper
 from compiler.resolve import calibration, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.model import Group, Holder, Note, Pipe, Stopper
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name

@@ -24,8 +24,8 @@ from compiler.emit import dxf
 from compiler.geometry.layout import layout
 from compiler.geometry.model import Circle, Parts, Polyline, Text
 from compiler.geometry.paths import placed, text_centre
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 
 ROOT = pathlib.Path(__file__).resolve().parents[2]
 

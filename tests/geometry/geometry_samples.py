@@ -12,7 +12,7 @@ import math
 from dataclasses import replace
 
 from compiler.errors import Position
-from compiler.resolve.model import (
+from compiler.ir import (
     AirReport,
     Block,
     Calibration,

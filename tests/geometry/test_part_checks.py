@@ -10,8 +10,8 @@ import pytest
 from compiler.errors import GeometryError, Position, SpecError
 from compiler.geometry.layout import layout
 from compiler.geometry.validation import min_web_mm
+from compiler.ir import Hole
 from compiler.options import BuildOptions
-from compiler.resolve.model import Hole
 
 
 def _error(model) -> GeometryError:  # type: ignore[no-untyped-def]

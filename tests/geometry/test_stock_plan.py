@@ -24,8 +24,8 @@ from compiler.errors import GeometryError, Position
 from compiler.geometry.layout import layout
 from compiler.geometry.model import TubeCut
 from compiler.geometry.stock_plan import plan
+from compiler.ir import StockItem
 from compiler.options import BuildOptions
-from compiler.resolve.model import StockItem
 
 ROOT = Path(__file__).resolve().parents[2]
 

@@ -11,8 +11,8 @@ import pytest
 from compiler.geometry.layout import layout
 from compiler.geometry.model import Circle, Part, Polyline, Text
 from compiler.geometry.paths import arc_of, segments
+from compiler.ir import Head, Hole, StockItem
 from compiler.options import BuildOptions
-from compiler.resolve.model import Head, Hole, StockItem
 
 KERF = 0.2
 

@@ -8,7 +8,7 @@ import math
 import pytest
 
 from compiler.errors import Position
-from compiler.resolve.model import Pipe, Resolved
+from compiler.ir import Pipe, Resolved
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
 

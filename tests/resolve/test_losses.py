@@ -14,7 +14,7 @@ import math
 import pytest
 
 from compiler.errors import SchemaError
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
 

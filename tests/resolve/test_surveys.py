@@ -35,7 +35,7 @@ import pytest
 from scipy.optimize import brentq
 
 from compiler.emit.resolved_json import to_dict
-from compiler.resolve.model import Pipe, Resolved
+from compiler.ir import Pipe, Resolved
 from compiler.resolve.resolver import resolve
 from compiler.resolve.targets import nearest_note
 from compiler.spec import load_spec

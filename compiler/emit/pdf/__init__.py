@@ -21,8 +21,8 @@ from compiler.emit.pdf import cautions, cover, cutlist, pipes, templates
 from compiler.emit.pdf.document import Page, draw_chrome
 from compiler.emit.pdf.style import FONT, REPERTOIRE, Frame, frame_for, register_fonts, safe
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 
 NAME = "pdf"
 FILE_NAME = "build-sheet.pdf"

@@ -10,7 +10,7 @@ from __future__ import annotations
 from compiler.emit.pdf.document import Block, Heading, Page, Paragraph, Spacer, flow_pages
 from compiler.emit.pdf.style import GREY, MM, WARN, Frame
 from compiler.geometry.model import Parts
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 
 SECTION = "Cautions"
 

@@ -28,7 +28,7 @@ from compiler.emit.pdf.style import (
     length,
     speed,
 )
-from compiler.resolve.model import AirReport, Pipe, Resolved
+from compiler.ir import AirReport, Pipe, Resolved
 
 SECTION = "Cover"
 WARNINGS_SHOWN = 12

@@ -22,7 +22,7 @@ from compiler.emit.pdf.style import (
     percent,
 )
 from compiler.geometry.model import Part, Parts, Sheet, StockLength, TubeCut
-from compiler.resolve.model import Resolved, StockItem
+from compiler.ir import Resolved, StockItem
 
 SECTION = "Cut list"
 PIVOT_LIMIT = 6

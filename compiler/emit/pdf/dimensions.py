@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from compiler.resolve.model import Pipe
+from compiler.ir import Pipe
 
 INSIDE_DIAMETER = "inside diameter"
 OUTSIDE_DIAMETER = "outside diameter"

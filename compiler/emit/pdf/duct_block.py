@@ -17,7 +17,7 @@ from reportlab.pdfgen.canvas import Canvas
 from compiler.emit.pdf.document import Draw, Page, wrap
 from compiler.emit.pdf.style import FONT, FONT_BOLD, GREY, INK, MM, Frame, fixed, safe
 from compiler.emit.pdf.templates import calibration_bars
-from compiler.resolve.model import Pipe
+from compiler.ir import Pipe
 
 SECTION = "Pipes"
 GAP_MM = 55.0

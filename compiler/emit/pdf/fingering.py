@@ -35,7 +35,7 @@ from compiler.emit.pdf.style import (
     safe,
     sensitivity,
 )
-from compiler.resolve.model import Fingering, Hole, Pipe
+from compiler.ir import Fingering, Hole, Pipe
 
 SECTION = "Fingerings"
 ROW = 5.3 * MM

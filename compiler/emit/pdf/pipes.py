@@ -48,7 +48,7 @@ from compiler.emit.pdf.style import (
     speed,
     strip_prefix,
 )
-from compiler.resolve.model import Group, Mouth, Pipe, Resolved
+from compiler.ir import Group, Mouth, Pipe, Resolved
 
 SECTION = "Pipes"
 PER_PIPE_LIMIT = 12

@@ -15,7 +15,7 @@ from reportlab.pdfgen.canvas import Canvas
 
 from compiler.emit.pdf.document import Block, fit_size
 from compiler.emit.pdf.style import DASHES, FONT, FONT_BOLD, GREY, INK, LIGHT, MM, SERIES, safe
-from compiler.resolve.model import Curve
+from compiler.ir import Curve
 
 
 def nice_ticks(lo: float, hi: float, count: int = 6) -> list[float]:

@@ -29,7 +29,7 @@ from compiler.emit.pdf.style import (
     MM,
     mm,
 )
-from compiler.resolve.model import Head, Pipe
+from compiler.ir import Head, Pipe
 
 Point = tuple[float, float]
 ToPage = Callable[[float, float], Point]

@@ -24,7 +24,7 @@ from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfbase.ttfonts import TTFont
 
 from compiler.display import SENSITIVITY_STEP_IN, Inches, inches_for
-from compiler.resolve.model import FabricationReport
+from compiler.ir import FabricationReport
 
 MM = 72.0 / 25.4
 """Points per millimetre: the one scale between the page (points) and the drawings (mm)."""

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from compiler.emit.pdf.document import Block, Column, Heading, Paragraph, Spacer, Table
 from compiler.emit.pdf.style import MM, celsius, cents, fixed, hz, inches_of, length
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 
 
 def blocks(resolved: Resolved) -> list[Block]:

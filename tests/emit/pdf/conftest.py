@@ -15,7 +15,7 @@ import pytest
 
 from compiler.errors import Position
 from compiler.geometry.model import Circle, Part, Parts, Placement, Polyline, Sheet, Text, TubeCut
-from compiler.resolve.model import (
+from compiler.ir import (
     AirReport,
     Block,
     Calibration,

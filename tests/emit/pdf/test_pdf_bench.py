@@ -17,8 +17,8 @@ from compiler.cache import Cache
 from compiler.emit.pdf import render
 from compiler.emit.pdf.templates import choose
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved
 from compiler.resolve.resolver import slug
 
 ROOT = Path(__file__).resolve().parents[3]

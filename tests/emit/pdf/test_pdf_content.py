@@ -16,8 +16,8 @@ from pypdf import PdfReader
 
 from compiler.emit import pdf
 from compiler.geometry.model import Parts
+from compiler.ir import Resolved, StockItem
 from compiler.options import BuildOptions
-from compiler.resolve.model import Resolved, StockItem
 
 
 def test_two_builds_give_the_same_bytes(small: tuple[Resolved, Parts], small_pdf: bytes,

@@ -13,7 +13,7 @@ from typing import Any
 
 from compiler.emit.resolved_json import to_dict
 from compiler.geometry.model import Parts
-from compiler.resolve.model import Group, Head, Resolved
+from compiler.ir import Group, Head, Resolved
 
 NUMBER = re.compile(r"[-+]?\d+\.\d+")
 SKIP = {"curves", "harmonics_hz", "holes", "fingerings", "source", "harmonic", "number",

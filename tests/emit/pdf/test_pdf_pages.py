@@ -12,7 +12,7 @@ from collections.abc import Callable
 from pypdf import PdfReader
 
 from compiler.geometry.model import Parts
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 
 
 def sections(pages: list[str]) -> list[str]:

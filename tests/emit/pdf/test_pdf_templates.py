@@ -20,7 +20,7 @@ from hypothesis import strategies as st
 from compiler.emit.pdf import templates
 from compiler.emit.pdf.style import frame_for
 from compiler.geometry.model import Parts
-from compiler.resolve.model import Resolved
+from compiler.ir import Resolved
 
 needs_poppler = pytest.mark.skipif(shutil.which("pdftoppm") is None,
                                    reason="poppler's pdftoppm is not installed "
