@@ -22,8 +22,8 @@ with an RMS error of 1.3 %. A real pipe adds what the model leaves out (the jet,
 and the ears' shapes, voicing), so every mouth term is reported with a band of ±8 % (``BAND``),
 and ±16 % (``BAND_OUTSIDE``, our choice) outside the range the fits cover.
 
-Fitted range: round pipes W/D 0.5–1.0 and H/D 0.1–0.4 (``ROUND_RANGE``). The wooden fit was
-handed over for a mouth as wide as the pipe, without a stated range: boresmith treats a
+Fitted range: round pipes W/D 0.5–1.0 and H/D 0.1–0.4 (``ROUND_RANGE``). The wooden fit is
+for a mouth as wide as the pipe and comes without a stated range: boresmith treats a
 full-width mouth cut up 0.1–0.6 of its width, in a pipe 0.5–2 widths deep, as inside it
 (``WOOD_RANGE``: our assumption, the usual proportions of wooden flue pipes). Outside its
 range a fit is evaluated at the nearest edge of the range (its inputs clamped), so that it
