@@ -92,7 +92,7 @@ def test_open_wood_follows_the_two_depths_rule(note: str) -> None:
 
 
 def test_round_mouth_is_built_from_the_pipes_own_dimensions() -> None:
-    # The fit as handed over (a three-dimensional potential-flow model of a passive pipe):
+    # The fit to a three-dimensional potential-flow model of a passive pipe (module docstring):
     # Δm = (S/A)(ℓ + α√A), α = 1.0445 − 0.3035·W/D − 0.7333·H/D, with W the mouth's width
     # along the circumference, H the cut-up, ℓ the sheet: each as the pipe will be made.
     pipe = _metal("[C3]", 0.8).pipes[0]
