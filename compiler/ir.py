@@ -15,9 +15,19 @@ field name says so). Lengths along a pipe use explicit datums, named in each fie
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from typing import Any
 
 from compiler.errors import Position
+
+NOT_IN_JSON = {"json": False}
+"""Field metadata: the field stays out of ``resolved.json`` (spec positions the output
+contract does not carry; they serve the errors of later stages)."""
+
+
+def spec_position() -> Any:
+    """A field for the spec position an element came from, kept out of ``resolved.json``."""
+    return field(default=None, metadata=NOT_IN_JSON)
 
 
 @dataclass(frozen=True)
@@ -195,6 +205,8 @@ class Hole:
     undercut_m: float
     fixed: bool
     """True when the spec fixed both position and diameter."""
+    source: Position | None = spec_position()
+    """Where the spec lists the hole (None: made without a spec)."""
 
 
 @dataclass(frozen=True)
@@ -218,6 +230,8 @@ class Fingering:
     cutoff_hz: float | None = None
     """The tone-hole lattice cutoff of this fingering's open holes (None: fewer than two open
     holes below the first open one)."""
+    source: Position | None = spec_position()
+    """Where the spec lists the fingering (a survey without a table: its `holes`)."""
 
 
 @dataclass(frozen=True)
@@ -362,6 +376,8 @@ class Group:
     losses: str | None = None
     """Wall-loss model of a rank's or tube set's closed form (``keefe`` or ``none``); None
     where the group does not report it here (flutes and surveys carry their own)."""
+    source: Position | None = spec_position()
+    """Where the spec defines the rank, tube set, flute or survey."""
 
 
 @dataclass(frozen=True)

@@ -2,7 +2,8 @@
 
 Every quantity's key ends with its unit. The IR is in SI; here lengths become millimetres:
 a field ``x_m`` is written as ``x_mm``. Numbers are rounded once, here, to the resolution
-a maker can use (0.01 mm, 0.01 Hz, 0.01 cent); the PDF prints the same roundings.
+a maker can use (0.01 mm, 0.01 Hz, 0.01 cent); the PDF prints the same roundings. Fields
+marked ``ir.NOT_IN_JSON`` (the spec positions of holes, fingerings and groups) are left out.
 """
 
 from __future__ import annotations
@@ -71,6 +72,8 @@ def _plain(value: Any) -> Any:
     if dataclasses.is_dataclass(value) and not isinstance(value, type):
         out = {}
         for f in dataclasses.fields(value):
+            if not f.metadata.get("json", True):  # ``ir.NOT_IN_JSON``: not in the contract
+                continue
             key, converted = _convert(f.name, getattr(value, f.name))
             out[key] = converted
         return out

@@ -66,9 +66,12 @@ class Draft:
         return area(self.outline) - sum(area(o) for o in self.openings)
 
 
-def pipe_error(pipe: Pipe, message: str, hint: str) -> GeometryError:
-    """A geometry error at the pipe's spec position, naming the pipe."""
-    return GeometryError(Problem(pipe.source, f"pipe `{pipe.id}`: {message}", hint, "geometry"))
+def pipe_error(pipe: Pipe, message: str, hint: str,
+               at: Position | None = None) -> GeometryError:
+    """A geometry error naming the pipe, at ``at`` (a hole's spec position, say), else at the
+    pipe's."""
+    return GeometryError(Problem(at or pipe.source, f"pipe `{pipe.id}`: {message}", hint,
+                                 "geometry"))
 
 
 LABEL_LONG_MIN_MM = 3.0

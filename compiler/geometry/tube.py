@@ -84,7 +84,7 @@ def _check_hole(pipe: Pipe, hole: Hole, length: float) -> None:
     if r <= 0 or y - r < 0 or y + r > length:
         raise pipe_error(pipe, f"hole {hole.label} ({2 * r:.1f} mm at {length - y:.1f} mm from "
                     f"the top) does not lie on the {length:.1f} mm tube",
-                    "check the hole's position and diameter")
+                    "check the hole's position and diameter", at=hole.source)
 
 
 def _check_overlaps(pipe: Pipe, circ: float) -> None:
@@ -97,7 +97,7 @@ def _check_overlaps(pipe: Pipe, circ: float) -> None:
             dy = mm(a.position_from_top_m - b.position_from_top_m)
             if math.hypot(dx, dy) < mm(a.diameter_m + b.diameter_m) / 2.0:
                 raise pipe_error(pipe, f"holes {a.label} and {b.label} overlap on the tube",
-                            "move the holes apart or make them smaller")
+                            "move the holes apart or make them smaller", at=b.source)
 
 
 def _head(pipe: Pipe, circ: float, length: float) -> list[Entity]:

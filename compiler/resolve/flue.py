@@ -143,7 +143,7 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
         id=rank.id, kind="rank", family=rank.family, construction=rank.construction,
         air=air.report, end_correction_model=rank.end_correction.model, losses=rank.losses,
         calibration=fit,
-        holder=None, pipe_ids=tuple(p.id for p in pipes),
+        holder=None, pipe_ids=tuple(p.id for p in pipes), source=rank.position,
         trims=trim.advise(rank.measured, observe, fit.value, air, pipes,
                           spec.fabrication.precision_m))
     return group, pipes, warnings

@@ -87,7 +87,7 @@ def report(flute: spec_model.Flute, instrument: Instrument, air: Air, rows: Rows
         fingerings.append(Fingering(
             note=name, closed=closed, register=register, target_hz=rows.targets_hz[i],
             predicted_hz=float(predicted[i][register - 1]), error_cents=float(residual[i]),
-            resonance=resonance, cutoff_hz=cutoffs[i]))
+            resonance=resonance, cutoff_hz=cutoffs[i], source=where))
         note = _judge(label, fingerings[-1], predicted[i], advice[i] if advice else "")
         if note:
             warnings.append(Note(where, note))

@@ -340,7 +340,8 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
                                                    else str(i + 1)),
              position_from_top_m=x, position_from_bottom_m=length - x, diameter_m=d,
              angle_deg=spec_hole.angle_deg, chimney_m=wall, undercut_m=spec_hole.undercut_m,
-             fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None)
+             fixed=spec_hole.position_m is not None and spec_hole.diameter_m is not None,
+             source=spec_hole.position)
         for i, (spec_hole, x, d) in enumerate(zip(flute.holes, positions,
                                                   design.hole_diameters_m, strict=True)))
     head = replace(head, cork_m=cavity if head.kind == "embouchure" else None,
@@ -377,6 +378,6 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         jig=jig(flute.jig, spec))
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
-                  calibration=fit, holder=None, pipe_ids=(pipe.id,))
+                  calibration=fit, holder=None, pipe_ids=(pipe.id,), source=flute.position)
     warnings = list(air.warnings) + list(found.warnings)
     return group, [pipe], warnings

@@ -205,7 +205,7 @@ def _holes(survey: spec_model.Survey, bore: Bore, head: EngineHead,
                         position_from_bottom_m=length - x, diameter_m=h.diameter_m,
                         angle_deg=h.angle_deg,
                         chimney_m=h.chimney_m if h.chimney_m is not None else survey.wall_m,
-                        undercut_m=h.undercut_m, fixed=True))
+                        undercut_m=h.undercut_m, fixed=True, source=h.position))
     return tuple(out)
 
 
@@ -309,7 +309,7 @@ def _report(rows: list[_Row], predicted: _Predicted,
                               nearest_note=note_name(near), nearest_cents=cents(f, near_hz),
                               cents_per_c=slope if math.isfinite(slope) else None,
                               resonance=predicted.resonance[i],
-                              cutoff_hz=predicted.cutoff_hz[i]))
+                              cutoff_hz=predicted.cutoff_hz[i], source=row.position))
     return done, missing
 
 
@@ -349,7 +349,8 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
                          fingerings, lowest, stock), jig=jig(survey.jig, spec))
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",
                   air=air.report, end_correction_model=survey.radiation,
-                  calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,))
+                  calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,),
+                  source=survey.position)
     return group, [pipe], warnings
 
 

@@ -136,7 +136,7 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
                   construction="stock-tube", air=air.report,
                   end_correction_model=tubes.end_correction.model, losses=tubes.losses,
                   calibration=fit,
-                  holder=holder, pipe_ids=tuple(p.id for p in pipes),
+                  holder=holder, pipe_ids=tuple(p.id for p in pipes), source=tubes.position,
                   trims=trim.advise(tubes.measured, observe, fit.value, air, pipes,
                                     fab.precision_m))
     return group, pipes, list(air.warnings)

@@ -77,6 +77,11 @@ def test_overlapping_holes() -> None:
     (problem,) = err.problems
     assert "holes 1 and 7 overlap" in problem.message
     assert problem.position == Position(samples.SPEC, 80, 5)
+    # A hole that knows its line in the spec is blamed there, not at the pipe.
+    listed = replace(clash, source=Position(samples.SPEC, 97, 9))
+    err = _error(replace(samples.flute_model(), pipes=(replace(pipe, holes=(*pipe.holes,
+                                                                            listed)),)))
+    assert [p.position for p in err.problems] == [Position(samples.SPEC, 97, 9)]
 
 
 def test_mouth_wider_than_a_wooden_pipe() -> None:
