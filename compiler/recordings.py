@@ -91,6 +91,9 @@ def read_audio(path: Path) -> Audio:
             raise RecordingError(f"a damaged WAV file ({exc})", "export it again") from None
     except EOFError:
         raise RecordingError("a damaged WAV file (it ends early)", "export it again") from None
+    except RuntimeError:  # `wave` seeking past the end: a chunk longer than the file
+        raise RecordingError("a damaged WAV file (a chunk runs past its end)",
+                             "export it again") from None
     return _read_riff(path.read_bytes())
 
 

@@ -210,3 +210,17 @@ def test_usage_errors(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> Non
     err = capsys.readouterr().err
     assert "given 2 times for 1 recordings" in err and "no such file" in err
     assert "Traceback" not in err
+
+
+def test_a_damaged_wav_is_refused_without_a_traceback(tmp_path: Path,
+                                                      capsys: pytest.CaptureFixture[str]) -> None:
+    # A RIFF/WAVE file whose first chunk claims more bytes than the file holds (a recorder
+    # killed while writing, a file cut short by a copy): the RIFF layout (Microsoft 1991)
+    # gives every chunk a 4-byte id and a 4-byte length.
+    damaged = tmp_path / "G2.wav"
+    damaged.write_bytes(b"RIFF" + struct.pack("<I", 1000) + b"WAVE" + b"junk"
+                        + struct.pack("<I", 10**6) + b"\x00" * 16)
+    assert main(["measure", str(damaged), "-t", "19 C"]) == 1
+    err = capsys.readouterr().err
+    assert f"{damaged}: error: a damaged WAV file" in err and "hint: export it again" in err
+    assert "Traceback" not in err
