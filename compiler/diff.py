@@ -379,8 +379,10 @@ def summary(changes: list[Change]) -> str:
     return text
 
 
-_MODEL_ONLY = ("acoustic_length_mm", "end_correction_mm", "mouth.correction_mm")
-"""Lengths of the model, not of a part: they change nothing to cut."""
+_MODEL_ONLY = ("acoustic_length_mm", "end_correction_mm", "mouth.correction_mm",
+               "mouth.band_mm")
+"""Lengths of the model (the mouth term and its uncertainty), not of a part: they change
+nothing to cut."""
 
 
 @dataclass(frozen=True)

@@ -309,6 +309,24 @@ def test_report_leads_with_one_line_per_pipe_to_trim_or_recut(organ: Resolved) -
                for a in back.values())
 
 
+def test_a_recalibrated_rank_is_trimmed_not_recut(organ: Resolved) -> None:
+    from compiler.diff import actions
+
+    # A prototype C3 measured sharp of the uncalibrated model: the fit shrinks the mouth
+    # term, so the calibrated rank is cut longer. Going back to the plain model, every pipe
+    # is shorter (a trim); the mouth term and its ±8 % band are the model's lengths, not a
+    # part's, and must not turn a trim into "make it again".
+    measured = ORGAN.read_text(encoding="utf-8") + (
+        "    measured:\n      - {note: C3, frequency: 129.9 Hz, temperature: 19 C}\n")
+    changes = compare(_resolve(measured), organ)
+    bands = _by(changes, "pipe", "mouth.band_mm")
+    assert bands  # the band moved with the calibration
+    found = {a.pipe: a for a in actions(changes)}
+    for pipe in bands:
+        assert found[pipe].action == "trim", found[pipe].line
+        assert "band" not in found[pipe].line
+
+
 def test_a_cooler_flute_is_recut_and_redrilled() -> None:
     from compiler.diff import actions
 
