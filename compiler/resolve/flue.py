@@ -130,7 +130,8 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
 
     fit = calibration.fit_measured(rank.measured, rank.notes, f"rank `{rank.id}`",
                                    "measure a pipe of this rank", observe)
-    found = mouth_band.Shortfalls(rank.id, rank.construction == "rolled-sheet")
+    found = mouth_band.Shortfalls(rank.id, rank.construction == "rolled-sheet",
+                                  spec.fabrication.precision_m)
     pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings, found)
              for note in rank.notes]
     fab = spec.fabrication

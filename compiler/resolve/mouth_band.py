@@ -105,6 +105,8 @@ class Shortfalls:
 
     rank: str
     round_: bool
+    step_m: float
+    """The spec's precision: a suggested allowance or travel is rounded up to it."""
     outside: dict[Position, list[tuple[str, float, float]]] = field(default_factory=dict)
     """Mouth position -> (note, width ratio, cut-up ratio) of pipes outside the fitted range."""
     short: list[tuple[str, float, float]] = field(default_factory=list)
@@ -135,15 +137,26 @@ class Shortfalls:
             out.append(Note(allowance_at, f"rank `{self.rank}`: the tuning allowance "
                             f"({allowance}) does not cover the mouth correction's uncertainty "
                             f"on {_names([n for n, _, _ in self.short])}: a mouth term smaller "
-                            f"than modelled needs up to {1000 * most:.1f} mm more length, so "
+                            f"than modelled needs up to {self._up(most)} mm more length, so "
                             "these pipes are cut with that much; to cover every pipe, give at "
                             f"least {math.ceil(1000 * share) / 10:g} % or "
-                            f"{math.ceil(1000 * most):g} mm"))
+                            f"{self._at_least(most)} mm"))
         if self.travel:
             most = max(t for _, t in self.travel)
             given = "none" if travel_given is None else f"{1000 * travel_given:g} mm"
             out.append(Note(travel_at, f"rank `{self.rank}`: the stopper travel ({given}) does "
                             "not cover the mouth correction's uncertainty on "
                             f"{_names([n for n, _ in self.travel])}: their stoppers get up to "
-                            f"{1000 * most:.1f} mm; give at least {math.ceil(1000 * most):g} mm"))
+                            f"{self._up(most)} mm; give at least {self._at_least(most)} mm"))
         return out
+
+    def _up(self, length_m: float) -> str:
+        """A length needed, in mm, rounded up to the spec's precision (never below the need,
+        also where a spec in inches shows it as a fraction of that step)."""
+        return f"{round(1000 * round_up(length_m, self.step_m), 3):g}"
+
+    def _at_least(self, length_m: float) -> str:
+        """A length to suggest, in mm: whole millimetres, rounded up to the spec's precision,
+        so that the value a spec in inches shows (a fraction of that step) still covers it."""
+        whole_mm = math.ceil(1000 * length_m - 1e-9) / 1000
+        return f"{round(1000 * round_up(whole_mm, self.step_m), 3):g}"

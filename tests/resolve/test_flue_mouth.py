@@ -4,6 +4,7 @@ and the tuning allowance that covers it. Sources beside each check."""
 from __future__ import annotations
 
 import math
+import re
 
 import pytest
 
@@ -166,6 +167,31 @@ def test_the_cut_leaves_room_for_a_smaller_mouth_term() -> None:
     for pipe in r.pipes:
         assert pipe.cut_length_m == pytest.approx(
             pipe.speaking_length_m + round(0.03 * pipe.speaking_length_m, 4), abs=1e-9)
+
+
+def test_the_suggested_allowance_covers_in_the_specs_own_inches() -> None:
+    # A spec in inches (precision 1/32 in) whose allowance falls short is told what would
+    # cover every pipe in inches; that value, given back, must silence the warning (1 in =
+    # 25.4 mm exactly, ISO 31-1 / NIST SP 811: the suggestion may not round down below need).
+    def rank(allowance: str) -> Resolved:
+        text = ("boresmith: 1\ninstrument: Inch bench\nunits: in\n"
+                "environment: {temperature: 20 C, sound_speed: linear}\n"
+                f"fabrication: {{tuning_allowance: {allowance}}}\n"
+                "stock:\n  zinc: {material: zinc, sheet: {thickness: 0.03 in}}\n"
+                "ranks:\n  - id: r\n    family: open-flue\n    construction: rolled-sheet\n"
+                "    stock: zinc\n    notes: [C2]\n"
+                "    scale: {reference: {note: C2, diameter: 2 1/8 in}, halving_interval: 16}\n"
+                "    mouth: {width: 2/7, cutup: 1/4}\n    losses: none\n")
+        return resolve(load_spec(text, "inch.yaml"))
+
+    short = rank("1/16 in")
+    [warning] = short.warnings
+    needs = re.search(r"needs up to (\d+/\d+) in = ", warning.message)
+    assert needs is not None, warning.message
+    assert not rank(f"{needs.group(1)} in").warnings  # what it needs is enough
+    suggested = re.search(r"or (\d+/\d+|\d+(?: \d+/\d+)?) in = ", warning.message)
+    assert suggested is not None, warning.message
+    assert not rank(f"{suggested.group(1)} in").warnings
 
 
 def test_a_mouth_outside_the_fitted_range_widens_the_band() -> None:
