@@ -274,8 +274,10 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
         raise PhysicsError.at(rank.where.get("mouth.width", where),
                               f"{label}: the mouth ({1000 * width:.1f} mm) is wider than the "
                               f"pipe ({1000 * limit:.1f} mm)",
-                              "a round pipe's mouth is at most about 1/3 of the circumference; "
-                              "use 1/4 or 2/9")
+                              "a round pipe's mouth is at most about 3/10 of the circumference "
+                              "(then nearly as wide as the pipe); use 1/4 or 2/9"
+                              if section.round else
+                              "a wooden pipe's mouth is at most its inside width: `width: 1`")
     if cf > 1.0:
         raise PhysicsError.at(rank.where.get("mouth.cutup", where),
                               f"{label}: a cut-up of {cf:.2f} × the mouth width is taller than "

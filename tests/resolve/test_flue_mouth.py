@@ -194,6 +194,20 @@ def test_the_suggested_allowance_covers_in_the_specs_own_inches() -> None:
     assert not rank(f"{suggested.group(1)} in").warnings
 
 
+def test_a_mouth_wider_than_the_pipe_gets_a_hint_that_works() -> None:
+    # A mouth's width is measured along the circumference; 1/3 of it is π/3 ≈ 1.05 × the
+    # diameter, wider than the pipe. The hint's widest mouth, 3/10 (0.94 × the diameter),
+    # must resolve.
+    from compiler.errors import PhysicsError
+
+    with pytest.raises(PhysicsError) as err:
+        _metal("[C3]", 0.8, mouth="{width: 1/3, cutup: 1/4}")
+    [problem] = err.value.problems
+    assert "wider than the pipe" in problem.message
+    assert "1/3" not in problem.hint and "3/10" in problem.hint
+    assert _metal("[C3]", 0.8, mouth="{width: 3/10, cutup: 1/4}").pipes[0].mouth is not None
+
+
 def test_a_mouth_outside_the_fitted_range_widens_the_band() -> None:
     # Fitted for W/D 0.5–1.0 and H/D 0.1–0.4: a mouth of 1/8 of the circumference (W/D 0.39)
     # lies outside; its band doubles to ±16 % and a warning points at the mouth.
