@@ -69,6 +69,22 @@ class StockItem:
     width_m: float | None
 
 
+CHLORINATED, LEAD, WOOD_DUST, METAL = "chlorinated", "lead", "wood-dust", "metal"
+"""The shop hazards of a material (``Material.hazards``)."""
+
+
+@dataclass(frozen=True)
+class Material:
+    """A material the build uses, with the shop hazards its name shows
+    (``compiler.resolve.materials``)."""
+
+    name: str
+    """As the spec writes it."""
+    hazards: tuple[str, ...]
+    """``chlorinated`` (PVC, vinyl: never laser cut), ``lead`` (lead-bearing metal),
+    ``wood-dust``, ``metal`` (edges and burrs), in that order; empty for none."""
+
+
 @dataclass(frozen=True)
 class FabricationReport:
     sheet_length_m: float
@@ -400,3 +416,6 @@ class Resolved:
     groups: tuple[Group, ...]
     pipes: tuple[Pipe, ...]
     warnings: tuple[Note, ...]
+    materials: tuple[Material, ...] = field(metadata=NOT_IN_JSON)
+    """Every material the stock, pipes, jigs and holders name, with its hazards (the build
+    sheet's cautions render them)."""

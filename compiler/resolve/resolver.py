@@ -20,7 +20,7 @@ from compiler.ir import (
     StockItem,
     TuningReport,
 )
-from compiler.resolve import flue, plain, tubes
+from compiler.resolve import flue, materials, plain, tubes
 from compiler.resolve.targets import tonic_name
 from compiler.spec import model as spec_model
 
@@ -111,6 +111,8 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
                              f"A4 = {spec.tuning.a4_hz:g} Hz is far from any pitch standard in "
                              f"use ({low:g}-{high:g} Hz); check the value and its unit"))
     fab = spec.fabrication
+    stock = tuple(StockItem(s.name, s.kind, s.material, s.thickness_m, s.outside_diameter_m,
+                            s.inside_diameter_m, s.length_m, s.width_m) for s in spec.stock)
     return Resolved(
         instrument=spec.instrument,
         slug=slug(spec.instrument),
@@ -123,9 +125,9 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
             seam_allowance_m=fab.seam_allowance_m, tuning_allowance=plain.allowance_text(fab),
             paper=fab.paper, dxf_version=fab.dxf_version, part_files=fab.part_files,
             units=spec.units, tube_kerf_m=fab.tube_kerf_m),
-        stock=tuple(StockItem(s.name, s.kind, s.material, s.thickness_m, s.outside_diameter_m,
-                              s.inside_diameter_m, s.length_m, s.width_m) for s in spec.stock),
+        stock=stock,
         groups=tuple(groups),
         pipes=tuple(pipes),
         warnings=tuple(sorted(set(warnings), key=lambda n: (n.position, n.message))),
+        materials=materials.used(stock, pipes, groups),
     )

@@ -30,6 +30,7 @@ from compiler.ir import (
     Stopper,
     TuningReport,
 )
+from compiler.resolve import materials
 
 SPEC = "samples.yaml"
 
@@ -143,7 +144,7 @@ def resolved(pipes: list[Pipe], groups: list[Group],
         instrument="Geometry samples", slug="geometry-samples", spec_file=SPEC,
         spec_sha256="3f" * 32, tuning=TuningReport(440.0, "equal", "C"),
         fabrication=fabrication, stock=STOCK, groups=tuple(groups), pipes=tuple(pipes),
-        warnings=())
+        warnings=(), materials=materials.used(STOCK, pipes, groups))
 
 
 HOLDER = Holder("ply-6", "birch-ply", 0.006, 0.012, 0.015, 0.0005)

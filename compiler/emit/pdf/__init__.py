@@ -37,7 +37,7 @@ def plan(resolved: Resolved, parts: Parts, options: BuildOptions) -> list[Page]:
     """Every page of the build sheet, in order, not yet drawn."""
     frame = frame_for(paper_of(resolved, options))
     sections = [
-        ("Cautions", cautions.pages(resolved, parts, frame)),
+        ("Cautions", cautions.pages(resolved, frame)),
         ("Cut list", cutlist.pages(resolved, parts, frame)),
         ("Pipes", pipes.pages(resolved, frame)),
         ("Templates", templates.pages(parts, frame)),

@@ -2,23 +2,17 @@
 
 These are plain shop-safety notes (common practice), not a substitute for the materials'
 safety data sheets, the tools' manuals, local regulations or the shop's own rules, and the
-page says so.
+page says so. Which material carries which hazard is decided upstream
+(``compiler.resolve.materials``, in ``Resolved.materials``); this page only words it.
 """
 
 from __future__ import annotations
 
 from compiler.emit.pdf.document import Block, Heading, Page, Paragraph, Spacer, flow_pages
 from compiler.emit.pdf.style import GREY, MM, WARN, Frame
-from compiler.geometry.model import Parts
-from compiler.ir import Resolved
+from compiler.ir import CHLORINATED, LEAD, METAL, WOOD_DUST, Resolved
 
 SECTION = "Cautions"
-
-CHLORINATED = ("pvc", "vinyl", "polyvinyl", "cpvc")
-LEADED = ("lead", "spotted", "organ-metal", "organ metal", "pewter", "tin-lead", "plain-metal")
-WOODS = ("mdf", "wood", "pine", "oak", "birch", "ply", "maple", "beech", "spruce", "cedar",
-         "walnut", "cherry", "poplar", "fir", "mahogany", "hardboard", "particle", "bamboo")
-METALS = ("alumin", "brass", "copper", "steel", "bronze", "zinc", "nickel", "titanium")
 
 GENERAL = (
     ("PVC and vinyl: never laser cut", "Never cut or engrave PVC, vinyl or any other "
@@ -55,41 +49,33 @@ GENERAL = (
 )
 
 
-def materials(resolved: Resolved, parts: Parts) -> list[str]:
-    """Every material named in the build, lower case, sorted."""
-    found = {s.material for s in resolved.stock} | {p.material for p in resolved.pipes}
-    found |= {p.material for p in parts.parts if p.kind != "template"}
-    found |= {g.holder.material for g in resolved.groups if g.holder is not None}
-    return sorted(m.lower() for m in found if m)
+def with_hazard(resolved: Resolved, hazard: str) -> list[str]:
+    """The build's materials with ``hazard``, lower case, sorted."""
+    return sorted(m.name.lower() for m in resolved.materials if hazard in m.hazards)
 
 
-def _matching(names: list[str], words: tuple[str, ...]) -> list[str]:
-    return [m for m in names if any(w in m for w in words)]
-
-
-def specific(resolved: Resolved, parts: Parts) -> list[Block]:
+def specific(resolved: Resolved) -> list[Block]:
     """Warnings for the materials this build uses; the chlorinated ones boxed in red."""
-    names = materials(resolved, parts)
     out: list[Block] = []
-    pvc = _matching(names, CHLORINATED)
+    pvc = with_hazard(resolved, CHLORINATED)
     if pvc:
         out.append(Paragraph(f"This build uses {', '.join(pvc)}. NEVER cut or engrave it with "
                              "a laser: it releases chlorine compounds (hydrogen chloride). Cut "
                              "it by saw or knife, with ventilation.", 11, bold=True,
                              colour=WARN, boxed=True))
-    lead = _matching(names, LEADED)
+    lead = with_hazard(resolved, LEAD)
     if lead:
         out.append(Paragraph(f"This build uses {', '.join(lead)}, which contains lead. NEVER "
                              "cut it with a laser or a plasma cutter (lead fume): use shears, "
                              "a knife or a waterjet. Follow the lead notes below at every "
                              "step, and keep the offcuts for proper recycling.", 10,
                              bold=True, colour=WARN, boxed=True))
-    wood = _matching(names, WOODS)
+    wood = with_hazard(resolved, WOOD_DUST)
     if wood:
         out.append(Paragraph(f"Wood in this build ({', '.join(wood)}): extract the dust; "
                              "wear a fine-dust respirator when sanding or routing, especially "
                              "MDF and hardwoods.", 9.5, bold=True))
-    metal = _matching(names, METALS)
+    metal = with_hazard(resolved, METAL)
     if metal:
         out.append(Paragraph(f"Metal tube and sheet ({', '.join(metal)}): clamp the work when "
                              "drilling, deburr every hole and cut end, and handle sheet edges "
@@ -97,9 +83,9 @@ def specific(resolved: Resolved, parts: Parts) -> list[Block]:
     return out
 
 
-def pages(resolved: Resolved, parts: Parts, frame: Frame) -> list[Page]:
+def pages(resolved: Resolved, frame: Frame) -> list[Page]:
     blocks: list[Block] = [Heading("Cautions: read before you start", 15)]
-    found = specific(resolved, parts)
+    found = specific(resolved)
     if found:
         blocks += [Heading("The materials of this build", 11), *found, Spacer(2 * MM)]
     blocks.append(Heading("In every build", 11))

@@ -36,6 +36,7 @@ from compiler.ir import (
     Stopper,
     TuningReport,
 )
+from compiler.resolve import materials
 
 NAMES = ("C", "C#", "D", "D#", "E", "F", "F#", "G", "G#", "A", "A#", "B")
 LOG_C = 1200.0 / math.log(2.0)
@@ -224,14 +225,16 @@ def small_resolved(units: str = "mm", paper: str = "a4") -> Resolved:
     g2, wood = wood_pipe()
     g3, tubes = tube_set()
     g4, fl = flute()
+    groups, pipes = (g1, g2, g3, g4), rank + (wood,) + tubes + (fl,)
     return Resolved(
         instrument="Hollow Oak workshop: sampler of pipes", slug="hollow-oak-sampler",
         spec_file="hollow-oak.yaml",
         spec_sha256="3f7a1c9e0b5d2468ace13579bdf02468ace13579bdf02468ace13579bdf0246a",
         tuning=TuningReport(440.0, "equal", "C"), fabrication=fabrication(units, paper),
-        stock=STOCK, groups=(g1, g2, g3, g4), pipes=rank + (wood,) + tubes + (fl,),
+        stock=STOCK, groups=groups, pipes=pipes,
         warnings=(Note(_where(41), "D3: cut-up 0.25 of the mouth width is below the usual "
-                       "range for a principal"),))
+                       "range for a principal"),),
+        materials=materials.used(STOCK, pipes, groups))
 
 
 def rect(op: str, x0: float, y0: float, x1: float, y1: float) -> Polyline:
@@ -345,7 +348,8 @@ def large_resolved() -> Resolved:
                             tuple(p.id for p in rank)))
     return Resolved("Great Hall organ, ten ranks", "great-hall", "great-hall.yaml",
                     "0" * 64, TuningReport(440.0, "equal", "C"), fabrication(),
-                    STOCK, tuple(groups), tuple(pipes), ())
+                    STOCK, tuple(groups), tuple(pipes), (),
+                    materials.used(STOCK, pipes, groups))
 
 
 def large_parts(resolved: Resolved) -> Parts:

@@ -18,6 +18,7 @@ from compiler.emit import pdf
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved, StockItem
 from compiler.options import BuildOptions
+from compiler.resolve import materials
 
 
 def test_two_builds_give_the_same_bytes(small: tuple[Resolved, Parts], small_pdf: bytes,
@@ -85,8 +86,10 @@ def test_pvc_in_the_stock_gets_the_strong_warning(small: tuple[Resolved, Parts],
                                                   texts_of: Callable[..., list[str]]) -> None:
     resolved, parts = small
     pvc = StockItem("pvc-40", "tube", "PVC", 0.002, 0.040, 0.036, 2.0, None)
-    text = cautions(texts_of(dataclasses.replace(resolved, stock=resolved.stock + (pvc,)),
-                             parts))
+    stock = resolved.stock + (pvc,)
+    text = cautions(texts_of(dataclasses.replace(
+        resolved, stock=stock, materials=materials.used(stock, resolved.pipes,
+                                                        resolved.groups)), parts))
     assert "This build uses pvc. NEVER cut or engrave it with a laser" in text
 
 
