@@ -46,6 +46,13 @@ def key_of(*inputs: object) -> str:
     return digest.hexdigest()
 
 
+def content_digest(value: object) -> str:
+    """sha256 of a frozen value's ``repr`` alone, without the program's fingerprint: the
+    same content gives the same digest in every version of boresmith (for identifiers
+    written into the output, which must not change when only the program did)."""
+    return hashlib.sha256(repr(value).encode("utf-8")).hexdigest()
+
+
 class Cache:
     """Bytes or pickled values by key, in ``folder``; ``Cache(None)`` keeps nothing."""
 

@@ -19,10 +19,11 @@ Closed paths are LWPOLYLINE with bulges (R2010) or closed POLYLINE with bulges (
 circles are CIRCLE.
 
 Reproducible bytes: the drawing's timestamps are fixed (2000-01-01, zero editing time),
-its GUIDs derive from the file's own content and name, handles are assigned in
-creation order, and coordinates are rounded to 1e-6 mm. ``$INSUNITS`` = 4 (millimetres)
-in R2010; R12 has no such header variable (it came with R2000), so R12 files are unitless
-and the cutter software must be told millimetres.
+its GUIDs derive from the file's own content and name (not from the program's version: the
+same drawing keeps its bytes across releases), handles are assigned in creation order, and
+coordinates are rounded to 1e-6 mm. ``$INSUNITS`` = 4 (millimetres) in R2010; R12 has no
+such header variable (it came with R2000), so R12 files are unitless and the cutter software
+must be told millimetres.
 """
 
 from __future__ import annotations
@@ -31,12 +32,14 @@ import hashlib
 import io
 import pathlib
 from collections import OrderedDict
+from dataclasses import dataclass
+from functools import partial
 
 from ezdxf.document import Drawing
 from ezdxf.enums import TextEntityAlignment
 from ezdxf.lldxf.tagwriter import TagWriter
 
-from compiler.cache import Cache, key_of
+from compiler.cache import Cache, content_digest, key_of
 from compiler.geometry.model import Circle, Entity, Part, Parts, Sheet, Text
 from compiler.geometry.paths import Box, bounds_of, placed, rect, text_centre
 from compiler.geometry.units import snap, snap_bulge
@@ -59,6 +62,21 @@ FIXED_JULIAN_DATE = 2451544.5
 """2000-01-01 00:00 as a Julian date: every file carries the same creation time."""
 
 MARKER = "boresmith"
+
+
+@dataclass(frozen=True)
+class DxfFile:
+    """Everything one DXF file's bytes depend on, and so its cache key: ``render`` reads
+    nothing else."""
+
+    name: str
+    """The path inside the output folder (``sheet-01-birch-plywood.dxf``); the GUIDs derive
+    from it and the content."""
+    version: str
+    """``r2010`` or ``r12``."""
+    limits: Box
+    """The drawing limits (mm): the sheet, or the part."""
+    entities: tuple[Entity, ...]
 
 
 def _guid(seed: str) -> str:
@@ -122,12 +140,9 @@ def _serialise(doc: Drawing, seed: str) -> bytes:
     return doc.encode(stream.getvalue())
 
 
-def render(entities: tuple[Entity, ...], version: str, seed: str, limits: Box) -> bytes:
-    """One DXF drawing of ``entities`` (mm) as bytes.
-
-    ``version``: ``r2010`` or ``r12``; ``seed``: the text the GUIDs derive from (the spec's
-    sha256 and the file name); ``limits``: the drawing limits (the sheet, or the part).
-    """
+def render(drawing: DxfFile) -> bytes:
+    """One DXF drawing of ``drawing.entities`` (mm) as bytes."""
+    entities, version, limits = drawing.entities, drawing.version, drawing.limits
     doc = _new(VERSIONS[version])
     for name, colour in LAYER_COLOURS.items():
         doc.layers.add(name, color=colour)
@@ -145,7 +160,7 @@ def render(entities: tuple[Entity, ...], version: str, seed: str, limits: Box) -
         for entity in entities:
             if entity.operation == operation:
                 _add(doc, entity)
-    return _serialise(doc, seed)
+    return _serialise(doc, content_digest(drawing))
 
 
 def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
@@ -173,22 +188,19 @@ def write(resolved: Resolved, parts: Parts, options: BuildOptions,
     store = cache or Cache(None)
     by_id = {p.id: p for p in parts.parts}
     out_dir.mkdir(parents=True, exist_ok=True)
-    jobs: list[tuple[pathlib.Path, tuple[Entity, ...], Box]] = []
+    jobs: list[DxfFile] = []
     for sheet in parts.sheets:
-        jobs.append((out_dir / f"{sheet.id}.dxf", sheet_entities(sheet, by_id),
-                     (0.0, 0.0, sheet.length_mm, sheet.width_mm)))
+        jobs.append(DxfFile(f"{sheet.id}.dxf", version, (0.0, 0.0, sheet.length_mm,
+                                                         sheet.width_mm),
+                            sheet_entities(sheet, by_id)))
     if part_files:
         (out_dir / "parts").mkdir(exist_ok=True)
         for part in parts.parts:
-            jobs.append((out_dir / "parts" / f"{part.id}.dxf", part.entities,
-                         bounds_of(part.entities)))
+            jobs.append(DxfFile(f"parts/{part.id}.dxf", version, bounds_of(part.entities),
+                                part.entities))
     written: list[pathlib.Path] = []
-    for path, entities, limits in jobs:
-        name = path.relative_to(out_dir).as_posix()
-        key = key_of("dxf", name, version, limits, entities)
-        def make(e: tuple[Entity, ...] = entities, k: str = key, b: Box = limits) -> bytes:
-            return render(e, version, k, b)
-
-        path.write_bytes(store.data("dxf", key, make))
+    for job in jobs:
+        path = out_dir / job.name
+        path.write_bytes(store.data("dxf", key_of(job), partial(render, job)))
         written.append(path)
     return sorted(written)
