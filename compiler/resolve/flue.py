@@ -23,6 +23,7 @@ from compiler.ir import (
 )
 from compiler.resolve import calibration, mouth_band, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
+from compiler.resolve.inputs import RankInputs
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
@@ -117,27 +118,27 @@ def _override(rank: spec_model.Rank, note: int) -> spec_model.Override | None:
     return next((o for o in rank.overrides if o.note == note), None)
 
 
-def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, list[Pipe],
-                                                                       list[Note]]:
+def resolve_rank(inputs: RankInputs) -> tuple[Group, list[Pipe], list[Note]]:
     """All pipes of one rank, calibrated to its measurements if it has any."""
-    air = group_air(rank.family, spec.environment)
+    rank = inputs.group
+    air = group_air(rank.family, inputs.environment)
     _check_rank(rank)
-    stock = spec.stock_named(rank.stock)
+    stock = inputs.stock_named(rank.stock)
     assert stock is not None
     warnings = list(air.warnings)
     def observe(m: spec_model.Measurement) -> calibration.Observation:
-        return _observation(rank, spec, stock, air, m)
+        return _observation(rank, inputs, stock, air, m)
 
     fit = calibration.fit_measured(rank.measured, rank.notes, f"rank `{rank.id}`",
                                    "measure a pipe of this rank", observe)
     found = mouth_band.Shortfalls(rank.id, rank.construction == "rolled-sheet",
-                                  spec.fabrication.precision_m)
-    pipes = [_pipe(rank, spec, stock, air, note, fit.value, warnings, found)
+                                  inputs.fabrication.precision_m)
+    pipes = [_pipe(rank, inputs, stock, air, note, fit.value, warnings, found)
              for note in rank.notes]
-    fab = spec.fabrication
-    warnings += found.notes(plain.allowance_text(fab) if fab.allowance_fraction or
-                            fab.allowance_m else "none",
-                            fab.where.get("tuning_allowance", rank.position),
+    fab = inputs.fabrication
+    warnings += found.notes(plain.allowance_text(fab.allowance_fraction, fab.allowance_m)
+                            if fab.allowance_fraction or fab.allowance_m else "none",
+                            fab.allowance_at or rank.position,
                             rank.stopper.travel_m,
                             rank.where.get("stopper", rank.position))
     group = Group(
@@ -146,7 +147,7 @@ def resolve_rank(rank: spec_model.Rank, spec: spec_model.Spec) -> tuple[Group, l
         calibration=fit,
         holder=None, pipe_ids=tuple(p.id for p in pipes), source=rank.position,
         trims=trim.advise(rank.measured, observe, fit.value, air, pipes,
-                          spec.fabrication.precision_m))
+                          inputs.fabrication.precision_m))
     return group, pipes, warnings
 
 
@@ -223,15 +224,15 @@ def _mouth_numbers(rank: spec_model.Rank, note: int, section: Section, thickness
     return wf, cf, width, plain.round_to(width * cf, step), lip
 
 
-def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
+def _observation(rank: spec_model.Rank, inputs: RankInputs, stock: spec_model.Stock,
                  air: GroupAir, m: spec_model.Measurement) -> calibration.Observation:
-    step = spec.fabrication.precision_m
+    step = inputs.fabrication.precision_m
     section = section_for(rank, m.note, step)
     _, _, width, cutup, lip = _mouth_numbers(rank, m.note, section, stock.thickness_m, step)
     override = _override(rank, m.note)
-    target = target_hz(spec.tuning, m.note, override.frequency_hz if override else None)
+    target = target_hz(inputs.tuning, m.note, override.frequency_hz if override else None)
     base = _acoustics(rank, section, width, cutup, lip, stock.thickness_m, 1.0)
-    fab = spec.fabrication
+    fab = inputs.fabrication
     allowance = (fab.allowance_fraction, fab.allowance_m)
     if m.length_m is None and not base.stopped:
         # Cut as the uncalibrated model had it: the allowance covers the mouth band too.
@@ -244,7 +245,7 @@ def _observation(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model
     return plain.observation(base, m, target, rank.harmonic, air, step, allowance)
 
 
-def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
+def _pipe(rank: spec_model.Rank, inputs: RankInputs, stock: spec_model.Stock,
           air: GroupAir, note: int, scale: float, warnings: list[Note],
           found: mouth_band.Shortfalls) -> Pipe:
     name = note_name(note)
@@ -253,7 +254,7 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
     override = _override(rank, note)
     if override is not None:
         where = override.position
-    section = section_for(rank, note, spec.fabrication.precision_m)
+    section = section_for(rank, note, inputs.fabrication.precision_m)
     t = stock.thickness_m
     inner = section.diameter_m if section.round else min(section.width_m or 0,
                                                          section.depth_m or 0)
@@ -267,7 +268,7 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
                               f"no wider than {walls} of {1000 * t:.1f} mm",
                               "use a wider scale or a larger halving interval, or thinner stock")
     wf, cf, width, cutup, lip = _mouth_numbers(rank, note, section, t,
-                                               spec.fabrication.precision_m)
+                                               inputs.fabrication.precision_m)
     limit = section.diameter_m if section.round else section.width_m
     assert limit is not None
     if width > limit:
@@ -286,12 +287,12 @@ def _pipe(rank: spec_model.Rank, spec: spec_model.Spec, stock: spec_model.Stock,
         warnings.append(Note(rank.where.get("mouth.cutup", where),
                              f"rank `{rank.id}`: cut-up {cf:.2f} × mouth width is outside the "
                              f"usual {USUAL_CUTUP[0]}-{USUAL_CUTUP[1]}"))
-    target = target_hz(spec.tuning, note, override.frequency_hz if override else None)
+    target = target_hz(inputs.tuning, note, override.frequency_hz if override else None)
     acoustics = _acoustics(rank, section, width, cutup, lip, t, scale)
     solved = plain.solve_plain(
-        acoustics, target, rank.harmonic, air, spec.fabrication.precision_m, label, where,
+        acoustics, target, rank.harmonic, air, inputs.fabrication.precision_m, label, where,
         "use a narrower scale or a smaller mouth for the highest pipes, or leave them out")
-    fab = spec.fabrication
+    fab = inputs.fabrication
     length = solved.speaking_length_m
     _, inside = _mouth_term(section, width, cutup, lip)
     spread = mouth_band.band(acoustics, inside, length, target, rank.harmonic, air.state, cutup,

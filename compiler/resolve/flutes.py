@@ -23,6 +23,7 @@ from compiler.errors import PhysicsError, Position
 from compiler.ir import Group, Head, Hole, Jig, Note, Pipe
 from compiler.resolve import calibration, flute_calibration, flute_report, plain
 from compiler.resolve.environment import GroupAir, group_air
+from compiler.resolve.inputs import FluteInputs, SurveyInputs
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
@@ -124,13 +125,13 @@ def _head(flute: spec_model.Flute, bore_d: float,
     return engine, report, cork
 
 
-def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> flute_report.Rows:
+def _rows(flute: spec_model.Flute, inputs: FluteInputs) -> flute_report.Rows:
     """Fingering table rows: every fingering in register 1, then again in register 2; each
     row's spec position is its fingering's."""
     table, targets, registers, names, where = [], [], [], [], []
     for f in flute.fingerings:
         table.append(f.closed)
-        targets.append(target_hz(spec.tuning, f.note, f.frequency_hz))
+        targets.append(target_hz(inputs.tuning, f.note, f.frequency_hz))
         registers.append(1)
         names.append(note_name(f.note))
         where.append(f.position)
@@ -139,7 +140,7 @@ def _rows(flute: spec_model.Flute, spec: spec_model.Spec) -> flute_report.Rows:
             continue
         second = f.second_register if f.second_register is not None else f.note + 12
         table.append(f.closed)
-        targets.append(target_hz(spec.tuning, second) if second <= 127 else 2 * first)
+        targets.append(target_hz(inputs.tuning, second) if second <= 127 else 2 * first)
         registers.append(2)
         names.append(note_name(min(second, 127)))
         where.append(f.position)
@@ -242,11 +243,11 @@ class _Made:
     positions: tuple[float, ...]
 
 
-def _design(flute: spec_model.Flute, spec: spec_model.Spec, engine_head: EngineHead,
+def _design(flute: spec_model.Flute, inputs: FluteInputs, engine_head: EngineHead,
             cork: solve.CorkRange | None, rows: flute_report.Rows,
             limits: solve.HoleConstraints, air: GroupAir) -> _Made:
     """Solve the flute, then round it as cut (drills are already snapped)."""
-    stock = spec.stock_named(flute.stock)
+    stock = inputs.stock_named(flute.stock)
     assert stock is not None and stock.inside_diameter_m is not None
     bore_d, wall = stock.inside_diameter_m, stock.thickness_m
     fixed = tuple(solve.FixedHole(h.position_m, h.diameter_m) for h in flute.holes)
@@ -254,7 +255,7 @@ def _design(flute: spec_model.Flute, spec: spec_model.Spec, engine_head: EngineH
         design = solve.design_holes(
             Bore.cylinder(bore_d / 2), wall, engine_head, np.array(rows.closed, dtype=bool),
             np.array(rows.targets_hz), air.state, registers=np.array(rows.registers),
-            constraints=limits, fixed=fixed, drills_m=spec.fabrication.drills_m,
+            constraints=limits, fixed=fixed, drills_m=inputs.fabrication.drills_m,
             length_m=flute.length_m, radiation=flute.radiation,
             hole_radiation=HOLE_RADIATION[flute.radiation], losses=flute.losses,
             note_names=rows.names, cork=cork, end_wall_m=wall,
@@ -263,7 +264,7 @@ def _design(flute: spec_model.Flute, spec: spec_model.Spec, engine_head: EngineH
     except solve.DesignError as exc:
         raise PhysicsError.at(_where(flute, exc, rows.positions),
                               f"flute `{flute.id}`: {exc.message}", exc.hint) from None
-    step = spec.fabrication.precision_m
+    step = inputs.fabrication.precision_m
     length = flute.length_m or plain.round_to(design.length_m, step)
     positions = _as_cut(flute, design, limits, engine_head, step)
     cavity = design.cork_m if cork is None or not cork.free else plain.round_to(
@@ -275,21 +276,22 @@ def _design(flute: spec_model.Flute, spec: spec_model.Spec, engine_head: EngineH
     return _Made(design, instrument, positions)
 
 
-def prototype(flute: spec_model.Flute, spec: spec_model.Spec) -> Instrument:
+def prototype(inputs: FluteInputs) -> Instrument:
     """The flute as the uncalibrated model makes it, as cut: what a measured prototype is
     taken to be (``flute_calibration``)."""
-    air = group_air(flute.family, spec.environment, flute.environment)
-    stock = spec.stock_named(flute.stock)
+    flute = inputs.group
+    air = group_air(flute.family, inputs.environment, flute.environment)
+    stock = inputs.stock_named(flute.stock)
     assert stock is not None and stock.inside_diameter_m is not None
     engine_head, _, cork = _head(flute, stock.inside_diameter_m, stock.thickness_m)
     limits = _limits(flute)
     _check_fixed(flute, engine_head, limits.min_web_m)
-    return _design(flute, spec, engine_head, cork, _rows(flute, spec), limits, air).instrument
+    return _design(flute, inputs, engine_head, cork, _rows(flute, inputs), limits, air).instrument
 
 
-def jig(name: str | None, spec: spec_model.Spec) -> Jig:
+def jig(name: str | None, inputs: FluteInputs | SurveyInputs) -> Jig:
     """The sheet a holed tube's cutter parts come from: the spec's `jig`, else the default."""
-    item = spec.stock_named(name) if name is not None else None
+    item = inputs.stock_named(name) if name is not None else None
     if item is None:
         return Jig(DEFAULT_JIG_STOCK, DEFAULT_JIG_MATERIAL, DEFAULT_JIG_THICKNESS_M, "sheet")
     return Jig(item.name, item.material, item.thickness_m, item.kind)
@@ -306,18 +308,18 @@ def _limits(flute: spec_model.Flute) -> solve.HoleConstraints:
         max_span_m=c.max_span_m)
 
 
-def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
-        Group, list[Pipe], list[Note]]:
+def resolve_flute(inputs: FluteInputs) -> tuple[Group, list[Pipe], list[Note]]:
     """Place and size the holes (or predict fixed ones) and report every fingering."""
-    air = group_air(flute.family, spec.environment, flute.environment)
-    stock = spec.stock_named(flute.stock)
+    flute = inputs.group
+    air = group_air(flute.family, inputs.environment, flute.environment)
+    stock = inputs.stock_named(flute.stock)
     assert stock is not None and stock.inside_diameter_m is not None
     bore_d, wall = stock.inside_diameter_m, stock.thickness_m
     engine_head, head, cork = _head(flute, bore_d, wall)
-    rows = _rows(flute, spec)
+    rows = _rows(flute, inputs)
     limits = _limits(flute)
     _check_fixed(flute, engine_head, limits.min_web_m)
-    made = _design(flute, spec, engine_head, cork, rows, limits, air)
+    made = _design(flute, inputs, engine_head, cork, rows, limits, air)
     fit = calibration.uncalibrated()
     if flute.measured:
         # The prototype is the flute as the uncalibrated model made it; the head's fitted
@@ -326,7 +328,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         engine_head = replace(engine_head, extra_length_m=correction.extra_length_m)
         if correction.lip_cover is not None:
             engine_head = replace(engine_head, lip_coverage=correction.lip_cover)
-        made = _design(flute, spec, engine_head, cork, rows, limits, air)
+        made = _design(flute, inputs, engine_head, cork, rows, limits, air)
     design, instrument, positions = made.design, made.instrument, made.positions
     length, cavity = instrument.length_m, instrument.head.cavity_length_m
     if stock.length_m is not None and length > stock.length_m:
@@ -375,7 +377,7 @@ def resolve_flute(flute: spec_model.Flute, spec: spec_model.Spec) -> tuple[
         speaking_length_m=length - engine_head.mouth_position_m,
         cut_length_m=length, mouth=None, foot=None, block=None, stopper=None, head=head,
         holes=holes, fingerings=found.fingerings, curves=found.curves, source=flute.position,
-        jig=jig(flute.jig, spec))
+        jig=jig(flute.jig, inputs))
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=fit, holder=None, pipe_ids=(pipe.id,), source=flute.position)

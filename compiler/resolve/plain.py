@@ -11,7 +11,7 @@ from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir
-from compiler.spec.model import Fabrication, Measurement
+from compiler.spec.model import Measurement
 from compiler.spec.notes import note_name
 
 HARMONICS_REPORTED = 6
@@ -33,13 +33,13 @@ class Solved:
     cents_per_c: float
 
 
-def allowance_text(fab: Fabrication) -> str:
+def allowance_text(fraction: float, length_m: float) -> str:
     """The spec's tuning allowance as written: ``3 %``, ``10 mm`` or ``3 % + 5 mm``."""
-    share = f"{fab.allowance_fraction * 100:g} %"
-    length = f"{fab.allowance_m * 1000:g} mm"
-    if fab.allowance_fraction and fab.allowance_m:
+    share = f"{fraction * 100:g} %"
+    length = f"{length_m * 1000:g} mm"
+    if fraction and length_m:
         return f"{share} + {length}"
-    return share if fab.allowance_fraction else length
+    return share if fraction else length
 
 
 def round_to(value: float, step: float) -> float:

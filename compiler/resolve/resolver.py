@@ -21,6 +21,7 @@ from compiler.ir import (
     TuningReport,
 )
 from compiler.resolve import flue, materials, plain, tubes
+from compiler.resolve.inputs import G, GroupInputs, group_inputs
 from compiler.resolve.targets import tonic_name
 from compiler.spec import model as spec_model
 
@@ -48,6 +49,18 @@ USUAL_A4_HZ = (380.0, 480.0)
 pitch); ISO 16 sets 440 Hz (common practice, from memory)."""
 
 
+Resolution = tuple[Group, list[Pipe], list[Note]]
+"""A group, its pipes and its warnings."""
+
+
+def _job(spec: spec_model.Spec, group: G,
+         resolve_group: Callable[[GroupInputs[G]], Resolution]
+         ) -> tuple[GroupInputs[G], Callable[[], Resolution]]:
+    """A group's inputs (its cache key) and the resolution of exactly those."""
+    inputs = group_inputs(spec, group)
+    return inputs, partial(resolve_group, inputs)
+
+
 def _no_memo(_inputs: Any, make: Callable[[], Any]) -> Any:
     return make()
 
@@ -57,7 +70,7 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
     impossible.
 
     ``memo(inputs, make)`` may return a stored result for the same inputs (the build's
-    cache); each group depends only on itself and the spec's shared blocks. A spec written
+    cache); each group depends only on its ``GroupInputs``, its key. A spec written
     in inches gets its errors' and warnings' lengths in inches too.
     """
     inches = inches_for(spec.units, spec.fabrication.precision_m)
@@ -79,24 +92,20 @@ def resolve(spec: spec_model.Spec, memo: Memo = _no_memo) -> Resolved:
 def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
     from compiler.resolve import flutes, surveys  # numpy-heavy engine, loaded when needed
 
-    shared = (spec.environment, spec.tuning, spec.fabrication, spec.stock, spec.units)
-    work: list[tuple[Any, Callable[[], Any]]] = []
-    for rank in spec.ranks:
-        work.append((rank, partial(flue.resolve_rank, rank, spec)))
-    for tube_set in spec.tube_sets:
-        work.append((tube_set, partial(tubes.resolve_tube_set, tube_set, spec)))
-    for flute in spec.flutes:
-        work.append((flute, partial(flutes.resolve_flute, flute, spec)))
-    for survey in spec.surveys:
-        work.append((survey, partial(surveys.resolve_survey, survey, spec)))
+    # Each group is resolved from its inputs alone, which are also its cache key.
+    work: list[tuple[object, Callable[[], Resolution]]] = [
+        *(_job(spec, rank, flue.resolve_rank) for rank in spec.ranks),
+        *(_job(spec, tube_set, tubes.resolve_tube_set) for tube_set in spec.tube_sets),
+        *(_job(spec, flute, flutes.resolve_flute) for flute in spec.flutes),
+        *(_job(spec, survey, surveys.resolve_survey) for survey in spec.surveys)]
     groups: list[Group] = []
     pipes: list[Pipe] = []
     warnings: list[Note] = []
     failed: list[SpecError] = []
-    for subject, make in work:
+    for inputs, make in work:
         # Groups are independent: a problem in one does not hide those of the others.
         try:
-            group, made, notes = memo(("group", subject, shared), make)
+            group, made, notes = memo(inputs, make)
         except SpecError as exc:
             failed.append(exc)
             continue
@@ -113,6 +122,7 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
     fab = spec.fabrication
     stock = tuple(StockItem(s.name, s.kind, s.material, s.thickness_m, s.outside_diameter_m,
                             s.inside_diameter_m, s.length_m, s.width_m) for s in spec.stock)
+    allowance = plain.allowance_text(fab.allowance_fraction, fab.allowance_m)
     return Resolved(
         instrument=spec.instrument,
         slug=slug(spec.instrument),
@@ -122,7 +132,7 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
         fabrication=FabricationReport(
             sheet_length_m=fab.sheet_length_m, sheet_width_m=fab.sheet_width_m,
             kerf_m=fab.kerf_m, spacing_m=fab.spacing_m, precision_m=fab.precision_m,
-            seam_allowance_m=fab.seam_allowance_m, tuning_allowance=plain.allowance_text(fab),
+            seam_allowance_m=fab.seam_allowance_m, tuning_allowance=allowance,
             paper=fab.paper, dxf_version=fab.dxf_version, part_files=fab.part_files,
             units=spec.units, tube_kerf_m=fab.tube_kerf_m),
         stock=stock,

@@ -34,6 +34,7 @@ from compiler.ir import BoreStation, Curve, Fingering, Group, Head, Hole, Note, 
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir, group_air
 from compiler.resolve.flutes import HOLE_RADIATION, jig
+from compiler.resolve.inputs import SurveyInputs
 from compiler.resolve.targets import nearest_note, target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
@@ -293,7 +294,7 @@ def _predict(instrument: Instrument, air: GroupAir, rows: list[_Row]) -> _Predic
 
 
 def _report(rows: list[_Row], predicted: _Predicted,
-            spec: spec_model.Spec) -> tuple[list[Fingering], list[_Row]]:
+            tuning: spec_model.Tuning) -> tuple[list[Fingering], list[_Row]]:
     """Fingerings with a prediction, and the rows the model found no resonance for."""
     done, missing = [], []
     for i, row in enumerate(rows):
@@ -301,9 +302,9 @@ def _report(rows: list[_Row], predicted: _Predicted,
         if not math.isfinite(f):
             missing.append(row)
             continue
-        near, near_hz = nearest_note(spec.tuning, f)
+        near, near_hz = nearest_note(tuning, f)
         note = row.note if row.note is not None else near
-        target = target_hz(spec.tuning, note, row.frequency_hz)
+        target = target_hz(tuning, note, row.frequency_hz)
         done.append(Fingering(note=note_name(note), closed=row.closed, register=row.register,
                               target_hz=target, predicted_hz=f, error_cents=cents(f, target),
                               nearest_note=note_name(near), nearest_cents=cents(f, near_hz),
@@ -313,13 +314,13 @@ def _report(rows: list[_Row], predicted: _Predicted,
     return done, missing
 
 
-def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
-        Group, list[Pipe], list[Note]]:
+def resolve_survey(inputs: SurveyInputs) -> tuple[Group, list[Pipe], list[Note]]:
     """Predict every fingering of a measured instrument (nothing is changed)."""
+    survey = inputs.group
     name = f"survey `{survey.id}`"
-    air = group_air(FAMILY, spec.environment, survey.environment,
+    air = group_air(FAMILY, inputs.environment, survey.environment,
                     preset="breath" if survey.blowing_end in BREATH_ENDS else "room")
-    stock = spec.stock_named(survey.stock) if survey.stock is not None else None
+    stock = inputs.stock_named(survey.stock) if survey.stock is not None else None
     bore = _bore(survey)
     top_d = 2 * float(bore.radius_at(0.0))
     outside = (survey.outside_diameter_m or (stock.outside_diameter_m if stock else None)
@@ -334,7 +335,7 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
     holes = _holes(survey, bore, engine_head, outside)
     instrument = _instrument(survey, bore, engine_head, holes)
     rows = _rows(survey)
-    fingerings, missing = _report(rows, _predict(instrument, air, rows), spec)
+    fingerings, missing = _report(rows, _predict(instrument, air, rows), inputs.tuning)
     warnings = list(air.warnings)
     warnings += [Note(r.position, f"{name}: the model finds no register-{r.register} resonance "
                       f"for the fingering {pattern(r.closed)}; it is left out of the report")
@@ -346,7 +347,7 @@ def resolve_survey(survey: spec_model.Survey, spec: spec_model.Spec) -> tuple[
                               "fingering", "check the length, bore and holes as measured")
     warnings += stock_notes
     pipe = replace(_pipe(survey, air, instrument, engine_head, head, holes, (top_d, outside),
-                         fingerings, lowest, stock), jig=jig(survey.jig, spec))
+                         fingerings, lowest, stock), jig=jig(survey.jig, inputs))
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",
                   air=air.report, end_correction_model=survey.radiation,
                   calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,),

@@ -13,6 +13,7 @@ from compiler.errors import PhysicsError
 from compiler.ir import Group, Holder, Note, Pipe, Stopper
 from compiler.resolve import calibration, plain, trim
 from compiler.resolve.environment import GroupAir, group_air
+from compiler.resolve.inputs import TubeSetInputs
 from compiler.resolve.targets import target_hz
 from compiler.spec import model as spec_model
 from compiler.spec.notes import note_name
@@ -41,14 +42,14 @@ def _plug(tubes: spec_model.TubeSet, stock: spec_model.Stock) -> float:
     return tubes.plug_length_m or max(DEFAULT_PLUG_FRACTION * stock.inside_diameter_m, 0.01)
 
 
-def _choose_stock(tubes: spec_model.TubeSet, spec: spec_model.Spec, note: int, target: float,
+def _choose_stock(tubes: spec_model.TubeSet, inputs: TubeSetInputs, note: int, target: float,
                   air: GroupAir) -> spec_model.Stock:
     override = next((o for o in tubes.overrides if o.note == note), None)
     names = (override.stock,) if override and override.stock else tubes.stock
     candidates = []
     reasons = []
     for name in names:
-        stock = spec.stock_named(name)
+        stock = inputs.stock_named(name)
         assert stock is not None and stock.inside_diameter_m is not None
         length, _ = simple.solve_length(_acoustics(tubes, stock, 1.0), target, air.state,
                                         tubes.harmonic)
@@ -70,9 +71,9 @@ def _choose_stock(tubes: spec_model.TubeSet, spec: spec_model.Spec, note: int, t
     return min(candidates, key=lambda c: (c[0], c[1]))[2]
 
 
-def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
-        Group, list[Pipe], list[Note]]:
-    air = group_air(tubes.family, spec.environment)
+def resolve_tube_set(inputs: TubeSetInputs) -> tuple[Group, list[Pipe], list[Note]]:
+    tubes = inputs.group
+    air = group_air(tubes.family, inputs.environment)
     if tubes.family == "stopped-tube" and tubes.harmonic % 2 == 0:
         raise PhysicsError.at(tubes.where.get("harmonic", tubes.position),
                               f"tube set `{tubes.id}`: a stopped tube has only odd harmonics, "
@@ -80,19 +81,19 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
     chosen = {}
     for note in tubes.notes:
         override = next((o for o in tubes.overrides if o.note == note), None)
-        target = target_hz(spec.tuning, note, override.frequency_hz if override else None)
-        chosen[note] = (target, _choose_stock(tubes, spec, note, target, air))
+        target = target_hz(inputs.tuning, note, override.frequency_hz if override else None)
+        chosen[note] = (target, _choose_stock(tubes, inputs, note, target, air))
 
     def observe(m: spec_model.Measurement) -> calibration.Observation:
         target, stock = chosen[m.note]
-        fab = spec.fabrication
+        fab = inputs.fabrication
         return plain.observation(_acoustics(tubes, stock, 1.0), m, target, tubes.harmonic,
                                  air, fab.precision_m, (fab.allowance_fraction, fab.allowance_m))
 
     fit = calibration.fit_measured(tubes.measured, tuple(chosen), f"tube set `{tubes.id}`",
                                    "measure a tube of this set", observe)
     pipes = []
-    fab = spec.fabrication
+    fab = inputs.fabrication
     for note in tubes.notes:
         target, stock = chosen[note]
         name = note_name(note)
@@ -127,7 +128,7 @@ def resolve_tube_set(tubes: spec_model.TubeSet, spec: spec_model.Spec) -> tuple[
             source=tubes.position))
     holder = None
     if tubes.holder is not None:
-        plate = spec.stock_named(tubes.holder.stock)
+        plate = inputs.stock_named(tubes.holder.stock)
         assert plate is not None
         holder = Holder(plate.name, plate.material, plate.thickness_m, tubes.holder.spacing_m,
                         tubes.holder.margin_m, tubes.holder.clearance_m,

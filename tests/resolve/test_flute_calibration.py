@@ -19,6 +19,7 @@ from compiler.acoustics.playing import resonances
 from compiler.errors import PhysicsError
 from compiler.resolve.environment import group_air
 from compiler.resolve.flutes import prototype
+from compiler.resolve.inputs import group_inputs
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
 
@@ -32,7 +33,7 @@ def _measured_text(name: str, extra_m: float, lip: float | None,
     text = (EXAMPLES / f"{name}.yaml").read_text()
     spec = load_spec(text, f"{name}.yaml")
     flute = spec.flutes[0]
-    built = prototype(flute, spec)
+    built = prototype(group_inputs(spec, flute))
     head = replace(built.head, extra_length_m=extra_m,
                    lip_coverage=built.head.lip_coverage if lip is None else lip)
     true = replace(built, head=head)
@@ -78,7 +79,7 @@ def test_side_blown_fit_recovers_what_lip_cover_and_correction_do_together() -> 
     fit = resolve(spec).groups[0].calibration
     assert fit.rms_cents < 0.05
     flute = spec.flutes[0]
-    built = prototype(flute, spec)
+    built = prototype(group_inputs(spec, flute))
     air = group_air(flute.family, spec.environment, flute.environment).at_temperature(297.15)
     others = np.array([[c == "x" for c in f] for f in ("xxxxxxxo", "xxxxoooo", "xxoooooo",
                                                        "xooooooo")])

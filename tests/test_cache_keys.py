@@ -1,0 +1,205 @@
+"""Every cached unit of a build is computed from one frozen inputs object, which is also its
+cache key: a change to any value inside it gives another key, and a cached rebuild after an
+edit to the spec gives the same bytes as a cold build of the edited spec.
+
+The first tests change every field of every kind of inputs object (down to single float
+bits deep inside nested values) and check the key changes; the end-to-end tests edit the
+spec where a maker would and compare a warm rebuild with a cold one.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+import os
+import subprocess
+import sys
+from collections.abc import Iterator, Mapping
+from dataclasses import FrozenInstanceError, fields, is_dataclass
+from fractions import Fraction
+from pathlib import Path
+from types import MappingProxyType
+
+import pytest
+
+from compiler.build import build, compile_text
+from compiler.cache import FOLDER, key_of
+from compiler.emit import dxf
+from compiler.options import BuildOptions
+from compiler.resolve.inputs import GroupInputs, group_inputs
+from compiler.spec import load_spec
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLES = ROOT / "specs_examples"
+SAMPLES_PER_FIELD = 24
+"""Changed copies tried per field: spread evenly over the field's leaves."""
+
+
+def _leaves(value: object) -> int:
+    """How many single values ``_changes`` can change inside ``value``."""
+    if is_dataclass(value) and not isinstance(value, type):
+        return sum(_leaves(getattr(value, f.name)) for f in fields(value))
+    if isinstance(value, tuple):
+        return 1 + sum(_leaves(item) for item in value)
+    if isinstance(value, Mapping):
+        return 1 + sum(_leaves(item) for item in value.values())
+    return 1
+
+
+def _changes(value: object) -> Iterator[object]:
+    """Copies of ``value`` with one value inside it changed, for every value inside it
+    (a float by its smallest step, so a ``repr`` that rounds would be caught)."""
+    if isinstance(value, bool):
+        yield not value
+    elif isinstance(value, float):
+        yield math.nextafter(value, math.inf) if math.isfinite(value) else 0.0
+    elif isinstance(value, (int, Fraction)):
+        yield value + 1
+    elif isinstance(value, str):
+        yield value + "x"
+    elif value is None:
+        yield 0
+    elif is_dataclass(value) and not isinstance(value, type):
+        for f in fields(value):
+            for changed in _changes(getattr(value, f.name)):
+                made = copy.copy(value)
+                object.__setattr__(made, f.name, changed)
+                yield made
+    elif isinstance(value, tuple):
+        yield value[:-1] if value else (0,)
+        for i, item in enumerate(value):
+            for changed in _changes(item):
+                yield value[:i] + (changed,) + value[i + 1:]
+    elif isinstance(value, Mapping):
+        yield MappingProxyType({**value, "added": None})
+        for name, item in value.items():
+            for changed in _changes(item):
+                yield MappingProxyType({**value, name: changed})
+    else:
+        raise TypeError(f"no way to change a {type(value).__name__} is known: add one, and "
+                        "check that its repr shows every value it holds")
+
+
+def assert_every_field_is_in_the_key(inputs: object) -> int:
+    """Change every field of ``inputs`` (a sample of the values inside each) and check the
+    key changes each time; returns how many changes were tried."""
+    assert is_dataclass(inputs) and not isinstance(inputs, type)
+    with pytest.raises(FrozenInstanceError):
+        setattr(inputs, fields(inputs)[0].name, None)  # inputs must be frozen
+    before = key_of(inputs)
+    tried = 0
+    for f in fields(inputs):
+        assert f.repr, f"{type(inputs).__name__}.{f.name} is left out of the repr, the key"
+        value = getattr(inputs, f.name)
+        every = max(1, _leaves(value) // SAMPLES_PER_FIELD)
+        for k, changed in enumerate(_changes(value)):
+            if k % every:
+                continue
+            made = copy.copy(inputs)
+            object.__setattr__(made, f.name, changed)
+            assert key_of(made) != before, f"a change inside {f.name} keeps the key"
+            tried += 1
+    return tried
+
+
+def _spec(name: str) -> tuple[str, Path]:
+    path = EXAMPLES / name
+    return path.read_text(encoding="utf-8"), path
+
+
+# --- every field of every inputs object is in its key -------------------------------------
+
+GROUP_EXAMPLES = ["house-organ-principal.yaml", "blown-stopped-tubes.yaml",
+                  "duct-flute-d.yaml", "measured-reed-pipe-and-whistle.yaml"]
+
+
+@pytest.mark.parametrize("name", GROUP_EXAMPLES)
+def test_group_inputs_key_on_every_field(name: str) -> None:
+    text, path = _spec(name)
+    spec = load_spec(text, str(path))
+    groups = (*spec.ranks, *spec.tube_sets, *spec.flutes, *spec.surveys)
+    assert groups
+    for group in groups:
+        inputs: GroupInputs[object] = group_inputs(spec, group)  # type: ignore[type-var]
+        assert assert_every_field_is_in_the_key(inputs) > 20
+
+
+def test_group_inputs_hold_only_the_stock_the_group_names() -> None:
+    text, path = _spec("practice-organ-610.yaml")
+    spec = load_spec(text, str(path))
+    rank = spec.ranks[0]
+    inputs = group_inputs(spec, rank)
+    assert [s.name for s in inputs.stock] == [rank.stock]
+    assert inputs.stock_named(rank.stock) == spec.stock_named(rank.stock)
+    other = next(s.name for s in spec.stock if s.name != rank.stock)
+    with pytest.raises(LookupError, match="not among the inputs"):
+        inputs.stock_named(other)
+    text, path = _spec("blown-stopped-tubes.yaml")
+    spec = load_spec(text, str(path))
+    tubes = spec.tube_sets[0]
+    assert tubes.holder is not None
+    assert {s.name for s in group_inputs(spec, tubes).stock} == {*tubes.stock,
+                                                                 tubes.holder.stock}
+
+
+def test_dxf_files_key_on_every_field(tmp_path: Path) -> None:
+    text, path = _spec("blown-stopped-tubes.yaml")
+    compiled = compile_text(text, str(path), BuildOptions())
+    sheet = compiled.parts.sheets[0]
+    by_id = {p.id: p for p in compiled.parts.parts}
+    drawing = dxf.DxfFile(f"{sheet.id}.dxf", "r2010", (0.0, 0.0, sheet.length_mm,
+                                                       sheet.width_mm),
+                          dxf.sheet_entities(sheet, by_id))
+    assert assert_every_field_is_in_the_key(drawing) > 20
+
+
+# --- the keys are the same in every process ------------------------------------------------
+
+def test_cache_keys_do_not_depend_on_the_process(tmp_path: Path) -> None:
+    """Two builds in processes with different string hashing store the same entries (a
+    key holding a set's order or an object's address would never be found again)."""
+    _, path = _spec("house-organ-principal.yaml")
+    listings = []
+    for seed in ("1", "2"):
+        out = tmp_path / seed
+        env = {**os.environ, "PYTHONHASHSEED": seed}
+        subprocess.run([sys.executable, "-m", "compiler", "build", str(path), "-o", str(out)],
+                       check=True, env=env, cwd=ROOT, capture_output=True)
+        listings.append(sorted(p.name for p in (out / FOLDER).rglob("*") if p.is_file()))
+    assert len(listings[0]) > 10
+    assert listings[0] == listings[1]
+
+
+# --- a cached rebuild after an edit is a cold build of the edited spec ---------------------
+
+def _tree(folder: Path) -> dict[str, bytes]:
+    return {p.relative_to(folder).as_posix(): p.read_bytes()
+            for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+EDITS = [
+    # (example, text in the spec, its replacement, a file the edit must change)
+    ("house-organ-principal.yaml", "cutup: 1/4                  # of the mouth width",
+     "cutup: 2/7", "resolved.json"),
+    ("blown-stopped-tubes.yaml", "temperature: 21 C", "temperature: 25 C", "resolved.json"),
+    ("stopped-wood-gedackt.yaml", "kerf: 3 mm", "kerf: 2.5 mm",
+     "sheet-01-pine.dxf"),
+    ("stopped-wood-gedackt.yaml", "board: {thickness: 12 mm", "board: {thickness: 15 mm",
+     "resolved.json"),
+    ("measured-reed-pipe-and-whistle.yaml", "{from_bottom: 62 mm, diameter: 6 mm",
+     "{from_bottom: 62 mm, diameter: 6.5 mm", "resolved.json"),
+]
+
+
+@pytest.mark.parametrize(("name", "old", "new", "changed"), EDITS,
+                         ids=[f"{e[0].split('.')[0]}:{e[2]}" for e in EDITS])
+def test_cached_rebuild_after_an_edit_is_a_cold_build(tmp_path: Path, name: str, old: str,
+                                                      new: str, changed: str) -> None:
+    text, path = _spec(name)
+    assert text.count(old) == 1
+    edited = text.replace(old, new)
+    before = _tree(build(text, str(path), tmp_path / "warm", BuildOptions()))
+    warm = _tree(build(edited, str(path), tmp_path / "warm", BuildOptions()))
+    cold = _tree(build(edited, str(path), tmp_path / "cold", BuildOptions(), use_cache=False))
+    assert warm == cold
+    assert changed in warm and warm[changed] != before[changed]
