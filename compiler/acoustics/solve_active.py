@@ -256,6 +256,10 @@ def advice(req: Request, g: Geometry, binding: list[Limit]) -> str:
             text = f"a span wider than {span:.1f} mm between holes {h + 1} and {o + 1} (`max_span`)"
         elif limit.kind == "foot":
             text = f"more tube below hole {h + 1}"
+        elif limit.kind == "cork-low" and req.cork is not None and req.cork.low_is_hole_edge:
+            text = ("a shorter head cavity, which this embouchure hole does not leave room "
+                    f"for (the cork already sits at its edge, {req.cork.low_m * MM:.1f} mm "
+                    "above the centre)")
         elif limit.kind == "cork-low" and req.cork is not None:
             text = f"a shorter cork (closer than {req.cork.low_m * MM:.1f} mm: set `cork`)"
         elif limit.kind == "cork-high" and req.cork is not None:

@@ -87,6 +87,8 @@ class CorkRange:
     low_m: float
     high_m: float
     start_m: float
+    low_is_hole_edge: bool = False
+    """The lowest place is the embouchure hole's edge (a nearer cork would sit in the hole)."""
 
     @property
     def free(self) -> bool:

@@ -33,6 +33,9 @@ ABOVE_CORK_M = 0.015
 CORK_ROOM_M = 0.005
 """A free cork stays at least this far below the top end, room for the cork itself (our
 choice)."""
+CORK_RIM_M = 0.001
+"""A free cork keeps at least this much wall between the embouchure hole's upper edge and its
+face (our choice): a cork face inside the hole would close part of it."""
 LIP_COVER = 0.25
 """Fraction of the embouchure hole the lip covers when the spec does not say: players cover
 about a quarter to a third (common practice, from memory). A quarter, the lower end: the
@@ -54,6 +57,18 @@ SENSITIVITY_STEP_K = 0.5
 
 def _at(flute: spec_model.Flute, key: str) -> Position:
     return flute.where.get(key) or flute.where.get("head") or flute.position
+
+
+def check_cork_clear(cork_m: float, embouchure_d: float, where: Position, name: str) -> None:
+    """A cork measured or given from the embouchure centre must sit above the hole's upper
+    edge (half the hole's diameter): its face cannot be inside the hole."""
+    if cork_m < embouchure_d / 2 - 1e-9:
+        raise PhysicsError.at(where, f"{name}: a cork {cork_m * 1000:.1f} mm above the "
+                              f"embouchure centre lies inside the {embouchure_d * 1000:.1f} mm "
+                              f"hole (its upper edge is {embouchure_d * 500:.1f} mm above the "
+                              "centre)",
+                              "measure `cork` from the hole's centre up to the cork's face; "
+                              "corks usually sit about 0.8 to 1 bore diameter above the centre")
 
 
 def _head(flute: spec_model.Flute, bore_d: float,
@@ -106,8 +121,13 @@ def _head(flute: spec_model.Flute, bore_d: float,
                               "make `cork` smaller than `embouchure.from_top`, or move the hole "
                               "further down")
     if h.cork_m is not None:
+        check_cork_clear(h.cork_m, h.embouchure_diameter_m, _at(flute, "head.cork"), name)
         cork = solve.CorkRange(h.cork_m, h.cork_m, h.cork_m)
     else:
+        # Never closer than the hole's edge and a rim: a nearer cork is no option to offer.
+        rim = h.embouchure_diameter_m / 2 + CORK_RIM_M
+        at_rim = rim >= low
+        low = max(low, rim)
         high = min(high, mouth - CORK_ROOM_M)
         if high <= low:
             raise PhysicsError.at(_at(flute, "head.embouchure.from_top"),
@@ -115,7 +135,7 @@ def _head(flute: spec_model.Flute, bore_d: float,
                                   f"top leaves no room for a cork {low * 1000:.1f} mm or more "
                                   "above it",
                                   "move the embouchure hole further down, or give `cork`")
-        cork = solve.CorkRange(low, high, min(max(bore_d, low), high))
+        cork = solve.CorkRange(low, high, min(max(bore_d, low), high), at_rim)
     engine = EngineHead("embouchure", mouth_position_m=mouth,
                         embouchure_radius_m=h.embouchure_diameter_m / 2,
                         embouchure_chimney_m=wall, cavity_length_m=cork.start_m,

@@ -33,7 +33,7 @@ from compiler.errors import PhysicsError, Position
 from compiler.ir import BoreStation, Curve, Fingering, Group, Head, Hole, Note, Pipe
 from compiler.resolve import calibration
 from compiler.resolve.environment import GroupAir, group_air
-from compiler.resolve.flutes import HOLE_RADIATION, jig
+from compiler.resolve.flutes import HOLE_RADIATION, check_cork_clear, jig
 from compiler.resolve.inputs import SurveyInputs
 from compiler.resolve.targets import nearest_note, target_hz
 from compiler.spec import model as spec_model
@@ -142,6 +142,7 @@ def _head(survey: spec_model.Survey, bore: Bore) -> tuple[EngineHead, Head]:
                                   f"({_mm(bore_d)}) or wider",
                                   "check the hole's diameter and the bore")
         cork = h.cork_m if h.cork_m is not None else min(bore_d, mouth)
+        check_cork_clear(cork, diameter, at("head.cork"), name)
         if cork > mouth:
             raise PhysicsError.at(at("head.cork"), f"{name}: a cork {_mm(cork)} above the "
                                   f"embouchure hole would sit above the top end (the hole is "
