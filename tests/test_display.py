@@ -115,3 +115,20 @@ def test_an_inch_specs_error_names_inches(tmp_path: Path,
     err = capsys.readouterr().err
     assert code == 1, err
     assert " in = " in err and " mm" in err
+
+
+def test_every_length_in_an_inch_ranks_cut_list_notes_is_in_inches(tmp_path: Path) -> None:
+    # Rolled metal pipes in inches: the body's roll diameter and seam strip, the foot's toe,
+    # top and pattern radii, the cap's rim. In cut-list.csv each length in mm in a note has
+    # its fraction of an inch before it ("2 1/8 in = 54.0 mm").
+    import re
+
+    spec = tmp_path / "rank.yaml"
+    spec.write_text((ROOT / "tests" / "cases" / "organ-ranks-inch" / "spec.yaml").read_text())
+    folder = build(spec.read_bytes(), str(spec), tmp_path / "out", BuildOptions())
+    rows = list(csv.DictReader(io.StringIO((folder / "cut-list.csv").read_text())))
+    notes = [r["note"] for r in rows if r["what"] in ("body", "foot", "cap")]
+    assert any("pattern radii" in n for n in notes)
+    for note in notes:
+        for match in re.finditer(r"(\d+(?:\.\d+)?) mm", note):
+            assert note[:match.start()].endswith(" in = "), note

@@ -174,7 +174,7 @@ def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
     toe_hole = mm(pipe.foot.toe_hole_m)
     note = (f"cone from {mm(pipe.foot.toe_diameter_m):.1f} mm (toe) to "
             f"{mm(pipe.foot.top_diameter_m):.1f} mm inside; pattern radii "
-            f"{pattern.inner_radius:.1f}/{pattern.outer_radius:.1f} mm, "
+            f"{pattern.inner_radius:.1f} mm and {pattern.outer_radius:.1f} mm, "
             f"{pattern.angle_deg:.2f}°")
     toe = mm(pipe.foot.toe_diameter_m)
     if abs(toe_hole - toe) > 0.05:
