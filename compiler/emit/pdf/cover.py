@@ -36,12 +36,15 @@ WARNINGS_SHOWN = 12
 
 def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
     """The fabrication settings that apply to this build: sheet, spacing and seam only where
-    parts are nested on sheets or rolled; the tuning allowance only where it is added."""
+    parts are nested on sheets (a flute's or a copy's jig too) or rolled; the tuning
+    allowance only where it is added (not to flutes, cut to their solved length, nor to
+    instruments as measured)."""
     fab = resolved.fabrication
     inches = inches_of(fab)
     constructions = {p.construction for p in resolved.pipes}
     nested = bool(constructions & {"rolled-sheet", "boards"}) or any(
-        g.holder is not None for g in resolved.groups)
+        g.holder is not None for g in resolved.groups) or any(
+        p.jig is not None for p in resolved.pipes)
     items = [("work to", f"{length(fab.precision_m, inches)} (fabrication precision)")]
     if nested:
         items += [("sheet size", f"{length(fab.sheet_length_m, inches)} × "
@@ -52,7 +55,7 @@ def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
         items.append(("kerf", length(fab.kerf_m, inches)))
     if "rolled-sheet" in constructions:
         items.append(("seam allowance", length(fab.seam_allowance_m, inches)))
-    if any(g.kind != "flute" for g in resolved.groups):
+    if any(g.kind not in ("flute", "survey") for g in resolved.groups):
         items.append(("tuning allowance", fab.tuning_allowance))
     return tuple(items)
 

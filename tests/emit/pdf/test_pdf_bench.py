@@ -111,9 +111,15 @@ def test_flute_cover_shows_no_sheet_or_seam_settings(tmp_path: Path) -> None:
     spec = EXAMPLES / "duct-flute-d.yaml"
     folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions())
     cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
-    assert "sheet size" not in cover and "seam allowance" not in cover
+    assert "seam allowance" not in cover
     assert "tuning allowance" not in cover  # flutes are cut to their solved length
-    assert "kerf" in cover  # the tube is still sawn
+    assert "kerf, spacing" in cover  # the tube is sawn, its jig nested on a sheet
+    assert "sheet size" in cover
+    # An instrument as measured is not cut to a length: no tuning allowance.
+    survey = EXAMPLES / "measured-reed-pipe-and-whistle.yaml"
+    folder = build(survey.read_bytes(), str(survey), tmp_path, BuildOptions())
+    cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
+    assert "tuning allowance" not in cover and "seam allowance" not in cover
     organ = EXAMPLES / "house-organ-principal.yaml"
     folder = build(organ.read_bytes(), str(organ), tmp_path, BuildOptions())
     cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
