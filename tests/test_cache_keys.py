@@ -25,6 +25,7 @@ import pytest
 from compiler.build import build, compile_text
 from compiler.cache import FOLDER, key_of
 from compiler.emit import dxf
+from compiler.geometry.layout import PipePartsInputs
 from compiler.options import BuildOptions
 from compiler.resolve.inputs import GroupInputs, group_inputs
 from compiler.spec import load_spec
@@ -142,6 +143,18 @@ def test_group_inputs_hold_only_the_stock_the_group_names() -> None:
                                                                  tubes.holder.stock}
 
 
+@pytest.mark.parametrize("name", ["house-organ-principal.yaml", "stopped-wood-gedackt.yaml",
+                                  "blown-stopped-tubes.yaml", "duct-flute-d.yaml"])
+def test_pipe_parts_inputs_key_on_every_field(name: str) -> None:
+    text, path = _spec(name)
+    resolved = compile_text(text, str(path), BuildOptions()).resolved
+    stock = {s.name: s.thickness_m for s in resolved.stock}
+    for pipe in (resolved.pipes[0], resolved.pipes[-1]):
+        inputs = PipePartsInputs(pipe, resolved.fabrication.kerf_m,
+                                 resolved.fabrication.seam_allowance_m, stock.get(pipe.stock))
+        assert assert_every_field_is_in_the_key(inputs) > 20
+
+
 def test_dxf_files_key_on_every_field(tmp_path: Path) -> None:
     text, path = _spec("blown-stopped-tubes.yaml")
     compiled = compile_text(text, str(path), BuildOptions())
@@ -178,27 +191,34 @@ def _tree(folder: Path) -> dict[str, bytes]:
 
 
 EDITS = [
-    # (example, text in the spec, its replacement, a file the edit must change)
+    # (example, text in the spec, the text before the edit, after it, a file the edit must
+    # change). Edits keep every line where it was, so no spec position moves.
     ("house-organ-principal.yaml", "cutup: 1/4                  # of the mouth width",
-     "cutup: 2/7", "resolved.json"),
-    ("blown-stopped-tubes.yaml", "temperature: 21 C", "temperature: 25 C", "resolved.json"),
-    ("stopped-wood-gedackt.yaml", "kerf: 3 mm", "kerf: 2.5 mm",
+     "cutup: 1/4", "cutup: 2/7", "resolved.json"),
+    ("blown-stopped-tubes.yaml", "temperature: 21 C", "temperature: 21 C",
+     "temperature: 25 C", "resolved.json"),
+    ("stopped-wood-gedackt.yaml", "kerf: 3 mm", "kerf: 3 mm", "kerf: 2.5 mm",
      "sheet-01-pine.dxf"),
-    ("stopped-wood-gedackt.yaml", "board: {thickness: 12 mm", "board: {thickness: 15 mm",
-     "resolved.json"),
+    ("house-organ-principal.yaml", "kerf: 0.2 mm", "kerf: 0.2 mm\n  seam_allowance: 6 mm",
+     "kerf: 0.2 mm\n  seam_allowance: 8 mm", "sheet-01-spotted-metal.dxf"),
+    ("stopped-wood-gedackt.yaml", "board: {thickness: 12 mm", "board: {thickness: 12 mm",
+     "board: {thickness: 15 mm", "resolved.json"),
     ("measured-reed-pipe-and-whistle.yaml", "{from_bottom: 62 mm, diameter: 6 mm",
-     "{from_bottom: 62 mm, diameter: 6.5 mm", "resolved.json"),
+     "{from_bottom: 62 mm, diameter: 6 mm", "{from_bottom: 62 mm, diameter: 6.5 mm",
+     "resolved.json"),
 ]
 
 
-@pytest.mark.parametrize(("name", "old", "new", "changed"), EDITS,
-                         ids=[f"{e[0].split('.')[0]}:{e[2]}" for e in EDITS])
-def test_cached_rebuild_after_an_edit_is_a_cold_build(tmp_path: Path, name: str, old: str,
-                                                      new: str, changed: str) -> None:
+@pytest.mark.parametrize(("name", "spot", "old", "new", "changed"), EDITS,
+                         ids=[f"{e[0].split('.')[0]}:{e[3].split(chr(10))[-1].strip()}"
+                              for e in EDITS])
+def test_cached_rebuild_after_an_edit_is_a_cold_build(tmp_path: Path, name: str, spot: str,
+                                                      old: str, new: str,
+                                                      changed: str) -> None:
     text, path = _spec(name)
-    assert text.count(old) == 1
-    edited = text.replace(old, new)
-    before = _tree(build(text, str(path), tmp_path / "warm", BuildOptions()))
+    assert text.count(spot) == 1
+    original, edited = text.replace(spot, old), text.replace(spot, new)
+    before = _tree(build(original, str(path), tmp_path / "warm", BuildOptions()))
     warm = _tree(build(edited, str(path), tmp_path / "warm", BuildOptions()))
     cold = _tree(build(edited, str(path), tmp_path / "cold", BuildOptions(), use_cache=False))
     assert warm == cold

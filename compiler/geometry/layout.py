@@ -9,7 +9,8 @@ at once as one :class:`~compiler.errors.GeometryError`, each at the pipe's spec 
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import replace
+from dataclasses import dataclass, replace
+from functools import partial
 from typing import Any
 
 from compiler.display import in_inches, inches_for
@@ -45,13 +46,27 @@ def sheet_size(resolved: Resolved, stock_name: str) -> SheetSize:
                      mm(min(fab.sheet_length_m, fab.sheet_width_m)))
 
 
-def _pipe_drafts(pipe: Pipe, resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:
+@dataclass(frozen=True)
+class PipePartsInputs:
+    """Everything one pipe's parts are made from, and so their cache key: ``pipe_parts``
+    reads nothing else."""
+
+    pipe: Pipe
+    kerf_m: float
+    """The cutter's kerf (the parts' cut paths are offset by half of it)."""
+    seam_allowance_m: float
+    """Rolled pipes: the overlap left at the seam."""
+    stock_thickness_m: float | None
+    """Pipes of boards: the thickness of the pipe's stock, when the spec lists it (used
+    when the pipe gives no wall)."""
+
+
+def _pipe_drafts(inputs: PipePartsInputs) -> list[Draft]:
+    pipe = inputs.pipe
     if pipe.construction == "rolled-sheet":
-        return rolled_drafts(pipe, resolved.fabrication)
+        return rolled_drafts(pipe, inputs.seam_allowance_m)
     if pipe.construction == "boards":
-        thickness = pipe.wall_m or (stock[pipe.stock].thickness_m if pipe.stock in stock
-                                    else 0.0)
-        return board_drafts(pipe, thickness)
+        return board_drafts(pipe, pipe.wall_m or inputs.stock_thickness_m or 0.0)
     drafts: list[Draft] = []
     if pipe.holes or pipe.head is not None or pipe.mouth is not None:
         drafts.append(template(pipe))
@@ -101,14 +116,15 @@ def _finished(drafts: list[Draft], kerf: float) -> tuple[list[Part], list[Proble
     return parts, problems, {d.id: d.area_mm2 for d in drafts}, {d.id: d.source for d in drafts}
 
 
-def _pipe_parts(pipe: Pipe, resolved: Resolved, stock: dict[str, StockItem],
-                kerf: float) -> tuple[list[Part], list[Problem], dict[str, float],
-                                      dict[str, Position]]:
+def pipe_parts(inputs: PipePartsInputs) -> tuple[list[Part], list[Problem], dict[str, float],
+                                                dict[str, Position]]:
+    """One pipe's finished parts, the problems found, and each part's true area and spec
+    position (for nesting)."""
     try:
-        drafts = _pipe_drafts(pipe, resolved, stock)
+        drafts = _pipe_drafts(inputs)
     except GeometryError as err:
         return [], list(err.problems), {}, {}
-    return _finished(drafts, kerf)
+    return _finished(drafts, mm(inputs.kerf_m))
 
 
 def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> Parts:
@@ -121,21 +137,20 @@ def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> 
     """
     del options
     stock = {s.name: s for s in resolved.stock}
-    kerf = mm(resolved.fabrication.kerf_m)
+    fab = resolved.fabrication
+    kerf = mm(fab.kerf_m)
     problems: list[Problem] = []
     parts: list[Part] = []
     areas: dict[str, float] = {}
     sources: dict[str, Position] = {}
     cuts: list[TubeCut] = []
     for pipe in resolved.pipes:
-        # A pipe's parts depend on the pipe, the fabrication settings and its stock only:
-        # ``memo`` may hand back those of an earlier, identical build.
-        def make(p: Pipe = pipe) -> tuple[list[Part], list[Problem], dict[str, float],
-                                          dict[str, Position]]:
-            return _pipe_parts(p, resolved, stock, kerf)
-
-        made, found, area, source = memo(
-            ("pipe-parts", pipe, resolved.fabrication, stock.get(pipe.stock)), make)
+        # A pipe's parts are made from its inputs alone: ``memo`` may hand back those of an
+        # earlier build with the same inputs.
+        item = stock.get(pipe.stock)
+        inputs = PipePartsInputs(pipe, fab.kerf_m, fab.seam_allowance_m,
+                                 item.thickness_m if item is not None else None)
+        made, found, area, source = memo(inputs, partial(pipe_parts, inputs))
         parts += made
         problems += found
         areas.update(area)
@@ -155,7 +170,6 @@ def layout(resolved: Resolved, options: BuildOptions, memo: Memo = _no_memo) -> 
         sheets = nest(parts, areas, sizes, mm(resolved.fabrication.spacing_m), sources)
     except GeometryError as err:
         problems += err.problems
-    fab = resolved.fabrication
     saw = mm(fab.kerf_m if fab.tube_kerf_m is None else fab.tube_kerf_m)
     bought, found = stock_plan.plan(cuts, stock, saw,
                                     {p.id: p.source for p in resolved.pipes})

@@ -25,7 +25,7 @@ from compiler.geometry.drafts import Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline
 from compiler.geometry.paths import bounds, bulge_for, closed, line, moved
 from compiler.geometry.units import mm
-from compiler.ir import FabricationReport, Pipe
+from compiler.ir import Pipe
 
 TICK_MM = 5.0
 """Length of the short marks on a rolled body (front line, speaking length): ticks rather
@@ -81,12 +81,12 @@ def _draft(pipe: Pipe, name: str, width: float, height: float, outline: Polyline
                  marks=marks, source=pipe.source, note=note, length_along_x=along_x)
 
 
-def body(pipe: Pipe, fab: FabricationReport) -> Draft:
+def body(pipe: Pipe, seam_allowance_m: float) -> Draft:
     """The body's development with the mouth notch, the seam line and front ticks."""
     assert pipe.inside_diameter_m is not None
     t = mm(pipe.wall_m)
     circ = neutral_circumference(mm(pipe.inside_diameter_m), t)
-    seam = mm(fab.seam_allowance_m)
+    seam = mm(seam_allowance_m)
     width, height = circ + seam, mm(pipe.cut_length_m)
     front = circ / 2.0
     pts = [(0.0, 0.0)]
@@ -138,14 +138,14 @@ def _sector(pattern: SectorPattern, seam: float) -> tuple[Polyline, float]:
     return closed("cut-outer", pts, [bulge, 0.0, -bulge, 0.0, 0.0, 0.0]), math.degrees(half)
 
 
-def foot(pipe: Pipe, fab: FabricationReport) -> Draft:
+def foot(pipe: Pipe, seam_allowance_m: float) -> Draft:
     """The conical foot's development, from the toe (inner arc) to the languid."""
     assert pipe.foot is not None
     t = mm(pipe.wall_m)
     small = mm(pipe.foot.toe_diameter_m) + t
     large = mm(pipe.foot.top_diameter_m) + t
     length = mm(pipe.foot.length_m)
-    seam = mm(fab.seam_allowance_m)
+    seam = mm(seam_allowance_m)
     if length <= 0 or small <= t:
         raise pipe_error(pipe, "the foot needs a length and a toe diameter",
                     "check the foot's length and toe")
@@ -219,13 +219,13 @@ def cap(pipe: Pipe) -> Draft:
                   f"turn the {rim:.1f} mm rim down over the body at the marked circle")
 
 
-def rolled_drafts(pipe: Pipe, fab: FabricationReport) -> list[Draft]:
+def rolled_drafts(pipe: Pipe, seam_allowance_m: float) -> list[Draft]:
     """All sheet parts of one rolled pipe, in a fixed order."""
     if pipe.inside_diameter_m is None:
         raise pipe_error(pipe, "a rolled pipe needs an inside diameter", "give a round scale")
-    drafts = [body(pipe, fab)]
+    drafts = [body(pipe, seam_allowance_m)]
     if pipe.foot is not None:
-        drafts.append(foot(pipe, fab))
+        drafts.append(foot(pipe, seam_allowance_m))
     if pipe.mouth is not None:
         drafts.append(languid(pipe))
     if pipe.family.startswith("stopped"):
