@@ -13,7 +13,6 @@ from collections.abc import Callable, Sequence
 from reportlab.pdfgen.canvas import Canvas
 
 from compiler.display import Inches
-from compiler.emit.pdf import dimensions as D
 from compiler.emit.pdf import duct_block, fingering
 from compiler.emit.pdf.document import (
     Block,
@@ -27,7 +26,7 @@ from compiler.emit.pdf.document import (
     flow,
     wrap,
 )
-from compiler.emit.pdf.sideview import build_view, draw_view
+from compiler.emit.pdf.sideview import draw_view
 from compiler.emit.pdf.style import (
     FONT,
     FONT_BOLD,
@@ -48,6 +47,8 @@ from compiler.emit.pdf.style import (
     speed,
     strip_prefix,
 )
+from compiler.geometry import dimensions as D
+from compiler.geometry.side_view import side_view
 from compiler.ir import Group, Mouth, Pipe, Resolved
 
 SECTION = "Pipes"
@@ -80,10 +81,35 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
     return out
 
 
+FAMILY_WORDS = {
+    "open-flue": "open flue pipe",
+    "stopped-flue": "stopped flue pipe",
+    "stopped-tube": "stopped tube",
+    "open-tube": "open tube",
+    "duct-flute": "duct flute",
+    "side-blown-flute": "side-blown flute",
+    "survey": "survey (as measured)",
+}
+
+CONSTRUCTION_WORDS = {
+    "rolled-sheet": "rolled sheet",
+    "boards": "boards",
+    "stock-tube": "stock tube",
+}
+
+
+def family_words(family: str) -> str:
+    return FAMILY_WORDS.get(family, family)
+
+
+def construction_words(construction: str) -> str:
+    return CONSTRUCTION_WORDS.get(construction, construction)
+
+
 def describe(pipe: Pipe) -> str:
     """One line: note, kind, construction, stock and material."""
-    return (f"{pipe.note} · {D.family_words(pipe.family)} · "
-            f"{D.construction_words(pipe.construction)} · stock {pipe.stock} ({pipe.material})")
+    return (f"{pipe.note} · {family_words(pipe.family)} · "
+            f"{construction_words(pipe.construction)} · stock {pipe.stock} ({pipe.material})")
 
 
 def _two_col(name: str, inches: Inches | None) -> tuple[Column, ...]:
@@ -190,7 +216,7 @@ def _pipe_page(pipe: Pipe, group: Group, inches: Inches | None) -> Draw:
         width = frame.content_width
         holes = holes_table(pipe, inches) if pipe.holes else None
         holes_h = holes.height(width) + 10 * MM if holes else 0.0
-        view = build_view(pipe, inches)
+        view = side_view(pipe)
         view_h = top - frame.bottom - holes_h - 6 * MM
         note = draw_view(c, view, frame.left, frame.bottom + holes_h + 6 * MM, VIEW_WIDTH,
                          view_h, inches)
@@ -266,13 +292,13 @@ def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str,
 
     def draw(c: Canvas, frame: Frame) -> None:
         _title(c, frame, f"{group.id}: {len(pipes)} pipes, {pipes[0].note} to {pipes[-1].note}"
-               f" (table {part})", f"{D.family_words(group.family)} · "
-               f"{D.construction_words(group.construction)} · stock "
+               f" (table {part})", f"{family_words(group.family)} · "
+               f"{construction_words(group.construction)} · stock "
                f"{', '.join(sorted({p.stock for p in pipes}))} ({first.material}) · one row "
                "per pipe, lengths in mm")
         top = frame.top - TITLE_BAND
         key_w = 62 * MM
-        draw_view(c, build_view(first, inches), frame.left, top - KEY_BAND + 6 * MM, key_w,
+        draw_view(c, side_view(first), frame.left, top - KEY_BAND + 6 * MM, key_w,
                   KEY_BAND - 8 * MM, inches, key=True)
         c.setFont(FONT, 7)
         c.setFillColor(GREY)

@@ -1,22 +1,21 @@
 """Dimensioned side view of one pipe: its outline, mouth or head, holes, and dimension lines.
 
-The view is built in the pipe's own millimetres (x across, centred; y up from the bottom
-end), then fitted into a box on the page: lengths along the pipe get dimension lines on the
-right (stacked so labels never overlap), widths get dimension lines above or below, and
-features (mouth, toe hole, stopper, holes) get leader callouts on the left. In *key* mode
-the labels are the dimensions' letters, for the drawing at the head of a rank's table.
+The view itself (what is drawn, in the pipe's own millimetres) is the geometry stage's
+(``compiler.geometry.side_view``); here it is fitted into a box on the page and worded:
+lengths along the pipe get dimension lines on the right (stacked so labels never overlap),
+widths get dimension lines above or below, and features (mouth, toe hole, stopper, holes)
+get leader callouts on the left. In *key* mode the labels are the dimensions' letters, for
+the drawing at the head of a rank's table.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 
 from compiler.display import Inches
-from compiler.emit.pdf import dimensions as D
 from compiler.emit.pdf.document import wrap
 from compiler.emit.pdf.style import (
     ACCENT,
@@ -28,227 +27,59 @@ from compiler.emit.pdf.style import (
     LIGHT,
     MM,
     mm,
+    mm_of,
 )
-from compiler.ir import Head, Pipe
+from compiler.geometry import dimensions as D
+from compiler.geometry import side_view as V
+from compiler.geometry.side_view import Callout, Point, Shape, VDim, View
 
-Point = tuple[float, float]
 ToPage = Callable[[float, float], Point]
 """Maps the pipe's millimetres to page points."""
 
 
-@dataclass(frozen=True)
-class Shape:
-    style: str
-    """``outline``, ``hidden`` (dashed), ``centre`` (chain line), ``opening`` (dark fill),
-    ``solid`` (hatched: block, stopper, plug), ``tint`` (tuning allowance)."""
-    points: tuple[Point, ...]
-    closed: bool = True
-
-
-@dataclass(frozen=True)
-class HoleMark:
-    x: float
-    y: float
-    radius: float
-    hidden: bool
-
-
-@dataclass(frozen=True)
-class VDim:
-    y0: float
-    y1: float
-    dim: D.Dim
-
-
-@dataclass(frozen=True)
-class HDim:
-    x0: float
-    x1: float
-    y: float
-    dim: D.Dim
-    above: bool
-
-
-@dataclass(frozen=True)
-class Callout:
-    x: float
-    y: float
-    text: str
-    key_text: str
-
-
-@dataclass(frozen=True)
-class View:
-    half_width: float
-    height: float
-    shapes: tuple[Shape, ...]
-    holes: tuple[HoleMark, ...]
-    vdims: tuple[VDim, ...]
-    hdims: tuple[HDim, ...]
-    callouts: tuple[Callout, ...]
-
-
-def _rect(style: str, x0: float, y0: float, x1: float, y1: float) -> Shape:
-    return Shape(style, ((x0, y0), (x1, y0), (x1, y1), (x0, y1)))
-
-
-def _line(style: str, a: Point, b: Point) -> Shape:
-    return Shape(style, (a, b), closed=False)
-
-
-def _k(dims: dict[str, D.Dim], *names: str) -> str:
-    return " × ".join(dims[n].key for n in names if n in dims and dims[n].key)
-
-
-def build_view(pipe: Pipe, inches: Inches | None) -> View:
-    """The side view of a resolved pipe, in its own millimetres."""
-    dims = D.by_name(D.dimensions(pipe))
-    shapes: list[Shape] = []
-    holes: list[HoleMark] = []
-    vdims: list[VDim] = []
-    hdims: list[HDim] = []
-    calls: list[Callout] = []
-
-    def size(name: str) -> str:
-        return mm(dims[name].value_m)
-
-    cut = pipe.cut_length_m * 1000.0
-    speaking = pipe.speaking_length_m * 1000.0
-    if pipe.section == "rect":
-        inner = (pipe.inside_width_m or 0.0) * 500.0
-    else:
-        inner = (pipe.inside_diameter_m or 0.0) * 500.0
-    outer = inner + pipe.wall_m * 1000.0
-    if pipe.construction == "stock-tube" and pipe.outside_diameter_m:
-        outer = pipe.outside_diameter_m * 500.0
-    base = 0.0  # the lower lip (flue pipes), or the bottom end
-    if pipe.foot is not None:
-        base = pipe.foot.length_m * 1000.0
-        toe = pipe.foot.toe_diameter_m * 500.0
-        shapes.append(Shape("outline", ((-toe, 0.0), (toe, 0.0), (inner, base), (-inner, base))))
-        vdims.append(VDim(0.0, base, dims[D.FOOT]))
-        hdims.append(HDim(-toe, toe, 0.0, dims[D.TOE], above=False))
-        calls.append(Callout(0.0, 0.0, f"toe hole ø {size(D.TOE_HOLE)}",
-                             f"toe hole {_k(dims, D.TOE_HOLE)}"))
-    elif pipe.block is not None:
-        base = pipe.block.length_m * 1000.0
-    top = base + cut if pipe.foot is not None else cut
-    shapes.append(_rect("outline", -outer if pipe.foot is None else -inner, base
-                        if pipe.foot is not None else 0.0, outer if pipe.foot is None else inner,
-                        top))
-    if pipe.bore:
-        # A surveyed bore: its measured profile, from the top end down, as hidden lines.
-        profile = [(s.diameter_m * 500.0, top - s.from_top_m * 1000.0) for s in pipe.bore]
-        if profile[0][1] < top:
-            profile.insert(0, (profile[0][0], top))
-        if profile[-1][1] > 0.0:
-            profile.append((profile[-1][0], 0.0))
-        for side in (-1.0, 1.0):
-            shapes.append(Shape("hidden", tuple((side * r, y) for r, y in profile), False))
-    elif pipe.foot is None and outer > inner:
-        shapes += [_line("hidden", (-inner, 0.0), (-inner, top)),
-                   _line("hidden", (inner, 0.0), (inner, top))]
-    shapes.append(_line("centre", (0.0, -3.0), (0.0, top + 3.0)))
-    width_name = D.INSIDE_WIDTH if pipe.section == "rect" else (
-        D.OUTSIDE_DIAMETER if pipe.construction == "stock-tube" and D.OUTSIDE_DIAMETER in dims
-        else D.INSIDE_DIAMETER)
-    wv = outer if width_name == D.OUTSIDE_DIAMETER else inner
-    hdims.append(HDim(-wv, wv, top, dims[width_name], above=True))
-
-    if pipe.block is not None:
-        shapes.append(_rect("solid", -inner, 0.0, inner, base))
-        vdims.append(VDim(0.0, base, dims[D.BLOCK]))
-        calls.append(Callout(-inner * 0.6, base - 1.0, f"flue {size(D.FLUE)}", ""))
-    if pipe.mouth is not None:
-        w, h = pipe.mouth.width_m * 500.0, pipe.mouth.cutup_m * 1000.0
-        shapes.append(_rect("opening", -w, base, w, base + h))
-        calls.append(Callout(-w * 0.5, base + h * 0.5,
-                             f"mouth {size(D.MOUTH_WIDTH)} × {size(D.CUTUP)}",
-                             f"mouth {_k(dims, D.MOUTH_WIDTH, D.CUTUP)}"))
-    if pipe.head is None:
-        if pipe.family in ("open-flue", "open-tube") and speaking < top - base - 0.01:
-            shapes.append(_rect("tint", -inner, base + speaking, inner, top))
-            shapes.append(_line("hidden", (-outer, base + speaking), (outer, base + speaking)))
-        if pipe.stopper is None or pipe.construction != "stock-tube":
-            vdims.append(VDim(base, base + speaking, dims[D.SPEAKING]))
-    vdims.append(VDim(0.0 if pipe.foot is None else base, top, dims[D.CUT]))
-
-    stop = pipe.stopper
-    if stop is not None and pipe.construction == "stock-tube":
-        face = top - stop.position_m * 1000.0
-        shapes.append(_rect("solid", -inner, max(0.0, face - stop.length_m * 1000.0), inner, face))
-        vdims.append(VDim(face, top, dims[D.SPEAKING]))
-        calls.append(Callout(0.0, face, f"plug face {size(D.PLUG)} from the top",
-                             f"plug face {_k(dims, D.PLUG)} from the top"))
-    elif stop is not None:
-        face = base + stop.position_m * 1000.0
-        end = min(top, face + stop.length_m * 1000.0)
-        shapes.append(_rect("solid", -inner, face, inner, end))
-        if end < top:
-            shapes.append(_rect("tint", -inner, end, inner, top))
-        calls.append(Callout(0.0, face, f"stopper face {size(D.STOPPER)}",
-                             f"stopper face {_k(dims, D.STOPPER)}"))
-
-    head = pipe.head
-    if head is not None:
-        _head(head, top, inner, dims, shapes, holes, vdims, calls)
-    for hole in pipe.holes:
-        y = hole.position_from_bottom_m * 1000.0
-        hidden = 90.0 < abs(hole.angle_deg) % 360.0 < 270.0
-        holes.append(HoleMark(0.0, y, hole.diameter_m * 500.0, hidden))
-        where = "back" if hidden else ""
-        name = f"hole {hole.label}" if hole.label.isdigit() else hole.label
-        calls.append(Callout(0.0, y, f"{name}  ø {mm(hole.diameter_m)}  at "
-                             f"{mm(hole.position_from_top_m)} from top"
-                             + (f" ({where})" if where else ""), ""))
-    return View(max(outer, inner), top, tuple(shapes), tuple(holes), tuple(vdims),
-                tuple(hdims), tuple(calls))
-
-
-def _head(head: Head, top: float, inner: float, dims: dict[str, D.Dim],
-          shapes: list[Shape], holes: list[HoleMark], vdims: list[VDim],
-          calls: list[Callout]) -> None:
-    if head.kind == "duct" and head.labium_from_top_m is not None:
-        lab = top - head.labium_from_top_m * 1000.0
-        wl = (head.window_length_m or 0.0) * 1000.0
-        ww = (head.window_width_m or inner) * 500.0
-        shapes.append(_rect("solid", -inner, lab + wl, inner, top))
-        shapes.append(_rect("opening", -ww, lab, ww, lab + wl))
-        vdims.append(VDim(lab, top, dims[D.LABIUM]))
-        text = "window"
-        if D.WINDOW_LENGTH in dims and D.WINDOW_WIDTH in dims:
-            text += f" {mm(dims[D.WINDOW_LENGTH].value_m)} × {mm(dims[D.WINDOW_WIDTH].value_m)}"
-        calls.append(Callout(-ww * 0.5, lab + wl * 0.5, text, ""))
-        if D.DUCT in dims:
-            calls.append(Callout(0.0, lab + wl + 4.0,
-                                 f"duct height {mm(dims[D.DUCT].value_m)}", ""))
-    elif head.kind in ("reed", "closed"):
-        shapes.append(_rect("solid", -inner, top - 2.0, inner, top))
-        calls.append(Callout(0.0, top - 1.0, "closed end (reed)" if head.kind == "reed"
-                             else "closed end", ""))
-    elif head.embouchure_from_top_m is not None:
-        y = top - head.embouchure_from_top_m * 1000.0
-        holes.append(HoleMark(0.0, y, (head.embouchure_diameter_m or 0.0) * 500.0, False))
-        vdims.append(VDim(y, top, dims[D.EMBOUCHURE_FROM_TOP]))
-        calls.append(Callout(0.0, y, "embouchure ø "
-                             + mm(head.embouchure_diameter_m or 0.0), ""))
-        if head.cork_m is not None:
-            cy = y + head.cork_m * 1000.0
-            shapes.append(_rect("solid", -inner, cy, inner, min(top, cy + 4.0)))
-            calls.append(Callout(0.0, cy, f"cork {mm(head.cork_m)} above the embouchure",
-                                 ""))
-
-
-# --- drawing -------------------------------------------------------------------------------
-
 LEVEL = 6.0 * MM
 MIN_WIDTH = 10.0 * MM
+
+SHORT = {
+    D.INSIDE_DIAMETER: "ø", D.OUTSIDE_DIAMETER: "ø", D.INSIDE_WIDTH: "width",
+    D.SPEAKING: "speaking", D.CUT: "cut", D.FOOT: "foot", D.TOE: "toe ø", D.BLOCK: "block",
+    D.LABIUM: "labium", D.EMBOUCHURE_FROM_TOP: "embouchure",
+}
+"""Words beside a value on a drawing's dimension line."""
+
+CALLOUT_WORDS = {
+    V.TOE_HOLE: ("toe hole ø {}", "toe hole {}"),
+    V.FLUE: ("flue {}", ""),
+    V.MOUTH: ("mouth {} × {}", "mouth {}"),
+    V.PLUG: ("plug face {} from the top", "plug face {} from the top"),
+    V.STOPPER: ("stopper face {}", "stopper face {}"),
+    V.DUCT: ("duct height {}", ""),
+    V.REED_END: ("closed end (reed)", ""),
+    V.CLOSED_END: ("closed end", ""),
+    V.EMBOUCHURE: ("embouchure ø {}", ""),
+    V.CORK: ("cork {} above the embouchure", ""),
+}
+"""A callout's words with its sizes in mm, and with its letters on a key drawing."""
+
+
+def callout_text(callout: Callout, key: bool = False) -> str:
+    """What a callout says: its sizes in mm, or the letters of its key dimensions."""
+    if key:
+        return CALLOUT_WORDS[callout.kind][1].format(" × ".join(callout.keys))
+    sizes = [mm_of(v) for v in callout.values_mm]
+    if callout.kind == V.HOLE:
+        name = f"hole {callout.label}" if callout.label.isdigit() else callout.label
+        return (f"{name}  ø {sizes[0]}  at {sizes[1]} from top"
+                + (" (back)" if callout.back else ""))
+    if callout.kind == V.WINDOW:
+        return "window" + (f" {sizes[0]} × {sizes[1]}" if sizes else "")
+    return CALLOUT_WORDS[callout.kind][0].format(*sizes)
 
 
 def _dim_label(dim: D.Dim, inches: Inches | None, key: bool) -> str:
     if key:
         return dim.key
-    text = f"{D.SHORT.get(dim.name, dim.name)} {mm(dim.value_m)}"
+    text = f"{SHORT.get(dim.name, dim.name)} {mm(dim.value_m)}"
     return text + (f" ({inches.text(dim.value_m)} in)" if inches else "")
 
 
@@ -266,9 +97,9 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
     font, size = _font(key)
     vdims = [v for v in view.vdims if v.dim.key or not key]
     hdims = [d for d in view.hdims if d.dim.key or not key]
-    calls = [co for co in view.callouts if co.key_text or not key]
+    calls = [co for co in view.callouts if co.keys or not key]
     labels = [_dim_label(v.dim, inches, key) for v in vdims]
-    texts = [co.key_text if key else co.text for co in calls]
+    texts = [callout_text(co, key) for co in calls]
     left = min(max((stringWidth(t, FONT, TEXT_PT) for t in texts), default=0.0) + 9 * MM,
                w * 0.7)
     if not texts:

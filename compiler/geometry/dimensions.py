@@ -1,7 +1,9 @@
 """The named dimensions of a pipe, read from the resolved model, in the order a maker uses them.
 
-One list serves the pipe's dimension table, the labels of its side view and the columns of
-a rank's table (the *key* dimensions, lettered A, B, C... on the rank's key drawing).
+One list serves the pipe's dimension table, the dimension lines of its side view
+(``side_view``) and the columns of a rank's table (the *key* dimensions, lettered A, B, C...
+on the rank's key drawing). A dimension quotes the resolved model's length exactly, in metres
+(``value_m``), so every backend rounds the same number the way it shows lengths.
 """
 
 from __future__ import annotations
@@ -97,38 +99,5 @@ def dimensions(pipe: Pipe) -> tuple[Dim, ...]:
     return tuple(out)
 
 
-SHORT = {
-    INSIDE_DIAMETER: "ø", OUTSIDE_DIAMETER: "ø", INSIDE_WIDTH: "width", SPEAKING: "speaking",
-    CUT: "cut", FOOT: "foot", TOE: "toe ø", BLOCK: "block", LABIUM: "labium",
-    EMBOUCHURE_FROM_TOP: "embouchure",
-}
-"""Words beside a value on a drawing's dimension line."""
-
-
 def by_name(dims: tuple[Dim, ...]) -> dict[str, Dim]:
     return {d.name: d for d in dims}
-
-
-FAMILY_WORDS = {
-    "open-flue": "open flue pipe",
-    "stopped-flue": "stopped flue pipe",
-    "stopped-tube": "stopped tube",
-    "open-tube": "open tube",
-    "duct-flute": "duct flute",
-    "side-blown-flute": "side-blown flute",
-    "survey": "survey (as measured)",
-}
-
-CONSTRUCTION_WORDS = {
-    "rolled-sheet": "rolled sheet",
-    "boards": "boards",
-    "stock-tube": "stock tube",
-}
-
-
-def family_words(family: str) -> str:
-    return FAMILY_WORDS.get(family, family)
-
-
-def construction_words(construction: str) -> str:
-    return CONSTRUCTION_WORDS.get(construction, construction)
