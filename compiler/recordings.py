@@ -24,6 +24,9 @@ from compiler.acoustics.pitch import PitchEstimate, RecordingProblem, Samples, e
 from compiler.spec.notes import NoteError, note_name, parse_note
 
 PCM, IEEE_FLOAT, EXTENSIBLE = 1, 3, 0xFFFE
+FAR_FROM_NOTE_CENTS = 600.0
+"""A take this far from the note it is named for (half an octave) is flagged: a prototype cut
+long is some tens of cents flat, so this is another note or an overblown pipe."""
 MAX_BYTES = 1 << 30
 """Largest recording read (a minute of 96 kHz 32-bit stereo is 46 MB)."""
 
@@ -58,6 +61,8 @@ class Take:
     pitch: PitchEstimate
     length: str | None
     audio: Audio
+    cents_from_note: float = 0.0
+    """The pitch found less the named note's equal-tempered pitch (at ``--a4``)."""
 
 
 # ---------------------------------------------------------------------------------------------
@@ -226,7 +231,9 @@ def analyse(path: Path, shown: str, note: str | None, length: str | None,
             midi, source = named, "file name"
         else:
             midi, source = nearest_note(pitch.frequency_hz, a4_hz), "nearest note"
-    return Take(shown, midi, source, pitch, length, audio)
+    named_hz = a4_hz * 2 ** ((midi - 69) / 12)
+    off = 1200 * math.log2(pitch.frequency_hz / named_hz)
+    return Take(shown, midi, source, pitch, length, audio, off)
 
 
 def _decimals(frequency_hz: float) -> int:
@@ -253,6 +260,12 @@ def entry(take: Take, temperature: str) -> str:
         notes.append(f"{take.pitch.other_pitch_share:.0%} of it sounded {what}, left out")
     if take.note_from == "nearest note":
         notes.append("note guessed from the pitch: check it")
+    elif abs(take.cents_from_note) >= FAR_FROM_NOTE_CENTS:
+        # A pipe cut long sounds some cents flat, not half an octave: another note, or a
+        # pipe that overblew for most of the take.
+        octave = " (overblown?)" if abs(take.cents_from_note - 1200) < 50 else ""
+        notes.append(f"CHECK: {take.cents_from_note:+.0f} cents from "
+                     f"{note_name(take.note)}{octave}: is it the right note?")
     return "  - {" + ", ".join(fields) + "}   # " + "; ".join(notes)
 
 
@@ -277,6 +290,7 @@ def as_dicts(takes: list[Take], temperature_c: float) -> list[dict[str, object]]
         "steady_to_s": round(t.pitch.steady_to_s, 3),
         "partials": t.pitch.partials,
         "other_pitch_share": round(t.pitch.other_pitch_share, 3),
+        "cents_from_note": round(t.cents_from_note, 2),
         "temperature_c": round(temperature_c, 2),
         "length": t.length,
         "sample_rate_hz": t.audio.rate,

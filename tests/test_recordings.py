@@ -224,3 +224,22 @@ def test_a_damaged_wav_is_refused_without_a_traceback(tmp_path: Path,
     err = capsys.readouterr().err
     assert f"{damaged}: error: a damaged WAV file" in err and "hint: export it again" in err
     assert "Traceback" not in err
+
+
+def test_a_take_far_from_its_named_note_is_flagged(tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    # A file named G2 whose pipe sounded the octave (G3, twice the frequency: an overblown
+    # pipe, or the wrong pipe) must not pass as a G2 quietly; a G2 some cents flat (a
+    # prototype cut long) is no surprise. G2 = 440·2^(-26/12) Hz (ISO 16:1975, equal
+    # temperament on A4 = 440 Hz).
+    g2 = 440.0 * 2 ** (-26 / 12)
+    write_pcm(tmp_path / "G2.wav", signal(2 * g2), 16)
+    write_pcm(tmp_path / "rank-G2.wav", signal(g2 * 2 ** (-30 / 1200)), 16)
+    assert main(["measure", str(tmp_path / "G2.wav"), str(tmp_path / "rank-G2.wav"),
+                 "-t", "19 C"]) == 0
+    octave, flat = capsys.readouterr().out.splitlines()[1:]
+    assert "CHECK: +1200 cents from G2 (overblown?)" in octave
+    assert "CHECK" not in flat
+    assert main(["measure", str(tmp_path / "G2.wav"), "-t", "19 C", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)[0]["cents_from_note"] == pytest.approx(1200,
+                                                                                    abs=0.5)
