@@ -19,6 +19,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.pdfgen.pathobject import PDFPathObject
 
@@ -46,7 +47,7 @@ from compiler.emit.pdf.style import (
     safe,
 )
 from compiler.geometry.model import Circle, Part, Parts, Polyline, Text
-from compiler.geometry.paths import text_centre
+from compiler.geometry.paths import text_centre, text_width
 
 SECTION = "Templates"
 OVERLAP_MM = 10.0
@@ -419,7 +420,10 @@ def _entities(c: Canvas, part: Part) -> None:
         c.drawPath(polyline_path(c, e), stroke=1, fill=0)
     c.setDash([], 0)
     # Labels in black: hole labels carry the drill size. Drawn centred on the box the
-    # geometry stage kept free for them, as in the DXF files.
+    # geometry stage kept free for them, as in the DXF files, and no wider than that box:
+    # the printed font's letters are wider than the box allows for (digits about 0.87 of
+    # the cap height against 0.62), so a label is condensed to its box rather than run
+    # over the marks beside it; its height stays.
     c.setFillColor(INK)
     for e in part.entities:
         if isinstance(e, Text):
@@ -427,8 +431,13 @@ def _entities(c: Canvas, part: Part) -> None:
             c.translate(*text_centre(e))
             c.rotate(e.rotation_deg)
             size = e.height / 0.72
+            text = safe(e.text)
+            wide = stringWidth(text, FONT, size)
+            room = text_width(e.text, e.height)
+            if wide > room > 0:
+                c.scale(room / wide, 1.0)
             c.setFont(FONT, size)
-            c.drawCentredString(0, -size * 0.36, safe(e.text))
+            c.drawCentredString(0, -size * 0.36, text)
             c.restoreState()
 
 

@@ -159,3 +159,60 @@ def test_template_choice(small: tuple[Resolved, Parts]) -> None:
     assert not any(i.endswith(("-body", "-front", "-back", "-side", "-block")) for i in ids)
     # the three rolled bodies need more than OUTLINE_TILES tiles
     assert sorted(left_out) == [f"principal-4-{n}-body" for n in ("C#3", "C3", "D3")]
+
+
+def test_printed_labels_keep_to_the_box_kept_free_for_them() -> None:
+    # The geometry stage keeps each label's box (its estimated width × its height) clear of
+    # the part's lines. The printed font's real advance widths (reportlab's metrics of the
+    # embedded TrueType font, an independent measure) are wider than that estimate for
+    # digits and capitals; printed wider, a label runs over the marks beside it. Every label
+    # of the example whistle's and flute's templates and jigs, as drawn, fits its box.
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+    from reportlab.pdfgen.pathobject import PDFPathObject
+
+    from compiler.build import compile_text
+    from compiler.emit.pdf.style import FONT
+    from compiler.geometry.model import Text
+    from compiler.geometry.paths import text_width
+    from compiler.options import BuildOptions
+
+    class Recorder:
+        """The canvas calls the template drawing makes; text widths as drawn."""
+
+        def __init__(self) -> None:
+            self.scale_x, self.size, self.widths = 1.0, 0.0, []
+
+        def saveState(self) -> None:  # noqa: N802 (reportlab's names)
+            self.scale_x = 1.0
+
+        def scale(self, x: float, y: float) -> None:
+            self.scale_x *= x
+
+        def setFont(self, name: str, size: float) -> None:  # noqa: N802
+            self.size = size
+
+        def drawCentredString(self, x: float, y: float, text: str) -> None:  # noqa: N802
+            self.widths.append(stringWidth(text, FONT, self.size) * self.scale_x)
+
+        def beginPath(self):  # type: ignore[no-untyped-def]  # noqa: N802
+            return PDFPathObject()
+
+        def __getattr__(self, name: str):  # type: ignore[no-untyped-def]
+            return lambda *args, **kwargs: None
+
+    root = Path(__file__).resolve().parents[3] / "specs_examples"
+    checked = 0
+    for name in ("duct-flute-d.yaml", "side-blown-flute-c.yaml"):
+        compiled = compile_text((root / name).read_text(encoding="utf-8"), name,
+                                BuildOptions())
+        for part in compiled.parts.parts:
+            if part.kind not in ("template", "sheet", "board"):
+                continue
+            rec = Recorder()
+            templates._entities(rec, part)  # type: ignore[arg-type]
+            labels = [e for e in part.entities if isinstance(e, Text)]
+            assert len(rec.widths) == len(labels)
+            for e, width in zip(labels, rec.widths, strict=True):
+                assert width <= text_width(e.text, e.height) + 1e-6, (part.id, e.text)
+                checked += 1
+    assert checked > 20
