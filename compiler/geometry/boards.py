@@ -73,7 +73,8 @@ def _front(pipe: Pipe, t: float, length: float, width: float) -> Draft:
     pts = [(0.0, 0.0), (length, 0.0), (length, width), (0.0, width),
            (0.0, hi), (cu, hi), (cu, lo), (0.0, lo)]
     return _board(pipe, "front", t, length, width, closed("cut-outer", pts),
-                  note=f"mouth {mw:.1f} × {cu:.1f} mm at the bottom edge; bevel the upper lip")
+                  note=f"mouth {mw:.1f} mm wide, cut up {cu:.1f} mm, at the bottom edge; "
+                       "bevel the upper lip")
 
 
 def _stopper_parts(pipe: Pipe, t: float, inside_w: float, inside_d: float) -> list[Draft]:
@@ -85,7 +86,8 @@ def _stopper_parts(pipe: Pipe, t: float, inside_w: float, inside_d: float) -> li
     layers = max(1, math.ceil(d / t - 1e-9))
     stopper = _board(pipe, "stopper", t, length, w, rect("cut-outer", 0, 0, length, w),
                      quantity=layers,
-                     note=f"glue {layers} layers, plane to {w:.1f} × {d:.1f} mm, face with "
+                     note=f"glue {layers} layers, plane to {w:.1f} mm wide and {d:.1f} mm "
+                          "deep, face with "
                           f"leather; its face sits {mm(pipe.stopper.position_m):.1f} mm "
                           "above the lower lip")
     height = min(HANDLE_MAX_MM, max(HANDLE_MIN_MM, 0.8 * inside_w))
@@ -136,7 +138,8 @@ def board_drafts(pipe: Pipe, thickness_m: float) -> list[Draft]:
         layers = max(1, math.ceil(d / t - 1e-9))
         drafts.append(_board(pipe, "block", t, block, w, rect("cut-outer", 0, 0, block, w),
                              quantity=layers,
-                             note=f"glue {layers} layers, plane to {w:.1f} × {d:.1f} mm"))
+                             note=f"glue {layers} layers, plane to {w:.1f} mm wide and {d:.1f} mm "
+                                  "deep"))
         mw = mm(pipe.mouth.width_m) if pipe.mouth is not None else w
         lo, hi = outer / 2.0 - mw / 2.0, outer / 2.0 + mw / 2.0
         drafts.append(_board(

@@ -103,3 +103,15 @@ def test_open_wooden_pipe_has_no_stopper() -> None:
     model = replace(samples.wood_model(), pipes=(pipe,))
     names = [p.name for p in layout(model, BuildOptions()).parts]
     assert names == ["front", "back", "side", "block", "cap"]
+
+
+def test_notes_name_each_dimension_rather_than_a_second_size_order(parts: Parts) -> None:
+    # Every size in the cut list is length × width (along the grain first). A cross-section
+    # or a mouth written "a × b" in a note would be a second order a maker could misread:
+    # the notes name each dimension instead (inside width W = 60 mm, depth D = 75 mm).
+    for part in parts.parts:
+        assert "×" not in part.note, part.note
+    block = parts.part("stopped-wood-C3-block")
+    assert f"plane to {W:.1f} mm wide and {D:.1f} mm deep" in block.note
+    front = parts.part("stopped-wood-C3-front")
+    assert "mm wide, cut up" in front.note
