@@ -10,6 +10,7 @@ spec where a maker would and compare a warm rebuild with a cold one.
 from __future__ import annotations
 
 import copy
+import inspect
 import math
 import os
 import subprocess
@@ -21,11 +22,13 @@ from pathlib import Path
 from types import MappingProxyType
 
 import pytest
+from reportlab.lib.colors import Color
 
 from compiler.build import build, compile_text
 from compiler.cache import FOLDER, key_of
-from compiler.emit import dxf
-from compiler.geometry.layout import PipePartsInputs
+from compiler.emit import dxf, pdf
+from compiler.emit.pdf.style import frame_for
+from compiler.geometry.layout import PipePartsInputs, pipe_parts
 from compiler.options import BuildOptions
 from compiler.resolve.inputs import GroupInputs, group_inputs
 from compiler.spec import load_spec
@@ -71,6 +74,9 @@ def _changes(value: object) -> Iterator[object]:
         for i, item in enumerate(value):
             for changed in _changes(item):
                 yield value[:i] + (changed,) + value[i + 1:]
+    elif isinstance(value, Color):
+        # reportlab writes a colour to the precision of its repr (5 decimals), the key's
+        yield Color(value.red + 0.01, value.green, value.blue, value.alpha)
     elif isinstance(value, Mapping):
         yield MappingProxyType({**value, "added": None})
         for name, item in value.items():
@@ -106,6 +112,18 @@ def assert_every_field_is_in_the_key(inputs: object) -> int:
 def _spec(name: str) -> tuple[str, Path]:
     path = EXAMPLES / name
     return path.read_text(encoding="utf-8"), path
+
+
+def test_each_cached_computation_takes_only_its_inputs() -> None:
+    """The functions whose results are cached receive their inputs object and nothing else
+    (a page body draws from its own fields and the frame; the sheet's cache only replays
+    bodies)."""
+    from compiler.resolve import flue, flutes, surveys, tubes
+
+    for made_by in (flue.resolve_rank, tubes.resolve_tube_set, flutes.resolve_flute,
+                    surveys.resolve_survey, pipe_parts, dxf.render):
+        assert list(inspect.signature(made_by).parameters) in (["inputs"], ["drawing"])
+    assert list(inspect.signature(pdf.draw_sheet).parameters) == ["sheet", "cache"]
 
 
 # --- every field of every inputs object is in its key -------------------------------------
@@ -164,6 +182,35 @@ def test_dxf_files_key_on_every_field(tmp_path: Path) -> None:
                                                        sheet.width_mm),
                           dxf.sheet_entities(sheet, by_id))
     assert assert_every_field_is_in_the_key(drawing) > 20
+
+
+@pytest.fixture(scope="module")
+def sheets() -> list[pdf.BuildSheet]:
+    """Build sheets between them showing every kind of page."""
+    made = []
+    for name in ("duct-flute-d.yaml", "blown-stopped-tubes.yaml"):
+        text, path = _spec(name)
+        compiled = compile_text(text, str(path), BuildOptions())
+        made.append(pdf.BuildSheet.of(compiled.resolved, compiled.parts, BuildOptions()))
+    return made
+
+
+def test_the_build_sheet_keys_on_every_field(sheets: list[pdf.BuildSheet]) -> None:
+    assert assert_every_field_is_in_the_key(sheets[1]) > 40
+    assert assert_every_field_is_in_the_key(frame_for("letter")) > 5
+
+
+def test_every_page_body_keys_on_every_field(sheets: list[pdf.BuildSheet]) -> None:
+    bodies: dict[type, list[object]] = {}
+    for sheet in sheets:
+        for page in pdf.plan(sheet):
+            bodies.setdefault(type(page.body), []).append(page.body)
+    assert {kind.__name__ for kind in bodies} == {
+        "Blocks", "PipePage", "GroupTablePage", "DuctBlockPage", "IndexPage", "SharedPage",
+        "TilePage", "MapPage"}
+    for found in bodies.values():
+        for body in (found[0], found[-1]):
+            assert assert_every_field_is_in_the_key(body) > 0
 
 
 # --- the keys are the same in every process ------------------------------------------------

@@ -12,6 +12,7 @@ and plots for holed pipes); full-size templates.
 from __future__ import annotations
 
 import io
+from dataclasses import dataclass
 from pathlib import Path
 
 from reportlab.pdfgen.canvas import Canvas
@@ -33,9 +34,25 @@ def paper_of(resolved: Resolved, options: BuildOptions) -> str:
     return (options.paper or resolved.fabrication.paper or "a4").lower()
 
 
-def plan(resolved: Resolved, parts: Parts, options: BuildOptions) -> list[Page]:
+@dataclass(frozen=True)
+class BuildSheet:
+    """Everything the build sheet's bytes depend on, and so its cache key: ``draw_sheet``
+    reads nothing else."""
+
+    resolved: Resolved
+    parts: Parts
+    paper: str
+    """``a4`` or ``letter``."""
+
+    @staticmethod
+    def of(resolved: Resolved, parts: Parts, options: BuildOptions) -> BuildSheet:
+        return BuildSheet(resolved, parts, paper_of(resolved, options))
+
+
+def plan(sheet: BuildSheet) -> list[Page]:
     """Every page of the build sheet, in order, not yet drawn."""
-    frame = frame_for(paper_of(resolved, options))
+    resolved, parts = sheet.resolved, sheet.parts
+    frame = frame_for(sheet.paper)
     sections = [
         ("Cautions", cautions.pages(resolved, frame)),
         ("Cut list", cutlist.pages(resolved, parts, frame)),
@@ -75,35 +92,39 @@ def _codes(canvas: Canvas) -> int | None:
         return None
 
 
+def page_key(frame: Frame, page: Page) -> str:
+    """The cache key of a page's drawn body: its body and the frame, all its drawing reads."""
+    return key_of(frame, page.body)
+
+
 def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache,
                seeded: int | None) -> None:
     """Draw a page's body, or replay its drawing from an earlier build.
 
-    A body's drawing is a run of PDF content operators. It depends only on ``page.key`` and
-    the frame, and starts from the state the header leaves (fonts registered in the same
-    order in every build), so the operators recorded for the same key can stand in for
-    drawing it again. The embedded fonts number their characters in the order of first use:
-    a body is recorded only while every character used so far in the document is one of
-    the ``REPERTOIRE``, whose codes are fixed before the first page (``seeded`` codes), so
-    its operators mean the same in any build. reportlab keeps a page's operators in
-    ``Canvas._code``; where that is missing (another reportlab), every body is drawn."""
+    A body's drawing is a run of PDF content operators. It depends only on ``page.body`` and
+    the frame (``page_key``), and starts from the state the header leaves (fonts registered
+    in the same order in every build), so the operators recorded for the same key can stand
+    in for drawing it again. The embedded fonts number their characters in the order of
+    first use: a body is recorded only while every character used so far in the document is
+    one of the ``REPERTOIRE``, whose codes are fixed before the first page (``seeded``
+    codes), so its operators mean the same in any build. reportlab keeps a page's operators
+    in ``Canvas._code``; where that is missing (another reportlab), every body is drawn."""
     code = getattr(canvas, "_code", None)
-    if (page.key is None or store.folder is None or not isinstance(code, list)
-            or seeded is None):
-        page.draw(canvas, frame)
+    if store.folder is None or not isinstance(code, list) or seeded is None:
+        page.body.draw(canvas, frame)
         return
 
     drawn = []
 
     def make() -> bytes:
         start = len(code)
-        page.draw(canvas, frame)
+        page.body.draw(canvas, frame)
         drawn.append(True)
         return "\n".join(code[start:]).encode("utf-8")
 
-    key = key_of("pdf-page", frame, page.key)
+    key = page_key(frame, page)
     if _codes(canvas) != seeded:
-        page.draw(canvas, frame)
+        page.body.draw(canvas, frame)
         return
     recorded = store.data("pdf-page", key, make)
     if drawn and _codes(canvas) != seeded:
@@ -116,12 +137,18 @@ def _draw_body(canvas: Canvas, frame: Frame, page: Page, store: Cache,
 
 def render(resolved: Resolved, parts: Parts, options: BuildOptions,
            cache: Cache | None = None) -> bytes:
+    """The build sheet of ``resolved`` and ``parts`` as PDF bytes (``draw_sheet``)."""
+    return draw_sheet(BuildSheet.of(resolved, parts, options), cache)
+
+
+def draw_sheet(sheet: BuildSheet, cache: Cache | None = None) -> bytes:
     """The build sheet as PDF bytes (deterministic: reportlab's invariant mode, no dates).
 
     With a ``cache``, page bodies whose inputs did not change are replayed, not redrawn."""
     store = cache or Cache(None)
-    frame = frame_for(paper_of(resolved, options))
-    pages = plan(resolved, parts, options)
+    resolved = sheet.resolved
+    frame = frame_for(sheet.paper)
+    pages = plan(sheet)
     buffer = io.BytesIO()
     canvas = Canvas(buffer, pagesize=(frame.width, frame.height), invariant=1,
                     pageCompression=1, initialFontName=FONT)
@@ -150,7 +177,7 @@ def write(resolved: Resolved, parts: Parts, options: BuildOptions, out_dir: Path
     """Write ``out_dir/build-sheet.pdf``; returns [that path]. The document is reused whole
     when nothing it shows changed; otherwise unchanged page bodies are replayed."""
     path = out_dir / FILE_NAME
-    key = key_of("pdf", paper_of(resolved, options), resolved, parts)
+    sheet = BuildSheet.of(resolved, parts, options)
     store = cache or Cache(None)
-    path.write_bytes(store.data("pdf", key, lambda: render(resolved, parts, options, store)))
+    path.write_bytes(store.data("pdf", key_of(sheet), lambda: draw_sheet(sheet, store)))
     return [path]

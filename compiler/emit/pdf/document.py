@@ -9,9 +9,10 @@ over as many pages as they need, splitting tables between rows and repeating the
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
+from typing import Protocol
 
 from reportlab.lib.colors import Color
 from reportlab.lib.utils import simpleSplit
@@ -31,7 +32,13 @@ from compiler.emit.pdf.style import (
     safe,
 )
 
-Draw = Callable[[Canvas, Frame], None]
+
+class Body(Protocol):
+    """What draws a page's body: a frozen dataclass holding everything its drawing reads
+    but the frame (values with a faithful, stable ``repr``). With the frame it is the key
+    the drawn body is cached under, so a rebuild can replay it."""
+
+    def draw(self, c: Canvas, frame: Frame) -> None: ...
 
 
 @dataclass(frozen=True)
@@ -39,14 +46,11 @@ class Page:
     """One planned page: the section it belongs to and what draws its body."""
 
     section: str
-    draw: Draw
+    body: Body
     bookmark: str = ""
     """Outline (bookmark) entry; empty for none."""
     label: str = ""
     """Extra words on the right of the header (a pipe id, a tile)."""
-    key: object = None
-    """Everything the body's drawing depends on (frozen values with a stable ``repr``), so
-    a rebuild can reuse the drawn body; ``None``: always drawn."""
 
 
 def wrap(text: str, font: str, size: float, width: float) -> list[str]:
@@ -428,19 +432,24 @@ def flow_pages(section: str, blocks: Sequence[Block], frame: Frame, bookmark: st
     width, height = frame.content_width, frame.content_height - top_gap
     pages = []
     for i, content in enumerate(flow(blocks, width, height)):
-        pages.append(Page(section, _draw_blocks(tuple(content), top_gap),
-                          bookmark if i == 0 else "", key=("blocks", tuple(content), top_gap)))
+        pages.append(Page(section, Blocks(tuple(content), top_gap),
+                          bookmark if i == 0 else ""))
     return pages
 
 
-def _draw_blocks(blocks: tuple[Block, ...], top_gap: float) -> Draw:
-    def draw(c: Canvas, frame: Frame) -> None:
+@dataclass(frozen=True)
+class Blocks:
+    """A page of flowing blocks, from ``top_gap`` below the frame's top."""
+
+    blocks: tuple[Block, ...]
+    top_gap: float
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        blocks, top_gap = self.blocks, self.top_gap
         y = frame.top - top_gap
         for block in blocks:
             block.draw(c, frame.left, y, frame.content_width)
             y -= block.height(frame.content_width)
-
-    return draw
 
 
 def _fitted(c: Canvas, text: str, font: str, size: float, x: float, y: float, width: float,

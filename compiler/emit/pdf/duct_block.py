@@ -11,10 +11,11 @@ template: print at 100 %, check the bars, trace or cut.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from reportlab.pdfgen.canvas import Canvas
 
-from compiler.emit.pdf.document import Draw, Page, wrap
+from compiler.emit.pdf.document import Page, wrap
 from compiler.emit.pdf.style import FONT, FONT_BOLD, GREY, INK, MM, Frame, fixed, safe
 from compiler.emit.pdf.templates import calibration_bars
 from compiler.ir import Pipe
@@ -39,13 +40,23 @@ def pages(pipe: Pipe, frame: Frame) -> list[Page]:
     window = head.window_length_m * 1000.0
     if length <= 0 or not 0 < flat < bore / 2:
         return []
-    return [Page(SECTION, _draw(pipe.id, bore, length, flat, window),
-                 label=f"{pipe.id} duct block",
-                 key=("duct-block", pipe.id, bore, length, flat, window))]
+    return [Page(SECTION, DuctBlockPage(pipe.id, bore, length, flat, window),
+                 label=f"{pipe.id} duct block")]
 
 
-def _draw(pipe_id: str, bore: float, length: float, flat: float, window: float) -> Draw:
-    def draw(c: Canvas, frame: Frame) -> None:
+@dataclass(frozen=True)
+class DuctBlockPage:
+    """A duct flute's block at full size, side and end view (lengths in mm)."""
+
+    pipe_id: str
+    bore: float
+    length: float
+    flat: float
+    window: float
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        pipe_id, bore, length = self.pipe_id, self.bore, self.length
+        flat, window = self.flat, self.window
         c.setFillColor(INK)
         c.setFont(FONT_BOLD, 13)
         c.drawString(frame.left, frame.top - 6 * MM, safe(f"Duct block: {pipe_id}, full size"))
@@ -65,8 +76,6 @@ def _draw(pipe_id: str, bore: float, length: float, flat: float, window: float) 
         _side_view(c, x0, y0, bore, length, flat, window)
         _end_view(c, x0 + bore + GAP_MM + bore / 2.0, y0 + length - bore / 2.0, bore, flat)
         calibration_bars(c, frame)
-
-    return draw
 
 
 def _side_view(c: Canvas, x0: float, y0: float, bore: float, length: float, flat: float,

@@ -9,6 +9,7 @@ drawing whose letters head the table's columns, so a 600-pipe organ stays at ten
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
+from dataclasses import dataclass, replace
 
 from reportlab.pdfgen.canvas import Canvas
 
@@ -17,7 +18,6 @@ from compiler.emit.pdf import duct_block, fingering
 from compiler.emit.pdf.document import (
     Block,
     Column,
-    Draw,
     Heading,
     Page,
     Spacer,
@@ -70,14 +70,13 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
             continue
         if len(pipes) <= PER_PIPE_LIMIT or any(p.holes or p.fingerings for p in pipes):
             for pipe in pipes:
-                out.append(Page(SECTION, _pipe_page(pipe, group, inches), label=pipe.id,
-                                key=("pipe", pipe, group, inches)))
+                out.append(Page(SECTION, PipePage(pipe, inches), label=pipe.id))
                 out += fingering.pages(pipe, frame)
                 out += duct_block.pages(pipe, frame)
         else:
             out += _group_pages(group, pipes, frame, inches)
     if out:
-        out[0] = Page(out[0].section, out[0].draw, "Pipes", out[0].label, out[0].key)
+        out[0] = replace(out[0], bookmark="Pipes")
     return out
 
 
@@ -209,8 +208,15 @@ def _title(c: Canvas, frame: Frame, title: str, line: str) -> None:
     c.setFillColor(INK)
 
 
-def _pipe_page(pipe: Pipe, group: Group, inches: Inches | None) -> Draw:
-    def draw(c: Canvas, frame: Frame) -> None:
+@dataclass(frozen=True)
+class PipePage:
+    """One pipe's page: its side view, its tables and its holes."""
+
+    pipe: Pipe
+    inches: Inches | None
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        pipe, inches = self.pipe, self.inches
         _title(c, frame, pipe.id, describe(pipe) + f" · spec {pipe.source.shown()}")
         top = frame.top - TITLE_BAND
         width = frame.content_width
@@ -236,8 +242,6 @@ def _pipe_page(pipe: Pipe, group: Group, inches: Inches | None) -> Draw:
             Heading(f"Holes ({len(pipe.holes)}), positions of the hole centres", 10).draw(
                 c, frame.left, hy, width)
             holes.draw(c, frame.left, hy - 6 * MM, width)
-
-    return draw
 
 
 def group_table(group: Group, pipes: Sequence[Pipe], inches: Inches | None) -> Table:
@@ -279,18 +283,25 @@ def _group_pages(group: Group, pipes: Sequence[Pipe], frame: Frame, inches: Inch
     out = []
     for i, chunk in enumerate(chunks):
         part = f"{i + 1} of {len(chunks)}"
-        out.append(Page(SECTION, _group_page(group, pipes, chunk[0], part, inches),
-                        label=f"{group.id} ({part})",
-                        key=("group", group, tuple(pipes), chunk[0], part, inches)))
+        out.append(Page(SECTION, GroupTablePage(group, tuple(pipes), chunk[0], part, inches),
+                        label=f"{group.id} ({part})"))
     return out
 
 
-def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str,
-                inches: Inches | None
-                ) -> Draw:
-    first = pipes[0]
+@dataclass(frozen=True)
+class GroupTablePage:
+    """A page of a large group's table, under a key drawing of its first pipe."""
 
-    def draw(c: Canvas, frame: Frame) -> None:
+    group: Group
+    pipes: tuple[Pipe, ...]
+    table: Block
+    part: str
+    inches: Inches | None
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        group, pipes, table = self.group, self.pipes, self.table
+        part, inches = self.part, self.inches
+        first = pipes[0]
         _title(c, frame, f"{group.id}: {len(pipes)} pipes, {pipes[0].note} to {pipes[-1].note}"
                f" (table {part})", f"{family_words(group.family)} · "
                f"{construction_words(group.construction)} · stock "
@@ -307,8 +318,6 @@ def _group_page(group: Group, pipes: Sequence[Pipe], table: Block, part: str,
         x = frame.left + key_w + 6 * MM
         _legend(c, x, top - 2 * MM, frame.right - x, group, pipes, inches)
         table.draw(c, frame.left, top - KEY_BAND, frame.content_width)
-
-    return draw
 
 
 def _band_legend(mouths: Sequence[Mouth]) -> str:

@@ -26,7 +26,6 @@ from reportlab.pdfgen.pathobject import PDFPathObject
 from compiler.emit.pdf.document import (
     Block,
     Column,
-    Draw,
     Heading,
     Page,
     Paragraph,
@@ -276,19 +275,17 @@ def pages(parts: Parts, frame: Frame) -> list[Page]:
              for k, spots in enumerate(shared) for spot in spots}
     out = _index_pages(chosen, where, left_out, frame)
     for k, spots in enumerate(shared):
-        out.append(Page(SECTION, _shared(spots, k + 1, len(shared)),
-                        label=f"small templates {k + 1} of {len(shared)}",
-                        key=("shared", spots, k, len(shared))))
+        out.append(Page(SECTION, SharedPage(spots, k + 1, len(shared)),
+                        label=f"small templates {k + 1} of {len(shared)}"))
     for ch in chosen:
         t = ch.tiles
         if t.rows * t.cols == 1:
             continue
-        out.append(Page(SECTION, _map(ch), label=f"{ch.part.id} map", key=("map", ch)))
+        out.append(Page(SECTION, MapPage(ch), label=f"{ch.part.id} map"))
         for r in range(t.rows):
             for c in range(t.cols):
-                out.append(Page(SECTION, _tile(ch, r, c),
-                                label=f"{ch.part.id} tile {r + 1}/{c + 1}",
-                                key=("tile", ch, r, c)))
+                out.append(Page(SECTION, TilePage(ch, r, c),
+                                label=f"{ch.part.id} tile {r + 1}/{c + 1}"))
     return out
 
 
@@ -327,24 +324,35 @@ def _index_pages(chosen: list[Choice], where: dict[str, str], left_out: list[str
                              + ", ".join(left_out) + ".", 8.5)]
     width = frame.content_width
     found = flow(blocks, width, frame.content_height - BAR_BAND - 4 * MM)
-    return [Page(SECTION, _index(tuple(content)), "Templates" if k == 0 else "",
-                 key=("index", tuple(content)))
+    return [Page(SECTION, IndexPage(tuple(content)), "Templates" if k == 0 else "")
             for k, content in enumerate(found)]
 
 
-def _index(blocks: tuple[Block, ...]) -> Draw:
-    def draw(c: Canvas, frame: Frame) -> None:
+@dataclass(frozen=True)
+class IndexPage:
+    """The first pages of the templates: blocks of text above the calibration bars."""
+
+    blocks: tuple[Block, ...]
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        blocks = self.blocks
         y = frame.top
         for block in blocks:
             block.draw(c, frame.left, y, frame.content_width)
             y -= block.height(frame.content_width)
         calibration_bars(c, frame)
 
-    return draw
 
+@dataclass(frozen=True)
+class SharedPage:
+    """A page of small templates side by side, each with its caption."""
 
-def _shared(spots: tuple[Spot, ...], number: int, total: int) -> Draw:
-    def draw(c: Canvas, frame: Frame) -> None:
+    spots: tuple[Spot, ...]
+    number: int
+    total: int
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        spots, number, total = self.spots, self.number, self.total
         c.setFont(FONT_BOLD, 12)
         c.setFillColor(INK)
         c.drawString(frame.left, frame.top - 5.5 * MM,
@@ -371,8 +379,6 @@ def _shared(spots: tuple[Spot, ...], number: int, total: int) -> Draw:
                 c.drawString(wx + spot.x * MM, y, line)
                 y -= CAPTION_PT * 1.2
         calibration_bars(c, frame)
-
-    return draw
 
 
 def calibration_bars(c: Canvas, frame: Frame) -> None:
@@ -469,10 +475,17 @@ def polyline_path(c: Canvas, line: Polyline) -> PDFPathObject:
     return path
 
 
-def _tile(ch: Choice, row: int, col: int) -> Draw:
-    part, t = ch.part, ch.tiles
+@dataclass(frozen=True)
+class TilePage:
+    """One tile of a template too large for a page."""
 
-    def draw(c: Canvas, frame: Frame) -> None:
+    choice: Choice
+    row: int
+    col: int
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        ch, row, col = self.choice, self.row, self.col
+        part, t = ch.part, ch.tiles
         title = tile_label(part, t, row, col)
         c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 12, frame.content_width, 8))
         c.drawString(frame.left, frame.top - 5.5 * MM, safe(title))
@@ -518,8 +531,6 @@ def _tile(ch: Choice, row: int, col: int) -> Draw:
         _neighbours(c, frame, t, row, col, wx, wy)
         calibration_bars(c, frame)
 
-    return draw
-
 
 def _crosshair(c: Canvas, x: float, y: float) -> None:
     c.setDash([], 0)
@@ -552,10 +563,15 @@ def _neighbours(c: Canvas, frame: Frame, t: Tiling, row: int, col: int, wx: floa
     c.setFillColor(INK)
 
 
-def _map(ch: Choice) -> Draw:
-    part, t = ch.part, ch.tiles
+@dataclass(frozen=True)
+class MapPage:
+    """The assembly map of a tiled template: where each tile goes."""
 
-    def draw(c: Canvas, frame: Frame) -> None:
+    choice: Choice
+
+    def draw(self, c: Canvas, frame: Frame) -> None:
+        ch = self.choice
+        part, t = ch.part, ch.tiles
         title = f"Assembly map — {part.id} ({part.name}): {t.rows}×{t.cols} tiles"
         c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 12, frame.content_width, 8))
         c.drawString(frame.left, frame.top - 5.5 * MM, safe(title))
@@ -592,4 +608,3 @@ def _map(ch: Choice) -> Draw:
         c.setFillColor(INK)
         calibration_bars(c, frame)
 
-    return draw

@@ -5,9 +5,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from compiler.build import compile_text
-from compiler.cache import Cache, key_of
-from compiler.emit.pdf import plan, render
+from compiler.build import Compiled, compile_text
+from compiler.cache import Cache
+from compiler.emit.pdf import BuildSheet, page_key, plan, render
 from compiler.emit.pdf.style import frame_for
 from compiler.options import BuildOptions
 
@@ -38,9 +38,8 @@ def test_unchanged_pages_are_replayed_with_the_same_bytes(tmp_path: Path) -> Non
     # exactly the bodies whose inputs are the same as before come from the cache
     frame = frame_for("a4")
 
-    def keys(compiled: object) -> set[str]:
-        return {"pdf-page-" + key_of("pdf-page", frame, p.key)
-                for p in plan(compiled.resolved, compiled.parts, BuildOptions())  # type: ignore[attr-defined]
-                if p.key is not None}
+    def keys(compiled: Compiled) -> set[str]:
+        sheet = BuildSheet.of(compiled.resolved, compiled.parts, BuildOptions())
+        return {"pdf-page-" + page_key(frame, page) for page in plan(sheet)}
 
     assert reused == keys(before) & keys(after)
