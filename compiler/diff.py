@@ -38,6 +38,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from compiler.display import Inches, in_inches, inches_for
 from compiler.emit.resolved_json import to_dict
 from compiler.ir import Resolved
 from compiler.spec.loader import SpecFileError, read_spec_file
@@ -414,7 +415,7 @@ def _hole_words(c: Change) -> str:
     name = c.field.rsplit(".", 1)[1]
     if name == "diameter_mm" and c.delta is not None:
         how = "enlarge" if c.delta > 0 else "smaller: a new tube"
-        return f"hole {hole} ø {_value(c.old, 2)} -> {_value(c.new, 2)} mm ({how})"
+        return f"hole {hole} ø {_value(c.old, 2)} mm -> {_value(c.new, 2)} mm ({how})"
     if name.startswith("position_from_top") and c.delta is not None:
         return f"hole {hole} moves {c.delta:+.2f} mm from the top"
     if name == "angle_deg" and c.delta is not None:
@@ -435,12 +436,14 @@ def _action(pipe: str, mine: list[Change]) -> PipeAction:
     words: list[str] = []
     if cut is not None and cut.delta is not None:
         if cut.delta < 0:
-            words.append(f"cut length {_value(cut.old, 2)} -> {_value(cut.new, 2)} mm "
+            words.append(f"cut length {_value(cut.old, 2)} mm -> {_value(cut.new, 2)} mm "
                          f"(trim {_mm(cut.delta)})")
         else:
-            words.append(f"cut length {_value(cut.old, 2)} -> {_value(cut.new, 2)} mm "
+            words.append(f"cut length {_value(cut.old, 2)} mm -> {_value(cut.new, 2)} mm "
                          f"({_mm(cut.delta)} longer: cut a new one)")
-    words += [f"{c.field} {_value(c.old, 2)} -> {_value(c.new, 2)}" for c in others[:3]]
+    unit = {c.field: " mm" if c.unit == "mm" else "" for c in others}
+    words += [f"{c.field} {_value(c.old, 2)}{unit[c.field]} -> {_value(c.new, 2)}{unit[c.field]}"
+              for c in others[:3]]
     if len(others) > 3:
         words.append(f"{len(others) - 3} more")
     if stopper and not words:
@@ -483,26 +486,28 @@ def actions(changes: list[Change]) -> list[PipeAction]:
     return found
 
 
-def _actions_block(changes: list[Change], pipes_in_new: int) -> list[str]:
+def _actions_block(changes: list[Change], pipes_in_new: int,
+                   inches: Inches | None = None) -> list[str]:
     found = actions(changes)
     if not found:
         return []
     width = max(len(a.pipe) for a in found)
     lines = ["what to re-cut or re-drill, one line per pipe:"]
-    lines += [f"  {a.pipe.ljust(width)}  {a.line}" for a in found]
+    lines += [f"  {a.pipe.ljust(width)}  {in_inches(a.line, inches)}" for a in found]
     untouched = pipes_in_new - sum(1 for a in found if a.action != "drop")
     if untouched > 0:
         lines.append(f"  ({_plural(untouched, 'other pipe')} unchanged)")
     return lines + [""]
 
 
-def render(changes: list[Change], pipes_in_new: int = 0) -> str:
+def render(changes: list[Change], pipes_in_new: int = 0, inches: Inches | None = None) -> str:
     """The report: what to re-cut or re-drill (a line per pipe), then every change in
     aligned columns, a blank line between pipes, then the summary; ``no changes`` when the
-    list is empty. ``pipes_in_new`` counts the unchanged pipes."""
+    list is empty. ``pipes_in_new`` counts the unchanged pipes; with ``inches`` (the new spec
+    is in inches) the lines of what to do give their lengths in inches too."""
     if not changes:
         return "no changes\n"
-    head = _actions_block(changes, pipes_in_new)
+    head = _actions_block(changes, pipes_in_new, inches)
     if head:
         head.append("every change:")
     rows = [_row(c) for c in changes]
@@ -553,4 +558,5 @@ def run_diff(old_arg: str, new_arg: str, cwd: Path, json_output: bool = False) -
     if json_output:
         return code, json.dumps(as_json(changes), indent=2, sort_keys=True,
                                 ensure_ascii=False) + "\n"
-    return code, render(changes, len(new.pipes))
+    return code, render(changes, len(new.pipes),
+                        inches_for(new.fabrication.units, new.fabrication.precision_m))

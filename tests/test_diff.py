@@ -327,6 +327,25 @@ def test_a_recalibrated_rank_is_trimmed_not_recut(organ: Resolved) -> None:
         assert "band" not in found[pipe].line
 
 
+def test_an_inch_specs_bench_lines_are_in_inches(tmp_path: Path) -> None:
+    # A rank written in inches, 4 °F cooler: every pipe is trimmed, and the line that says
+    # by how much gives the fraction of an inch the maker's rule reads (1 in = 25.4 mm).
+    spec = ROOT / "tests" / "cases" / "organ-ranks-inch" / "spec.yaml"
+    (tmp_path / "a.yaml").write_bytes(spec.read_bytes())
+    (tmp_path / "b.yaml").write_text(_edit(spec, "temperature: 64 F", "temperature: 60 F"),
+                                     encoding="utf-8")
+    code, text = run_diff("a.yaml", "b.yaml", tmp_path)
+    assert code == 1
+    bench = [ln for ln in text.split("every change:")[0].splitlines() if "trim:" in ln]
+    assert bench
+    for line in bench:
+        trim = re.search(r"\(trim (\d+/\d+) in = (\d+\.\d+) mm\)", line)
+        assert trim is not None, line
+        num, den = map(int, trim.group(1).split("/"))
+        assert abs(25.4 * num / den - float(trim.group(2))) <= 25.4 / 64 + 1e-9
+        assert re.search(r"cut length [\d /]+ in = [\d.]+ mm -> [\d /]+ in = ", line), line
+
+
 def test_a_cooler_flute_is_recut_and_redrilled() -> None:
     from compiler.diff import actions
 
