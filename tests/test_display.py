@@ -132,3 +132,24 @@ def test_every_length_in_an_inch_ranks_cut_list_notes_is_in_inches(tmp_path: Pat
     for note in notes:
         for match in re.finditer(r"(\d+(?:\.\d+)?) mm", note):
             assert note[:match.start()].endswith(" in = "), note
+
+
+def test_trim_advice_of_an_inch_spec_is_in_inches() -> None:
+    # A measured pipe of a rank written in inches: the advice the maker follows at the bench
+    # ("cut ... off the top", "push the stopper ... in") gives the fraction of an inch, in
+    # the resolve table and on the build sheet, beside the millimetres.
+    from compiler.emit.pdf import trims
+    from compiler.emit.pdf.document import Paragraph
+    from compiler.emit.table import render
+    from compiler.resolve.resolver import resolve
+    from compiler.spec import load_spec
+
+    spec = ROOT / "tests" / "cases" / "organ-ranks-inch" / "spec.yaml"
+    resolved = resolve(load_spec(spec.read_bytes(), "spec.yaml"))
+    advice = [t.advice for g in resolved.groups for t in g.trims]
+    assert advice and all(" mm" in a for a in advice)
+    table = render(resolved).split("trim advice", 1)[1]
+    assert "change in" in table
+    assert all(in_inches(a, inches_for("in", 0.0254 / 32)) in table for a in advice)
+    words = [b.text for b in trims.blocks(resolved) if isinstance(b, Paragraph)]
+    assert words and all(" in = " in w for w in words)

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from compiler.display import Inches, inches_for
+from compiler.display import Inches, in_inches, inches_for
 from compiler.ir import Group, Pipe, Resolved
 
 
@@ -121,8 +121,9 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
     return lines
 
 
-def _trim_table(group: Group) -> list[str]:
-    """Trim advice for the group's measured pipes, in the spec's air."""
+def _trim_table(group: Group, inches: Inches | None = None) -> list[str]:
+    """Trim advice for the group's measured pipes, in the spec's air (and the change and
+    the advice in inches too for a spec in inches)."""
     if not group.trims:
         return []
     lines = ["", f"trim advice for the measured pipes, to sound their targets at "
@@ -132,8 +133,12 @@ def _trim_table(group: Group) -> list[str]:
     rows += [[t.note, _mm(t.built_length_m), f"{t.measured_hz:.2f}",
               f"{t.measured_temperature_c:.1f}", f"{t.in_spec_air_hz:.2f}",
               f"{t.target_hz:.2f}", f"{t.off_cents:+.2f}", f"{t.change_m * 1000:+.2f}",
-              t.advice] for t in group.trims]
-    return lines + _align(rows, right={1, 2, 3, 4, 5, 6, 7})
+              in_inches(t.advice, inches)] for t in group.trims]
+    if inches:
+        rows[0][-1:-1] = ["change in"]
+        for row, t in zip(rows[1:], group.trims, strict=True):
+            row[-1:-1] = [_in(t.change_m, inches)]
+    return lines + _align(rows, right=set(range(1, 9 if inches else 8)))
 
 
 def render(resolved: Resolved) -> str:
@@ -142,10 +147,9 @@ def render(resolved: Resolved) -> str:
     lines = [f"{resolved.instrument} — {resolved.spec_file}",
              f"tuning: A4 = {resolved.tuning.a4_hz:g} Hz, {resolved.tuning.temperament} "
              f"on {resolved.tuning.tonic}"]
+    inches = inches_for(resolved.fabrication.units, resolved.fabrication.precision_m)
     for group in resolved.groups:
         lines.append("")
-        lines += _group_table(group, [by_id[i] for i in group.pipe_ids],
-                              inches_for(resolved.fabrication.units,
-                                         resolved.fabrication.precision_m))
-        lines += _trim_table(group)
+        lines += _group_table(group, [by_id[i] for i in group.pipe_ids], inches)
+        lines += _trim_table(group, inches)
     return "\n".join(lines) + "\n"

@@ -3,6 +3,7 @@ its stopper, cap or plug so it sounds its target in the spec's air (``resolve.tr
 
 from __future__ import annotations
 
+from compiler.display import in_inches
 from compiler.emit.pdf.document import Block, Column, Heading, Paragraph, Spacer, Table
 from compiler.emit.pdf.style import MM, celsius, cents, fixed, hz, inches_of, length
 from compiler.ir import Resolved
@@ -21,10 +22,12 @@ def blocks(resolved: Resolved) -> list[Block]:
     rows = tuple((t.pipe_id, length(t.built_length_m, inches),
                   f"{hz(t.measured_hz)} Hz at {celsius(t.measured_temperature_c)}",
                   f"{hz(t.in_spec_air_hz)} Hz", f"{hz(t.target_hz)} Hz", cents(t.off_cents),
-                  f"{fixed(t.change_m * 1000, 2, signed=True)} mm") for _, t in trims)
+                  f"{fixed(t.change_m * 1000, 2, signed=True)} mm"
+                  + (f" ({inches.text(t.change_m)} in)" if inches else "")) for _, t in trims)
     out: list[Block] = [Spacer(2 * MM), Heading("Trim advice for the measured pipes", 12),
                         Table(cols, rows, size=8, min_rows=1)]
     for group, t in trims:
-        out.append(Paragraph(f"{t.pipe_id} ({group.id}, {t.note}): {t.advice}; to sound "
+        out.append(Paragraph(f"{t.pipe_id} ({group.id}, {t.note}): "
+                             f"{in_inches(t.advice, inches)}; to sound "
                              f"{hz(t.target_hz)} Hz at {celsius(group.air.temperature_c)}.", 9))
     return out
