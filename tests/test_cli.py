@@ -84,17 +84,26 @@ def test_resolve_table_shows_inches_for_inch_specs(tmp_path: Path,
     assert main(["resolve", str(spec)]) == 0
     lines = capsys.readouterr().out.splitlines()
     header = next(ln for ln in lines if ln.startswith("note "))
-    assert re.search(r"speaking in +cut in$", header.rstrip())
+    assert re.search(r"speaking in +cut in +section in +mouth in +cut-up in +toe in$",
+                     header.rstrip())
     c4 = next(ln for ln in lines if ln.startswith("C4 "))
     cut_mm = float(c4.split()[5])
-    # the last column: the cut length in inches, in 32nds (the default precision of a spec
-    # in inches): "8 15/32" or "8"
-    shown = re.search(r"  (\d+)(?: (\d+)/(\d+))?$", c4)
+    # the cut length in inches (its column is right-aligned under "cut in"), in 32nds (the
+    # default precision of a spec in inches): "8 15/32" or "8"
+    end = header.index("cut in") + len("cut in")
+    shown = re.search(r"  (\d+)(?: (\d+)/(\d+))?$", c4[:end])
     assert shown is not None
     whole, num, den = shown.group(1), shown.group(2), shown.group(3)
     cut_in = Fraction(int(whole)) + (Fraction(int(num), int(den)) if num else 0)
     assert 32 % cut_in.denominator == 0
     assert float(cut_in) == pytest.approx(cut_mm / 25.4, abs=1 / 64 + 0.05 / 25.4)
+    # the tube's bore in inches too, under "section in"
+    end = header.index("section in") + len("section in")
+    bore = re.search(r"ø(\d+/\d+|\d+(?: \d+/\d+)?)$", c4[:end])
+    bore_mm = float(c4.split()[6].removeprefix("ø"))
+    assert bore is not None
+    assert float(sum(Fraction(p) for p in bore.group(1).split())) == pytest.approx(
+        bore_mm / 25.4, abs=1 / 64 + 0.05 / 25.4)
 
 
 def test_build_into_a_file_is_a_usage_error(tmp_path: Path,

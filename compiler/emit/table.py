@@ -75,11 +75,17 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
                 m and m.band_percent) else ["", "", ""]
         rows.append(row)
     if inches:
-        header += ["speaking in", "cut in"]
+        header += ["speaking in", "cut in", "section in", "mouth in", "cut-up in", "toe in"]
         for row, p in zip(rows[1:], pipes, strict=True):
-            row += [_in(p.speaking_length_m, inches), _in(p.cut_length_m, inches)]
+            section = (f"ø{_in(p.inside_diameter_m, inches)}" if p.section == "round" else
+                       f"{_in(p.inside_width_m, inches)}×{_in(p.inside_depth_m, inches)}")
+            row += [_in(p.speaking_length_m, inches), _in(p.cut_length_m, inches), section,
+                    _in(p.mouth.width_m if p.mouth else None, inches),
+                    _in(p.mouth.cutup_m if p.mouth else None, inches),
+                    _in(p.foot.toe_hole_m if p.foot else None, inches)]
     extra = 3 if banded else 0  # the band's columns sit before the stock's (column 10)
-    right = {1, 2, 3, 4, 5, 7, 8, 9} | set(range(10, 10 + extra)) | {11 + extra, 12 + extra}
+    right = {1, 2, 3, 4, 5, 7, 8, 9} | set(range(10, 10 + extra)) | set(
+        range(11 + extra, 17 + extra))
     lines += _align(rows, right=right)
     for p in pipes:
         if p.holes:
