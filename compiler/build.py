@@ -48,6 +48,17 @@ def backends() -> dict[str, ModuleType]:
 
 
 @dataclass(frozen=True)
+class BuildInputs:
+    """What a whole build's output depends on, and so the key an up-to-date output is found
+    by: the spec's bytes, its file name (outputs name the spec file, never its folder) and
+    the options."""
+
+    spec: bytes
+    file_name: str
+    options: BuildOptions
+
+
+@dataclass(frozen=True)
 class Compiled:
     resolved: Resolved
     parts: Parts
@@ -263,8 +274,7 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     say = progress or _quiet
     tell = warn or _quiet
     data = text.encode("utf-8") if isinstance(text, str) else text
-    build_key = key_of("build", data, Path(filename).name,
-                       options.paper, options.dxf_version, options.part_files, options.strict)
+    build_key = key_of(BuildInputs(data, Path(filename).name, options))
     if use_cache:
         done = _up_to_date(out_root, build_key)
         if done is not None:

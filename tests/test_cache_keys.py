@@ -24,7 +24,7 @@ from types import MappingProxyType
 import pytest
 from reportlab.lib.colors import Color
 
-from compiler.build import build, compile_text
+from compiler.build import BuildInputs, build, compile_text
 from compiler.cache import FOLDER, key_of
 from compiler.emit import dxf, pdf
 from compiler.emit.pdf.style import frame_for
@@ -59,8 +59,8 @@ def _changes(value: object) -> Iterator[object]:
         yield math.nextafter(value, math.inf) if math.isfinite(value) else 0.0
     elif isinstance(value, (int, Fraction)):
         yield value + 1
-    elif isinstance(value, str):
-        yield value + "x"
+    elif isinstance(value, (str, bytes)):
+        yield value + ("x" if isinstance(value, str) else b"x")
     elif value is None:
         yield 0
     elif is_dataclass(value) and not isinstance(value, type):
@@ -171,6 +171,12 @@ def test_pipe_parts_inputs_key_on_every_field(name: str) -> None:
         inputs = PipePartsInputs(pipe, resolved.fabrication.kerf_m,
                                  resolved.fabrication.seam_allowance_m, stock.get(pipe.stock))
         assert assert_every_field_is_in_the_key(inputs) > 20
+
+
+def test_a_whole_build_keys_on_every_field() -> None:
+    text, path = _spec("blown-stopped-tubes.yaml")
+    inputs = BuildInputs(text.encode(), path.name, BuildOptions())
+    assert assert_every_field_is_in_the_key(inputs) > 5
 
 
 def test_dxf_files_key_on_every_field(tmp_path: Path) -> None:
