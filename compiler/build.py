@@ -27,13 +27,14 @@ from typing import Any
 
 from compiler.cache import FOLDER as CACHE_FOLDER
 from compiler.cache import Cache, key_of, memo
-from compiler.errors import Problem, SpecError
+from compiler.errors import Note, Position, in_order, refuse_if_strict
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved
-from compiler.options import BuildOptions
+from compiler.options import BuildOptions, Overrides
 from compiler.spec.model import Spec
 
 Progress = Callable[[str], None]
+Warn = Callable[[Note], None]
 PARALLEL_MIN_PIPES = 100
 """From this many pipes on, the PDF is rendered in a second process (2 cores)."""
 LAST_BUILDS = "last-builds.json"
@@ -51,34 +52,36 @@ def backends() -> dict[str, ModuleType]:
 class BuildInputs:
     """What a whole build's output depends on, and so the key an up-to-date output is found
     by: the spec's bytes, its file name (outputs name the spec file, never its folder) and
-    the options."""
+    the command line's choices (the options settle from these and the spec)."""
 
     spec: bytes
     file_name: str
-    options: BuildOptions
+    overrides: Overrides
 
 
 @dataclass(frozen=True)
 class Compiled:
     resolved: Resolved
     parts: Parts
+    options: BuildOptions
+    """The command line's choices merged with the spec's, once: what the backends read."""
 
 
 def _quiet(_message: str) -> None:
     return None
 
 
-def compile_text(text: str | bytes, filename: str, options: BuildOptions,
+def compile_text(text: str | bytes, filename: str, overrides: Overrides,
                  progress: Progress | None = None, cache: Cache | None = None) -> Compiled:
     """Pure core: spec text -> resolved model and parts (no files written but the cache)."""
     from compiler.spec import load_spec
 
-    return compile_spec(load_spec(text, filename), options, progress, cache)
+    return compile_spec(load_spec(text, filename), overrides, progress, cache)
 
 
-def compile_spec(spec: Spec, options: BuildOptions, progress: Progress | None = None,
+def compile_spec(spec: Spec, overrides: Overrides, progress: Progress | None = None,
                  cache: Cache | None = None) -> Compiled:
-    """Resolve and lay out a loaded spec."""
+    """Resolve and lay out a loaded spec; with ``strict``, its warnings are errors."""
     from compiler.geometry.layout import layout
     from compiler.resolve.resolver import resolve
 
@@ -86,24 +89,23 @@ def compile_spec(spec: Spec, options: BuildOptions, progress: Progress | None = 
     count = sum(len(r.notes) for r in spec.ranks) + sum(len(t.notes) for t in spec.tube_sets)
     say(f"resolving {count + len(spec.flutes) + len(spec.surveys)} pipes")
     resolved = resolve(spec, memo(cache, "group"))
-    if options.strict and resolved.warnings:
-        raise SpecError([Problem(n.position, n.message, "warnings are errors with --strict")
-                         for n in resolved.warnings])
+    options = overrides.settle(resolved.fabrication)
+    refuse_if_strict(resolved.warnings, options.strict)
     say("laying out parts")
     parts = layout(resolved, options, memo(cache, "parts"))
-    return Compiled(resolved, parts)
+    return Compiled(resolved, parts, options)
 
 
 def _sha256(path: Path) -> str:
     return hashlib.sha256(path.read_bytes()).hexdigest()
 
 
-def _run_backend(name: str, compiled: Compiled, options: BuildOptions, folder: Path,
+def _run_backend(name: str, compiled: Compiled, folder: Path,
                  cache_folder: Path | None) -> tuple[list[Path], set[str]]:
     """One backend, in this process or a worker; returns its files and the cache keys used."""
     cache = Cache(cache_folder)
-    written = backends()[name].write(compiled.resolved, compiled.parts, options, folder,
-                                     cache=cache)
+    written = backends()[name].write(compiled.resolved, compiled.parts, compiled.options,
+                                     folder, cache=cache)
     return list(written), cache.used
 
 
@@ -120,13 +122,13 @@ def _die_with_parent() -> None:
         return
 
 
-def _pdf_worker(send: Any, compiled: Compiled, options: BuildOptions, folder: Path,
-                cache_folder: Path | None, parent: int) -> None:
+def _pdf_worker(send: Any, compiled: Compiled, folder: Path, cache_folder: Path | None,
+                parent: int) -> None:
     _die_with_parent()
     if os.getppid() != parent:  # the parent died before the line above took effect
         os._exit(1)
     try:
-        files, used = _run_backend("pdf", compiled, options, folder, cache_folder)
+        files, used = _run_backend("pdf", compiled, folder, cache_folder)
         send.send(("ok", files, used))
     except BaseException as exc:  # reported by the parent, which raises
         send.send((f"{type(exc).__name__}: {exc}", [], set()))
@@ -134,10 +136,10 @@ def _pdf_worker(send: Any, compiled: Compiled, options: BuildOptions, folder: Pa
         send.close()
 
 
-def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
-             progress: Progress | None = None, cache: Cache | None = None,
-             build_key: str = "") -> list[Path]:
-    """Run every backend into ``folder``, then write ``manifest.json``."""
+def emit_all(compiled: Compiled, folder: Path, progress: Progress | None = None,
+             cache: Cache | None = None, build_key: str = "") -> list[Path]:
+    """Run every backend into ``folder``, then write ``manifest.json`` (with the spec's
+    warnings, which a rebuild that finds the output up to date reports again)."""
     say = progress or _quiet
     store = cache or Cache(None)
     names = list(backends())
@@ -151,15 +153,14 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         context = multiprocessing.get_context("fork")
         receive, send = context.Pipe(duplex=False)
         worker = context.Process(target=_pdf_worker,
-                                 args=(send, compiled, options, folder, store.folder,
-                                       os.getpid()))
+                                 args=(send, compiled, folder, store.folder, os.getpid()))
         worker.start()
         send.close()
         names.remove("pdf")
     try:
         for name in names:
             say(f"writing {name}")
-            files, used = _run_backend(name, compiled, options, folder, store.folder)
+            files, used = _run_backend(name, compiled, folder, store.folder)
             written += files
             store.used |= used
         if worker is not None:
@@ -183,8 +184,7 @@ def emit_all(compiled: Compiled, options: BuildOptions, folder: Path,
         "spec_file": compiled.resolved.spec_file,
         "spec_sha256": compiled.resolved.spec_sha256,
         "build_key": build_key,
-        "warnings": [f"{n.position.shown()}: warning: {n.message}"
-                     for n in compiled.resolved.warnings],
+        "warnings": [n.shown() for n in compiled.resolved.warnings],
         "files": [{"path": f, "sha256": _sha256(folder / f), "bytes": (folder / f).stat().st_size}
                   for f in names_written],
     }
@@ -250,43 +250,49 @@ def _remember(out_root: Path, build_key: str, slug: str) -> None:
     os.replace(temp, path)
 
 
-def _warn_if_other_spec(target: Path, resolved: Resolved, tell: Progress) -> None:
-    """Say so when the output about to be replaced was built from another spec file that
-    names the same instrument (two specs would keep overwriting each other's output)."""
+def _replacing_another_spec(target: Path, spec: Spec, resolved: Resolved) -> list[Note]:
+    """A warning when the output about to be replaced was built from another spec file that
+    names the same instrument (two specs would keep overwriting each other's output), at
+    the spec's `instrument`."""
     try:
         manifest = json.loads((target / "manifest.json").read_text(encoding="utf-8"))
         before = str(manifest["spec_file"])
     except (OSError, ValueError, KeyError, TypeError):
-        return
-    if before != resolved.spec_file:
-        tell(f"{resolved.spec_file}: warning: replacing {target}, the output of {before}: both "
-             f"specs name the instrument `{resolved.instrument}`; give one of them another "
-             "`instrument:` name to keep both outputs")
+        return []
+    if before == resolved.spec_file:
+        return []
+    return [Note(spec.where.get("instrument", Position(spec.file, 1, 1)),
+                 f"replacing {target}, the output of {before}: both specs name the instrument "
+                 f"`{resolved.instrument}`; give one of them another `instrument:` name to "
+                 "keep both outputs")]
 
 
-def build(text: str | bytes, filename: str, out_root: Path, options: BuildOptions,
+def _quiet_note(_note: Note) -> None:
+    return None
+
+
+def build(text: str | bytes, filename: str, out_root: Path, overrides: Overrides,
           progress: Progress | None = None, use_cache: bool = True,
-          warn: Progress | None = None) -> Path:
+          warn: Warn | None = None) -> Path:
     """Compile and write ``out_root/<slug>/`` atomically; return that folder.
 
-    ``warn`` receives each warning as ``FILE:LINE:COL: warning: MESSAGE`` (also when the
-    build was up to date: the manifest keeps them)."""
+    ``warn`` receives each warning, in order, before anything is written (with ``strict``
+    they are errors instead); when the build was up to date, the warnings its manifest
+    keeps."""
     say = progress or _quiet
-    tell = warn or _quiet
+    tell = warn or _quiet_note
     data = text.encode("utf-8") if isinstance(text, str) else text
-    build_key = key_of(BuildInputs(data, Path(filename).name, options))
+    build_key = key_of(BuildInputs(data, Path(filename).name, overrides))
     if use_cache:
         done = _up_to_date(out_root, build_key)
         if done is not None:
             target, manifest = done
             _clean_leftovers(out_root, target.name)
             say("up to date")
-            shown = Path(filename).name
             for line in manifest.get("warnings", []):
                 # The manifest names the spec file without its folder: put back the path
                 # the user gave, so the warning still leads to the file.
-                text = str(line)
-                tell(filename + text[len(shown):] if text.startswith(shown + ":") else text)
+                tell(Note.from_shown(str(line), filename))
             return target
     from compiler.resolve.resolver import slug
     from compiler.spec import load_spec
@@ -294,27 +300,29 @@ def build(text: str | bytes, filename: str, out_root: Path, options: BuildOption
     spec = load_spec(data, filename)
     slug_name = slug(spec.instrument)
     cache = Cache(out_root / CACHE_FOLDER / slug_name if use_cache else None)
-    compiled = compile_spec(spec, options, progress, cache)
-    for note in compiled.resolved.warnings:
-        tell(f"{note.position}: warning: {note.message}")
+    compiled = compile_spec(spec, overrides, progress, cache)
     out_root.mkdir(parents=True, exist_ok=True)
     target = out_root / slug_name
     if not _inside(out_root, target):
         raise OutputError(f"refusing to write outside {out_root}: {target} leads elsewhere "
                           "(a symbolic link?); choose another output folder with -o")
     _clean_leftovers(out_root, slug_name)
+    notes = in_order([*compiled.resolved.warnings,
+                      *_replacing_another_spec(target, spec, compiled.resolved)])
+    refuse_if_strict(notes, compiled.options.strict)
+    for note in notes:
+        tell(note)
     work = Path(tempfile.mkdtemp(prefix=f".{slug_name}.building-", dir=out_root))
     umask = os.umask(0)
     os.umask(umask)
     os.chmod(work, 0o777 & ~umask)  # mkdtemp makes it private; the output is the user's
     try:
-        written = emit_all(compiled, options, work, progress, cache, build_key)
+        written = emit_all(compiled, work, progress, cache, build_key)
         for path in written:
             if not _inside(work, path):
                 raise OutputError(f"a backend wrote outside the build folder: {path}")
         old = None
         if target.exists():
-            _warn_if_other_spec(target, compiled.resolved, tell)
             old = Path(tempfile.mkdtemp(prefix=f".{slug_name}.old-", dir=out_root))
             os.replace(target, old / "previous")
         os.replace(work, target)

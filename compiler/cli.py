@@ -15,7 +15,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from compiler import __version__
-from compiler.errors import Problem, SpecError
+from compiler.errors import Note, Problem, SpecError, refuse_if_strict
 
 EXIT_OK, EXIT_SPEC, EXIT_USAGE = 0, 1, 2
 
@@ -58,29 +58,20 @@ def cmd_check(args: argparse.Namespace) -> int:
     return EXIT_SPEC if everything else EXIT_OK
 
 
-def _load(path: str, strict: bool = False):  # type: ignore[no-untyped-def]
-    """Load and resolve one spec (raises SpecError); warnings are errors when strict."""
-    from compiler.errors import Problem as P
-    from compiler.resolve.resolver import resolve
-    from compiler.spec import load_spec
-
-    resolved = resolve(load_spec(_read(path), path))
-    if strict and resolved.warnings:
-        raise SpecError([P(n.position, n.message, "warnings are errors with --strict")
-                         for n in resolved.warnings])
-    return resolved
-
-
-def _warn(resolved) -> None:  # type: ignore[no-untyped-def]
-    for note in resolved.warnings:
-        print(f"{note.position}: warning: {note.message}", file=sys.stderr)
+def _warn(note: Note) -> None:
+    """Every warning of every command is printed here, as ``FILE:LINE:COL: warning: ...``."""
+    print(note.format(), file=sys.stderr)
 
 
 def cmd_resolve(args: argparse.Namespace) -> int:
     from compiler.emit import resolved_json, table
+    from compiler.resolve.resolver import resolve
+    from compiler.spec import load_spec
 
-    resolved = _load(args.spec, args.strict)
-    _warn(resolved)
+    resolved = resolve(load_spec(_read(args.spec), args.spec))
+    refuse_if_strict(resolved.warnings, args.strict)
+    for note in resolved.warnings:
+        _warn(note)
     if args.json:
         _write_json(resolved_json.dumps(resolved))
     else:
@@ -90,7 +81,7 @@ def cmd_resolve(args: argparse.Namespace) -> int:
 
 def cmd_build(args: argparse.Namespace) -> int:
     from compiler.build import OutputError, build
-    from compiler.options import BuildOptions
+    from compiler.options import Overrides
 
     show = args.progress if args.progress is not None else sys.stderr.isatty()
 
@@ -98,11 +89,11 @@ def cmd_build(args: argparse.Namespace) -> int:
         if show:
             print(f"boresmith: {message}", file=sys.stderr, flush=True)
 
-    options = BuildOptions(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
-                           strict=args.strict)
+    overrides = Overrides(paper=args.paper, dxf_version=args.dxf, part_files=args.part_files,
+                          strict=args.strict)
     try:
-        folder = build(_read(args.spec), args.spec, Path(args.out), options, progress,
-                       warn=lambda line: print(line, file=sys.stderr))
+        folder = build(_read(args.spec), args.spec, Path(args.out), overrides, progress,
+                       warn=_warn)
     except OutputError as exc:
         raise UsageError(str(exc)) from None
     except OSError as exc:  # the output folder: a file in the way, no permission, disk full

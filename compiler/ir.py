@@ -18,6 +18,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
+from compiler.errors import Note as Note  # the IR's warnings; defined with the errors
 from compiler.errors import Position
 
 NOT_IN_JSON = {"json": False}
@@ -394,14 +395,6 @@ class Group:
     where the group does not report it here (flutes and surveys carry their own)."""
     source: Position | None = spec_position()
     """Where the spec defines the rank, tube set, flute or survey."""
-
-
-@dataclass(frozen=True)
-class Note:
-    """A warning with its spec position (``--strict`` turns them into errors)."""
-
-    position: Position
-    message: str
 
 
 @dataclass(frozen=True)

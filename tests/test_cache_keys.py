@@ -29,7 +29,7 @@ from compiler.cache import FOLDER, key_of
 from compiler.emit import dxf, pdf
 from compiler.emit.pdf.style import frame_for
 from compiler.geometry.layout import PipePartsInputs, pipe_parts
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 from compiler.resolve.inputs import GroupInputs, group_inputs
 from compiler.spec import load_spec
 
@@ -165,7 +165,7 @@ def test_group_inputs_hold_only_the_stock_the_group_names() -> None:
                                   "blown-stopped-tubes.yaml", "duct-flute-d.yaml"])
 def test_pipe_parts_inputs_key_on_every_field(name: str) -> None:
     text, path = _spec(name)
-    resolved = compile_text(text, str(path), BuildOptions()).resolved
+    resolved = compile_text(text, str(path), Overrides()).resolved
     stock = {s.name: s.thickness_m for s in resolved.stock}
     for pipe in (resolved.pipes[0], resolved.pipes[-1]):
         inputs = PipePartsInputs(pipe, resolved.fabrication.kerf_m,
@@ -175,13 +175,13 @@ def test_pipe_parts_inputs_key_on_every_field(name: str) -> None:
 
 def test_a_whole_build_keys_on_every_field() -> None:
     text, path = _spec("blown-stopped-tubes.yaml")
-    inputs = BuildInputs(text.encode(), path.name, BuildOptions())
+    inputs = BuildInputs(text.encode(), path.name, Overrides())
     assert assert_every_field_is_in_the_key(inputs) > 5
 
 
 def test_dxf_files_key_on_every_field(tmp_path: Path) -> None:
     text, path = _spec("blown-stopped-tubes.yaml")
-    compiled = compile_text(text, str(path), BuildOptions())
+    compiled = compile_text(text, str(path), Overrides())
     sheet = compiled.parts.sheets[0]
     by_id = {p.id: p for p in compiled.parts.parts}
     drawing = dxf.DxfFile(f"{sheet.id}.dxf", "r2010", (0.0, 0.0, sheet.length_mm,
@@ -196,8 +196,8 @@ def sheets() -> list[pdf.BuildSheet]:
     made = []
     for name in ("duct-flute-d.yaml", "blown-stopped-tubes.yaml"):
         text, path = _spec(name)
-        compiled = compile_text(text, str(path), BuildOptions())
-        made.append(pdf.BuildSheet.of(compiled.resolved, compiled.parts, BuildOptions()))
+        compiled = compile_text(text, str(path), Overrides())
+        made.append(pdf.BuildSheet.of(compiled.resolved, compiled.parts, compiled.options))
     return made
 
 
@@ -271,8 +271,8 @@ def test_cached_rebuild_after_an_edit_is_a_cold_build(tmp_path: Path, name: str,
     text, path = _spec(name)
     assert text.count(spot) == 1
     original, edited = text.replace(spot, old), text.replace(spot, new)
-    before = _tree(build(original, str(path), tmp_path / "warm", BuildOptions()))
-    warm = _tree(build(edited, str(path), tmp_path / "warm", BuildOptions()))
-    cold = _tree(build(edited, str(path), tmp_path / "cold", BuildOptions(), use_cache=False))
+    before = _tree(build(original, str(path), tmp_path / "warm", Overrides()))
+    warm = _tree(build(edited, str(path), tmp_path / "warm", Overrides()))
+    cold = _tree(build(edited, str(path), tmp_path / "cold", Overrides(), use_cache=False))
     assert warm == cold
     assert changed in warm and warm[changed] != before[changed]

@@ -159,7 +159,8 @@ def test_build_warns_when_it_replaces_another_specs_output(
     assert "warning" not in capsys.readouterr().err
     assert main(["build", str(second), "-o", str(out)]) == 0
     err = capsys.readouterr().err
-    assert ("tubes-wider.yaml: warning: replacing " in err and "the output of tubes.yaml" in err
+    # at the spec's `instrument:` (line 12, its value at column 13)
+    assert (f"{second}:12:13: warning: replacing " in err and "the output of tubes.yaml" in err
             and "`Riverside workshop stopped tubes`" in err)
     # the same spec again, or edited: its own output, no warning
     second.write_text(text.replace("alu-20, alu-25]", "alu-20]"), encoding="utf-8")

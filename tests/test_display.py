@@ -18,7 +18,7 @@ from pypdf import PdfReader
 from compiler.build import build
 from compiler.cli import main
 from compiler.display import Inches, in_inches, inches_for
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 ROOT = Path(__file__).resolve().parents[1]
 INCH = Fraction(254, 10)  # mm, exactly
@@ -88,7 +88,7 @@ def _inch_spec(tmp_path: Path) -> Path:
 
 def test_build_sheet_and_cut_list_in_fractions(tmp_path: Path) -> None:
     spec = _inch_spec(tmp_path)
-    folder = build(spec.read_bytes(), str(spec), tmp_path / "out", BuildOptions())
+    folder = build(spec.read_bytes(), str(spec), tmp_path / "out", Overrides())
     rows = list(csv.DictReader(io.StringIO((folder / "cut-list.csv").read_text())))
     tube = next(r for r in rows if r["what"] == "tube")
     length = Fraction(tube["length_mm"]) / INCH
@@ -125,7 +125,7 @@ def test_every_length_in_an_inch_ranks_cut_list_notes_is_in_inches(tmp_path: Pat
 
     spec = tmp_path / "rank.yaml"
     spec.write_text((ROOT / "tests" / "cases" / "organ-ranks-inch" / "spec.yaml").read_text())
-    folder = build(spec.read_bytes(), str(spec), tmp_path / "out", BuildOptions())
+    folder = build(spec.read_bytes(), str(spec), tmp_path / "out", Overrides())
     rows = list(csv.DictReader(io.StringIO((folder / "cut-list.csv").read_text())))
     notes = [r["note"] for r in rows if r["what"] in ("body", "foot", "cap")]
     assert any("pattern radii" in n for n in notes)

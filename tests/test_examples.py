@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 
 from compiler.build import build
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 EXAMPLES = sorted((Path(__file__).resolve().parents[1] / "specs_examples").glob("*.yaml"))
 
@@ -26,7 +26,7 @@ def test_at_least_the_six_instruments() -> None:
 
 @pytest.mark.parametrize("spec", EXAMPLES, ids=lambda p: p.stem)
 def test_example_builds_strict(spec: Path, tmp_path: Path) -> None:
-    folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(strict=True))
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides(strict=True))
     files = _tree(folder)
     assert {"resolved.json", "build-sheet.pdf", "cut-list.csv", "manifest.json"} <= set(files)
     manifest = json.loads(files["manifest.json"])
@@ -39,18 +39,18 @@ def test_example_builds_strict(spec: Path, tmp_path: Path) -> None:
 
 def test_same_spec_same_bytes(tmp_path: Path) -> None:
     spec = next(p for p in EXAMPLES if p.stem == "house-organ-principal")
-    first = _tree(build(spec.read_bytes(), str(spec), tmp_path / "a", BuildOptions()))
-    second = _tree(build(spec.read_bytes(), str(spec), tmp_path / "b", BuildOptions()))
+    first = _tree(build(spec.read_bytes(), str(spec), tmp_path / "a", Overrides()))
+    second = _tree(build(spec.read_bytes(), str(spec), tmp_path / "b", Overrides()))
     assert first == second
 
 
 def test_failed_build_keeps_the_previous_output(tmp_path: Path) -> None:
     spec = next(p for p in EXAMPLES if p.stem == "blown-stopped-tubes")
-    folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions())
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides())
     before = _tree(folder)
     broken = spec.read_text().replace("count: 15", "count: 30")  # notes no tube can reach
     with pytest.raises(Exception, match="no listed stock"):
-        build(broken, str(spec), tmp_path, BuildOptions())
+        build(broken, str(spec), tmp_path, Overrides())
     assert _tree(folder) == before
     assert sorted(p.name for p in tmp_path.iterdir()) == [".boresmith-cache", folder.name]
 
@@ -58,27 +58,27 @@ def test_failed_build_keeps_the_previous_output(tmp_path: Path) -> None:
 def test_unchanged_rebuild_is_skipped_and_a_damaged_output_is_rebuilt(tmp_path: Path) -> None:
     spec = next(p for p in EXAMPLES if p.stem == "blown-stopped-tubes")
     messages: list[str] = []
-    folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides(), messages.append)
     before = _tree(folder)
     messages.clear()
-    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    build(spec.read_bytes(), str(spec), tmp_path, Overrides(), messages.append)
     assert messages == ["up to date"]
     (folder / "cut-list.csv").write_text("damaged")
     messages.clear()
-    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(), messages.append)
+    build(spec.read_bytes(), str(spec), tmp_path, Overrides(), messages.append)
     assert "up to date" not in messages
     assert _tree(folder) == before
     # other options are another build
     messages.clear()
-    build(spec.read_bytes(), str(spec), tmp_path, BuildOptions(paper="letter"), messages.append)
+    build(spec.read_bytes(), str(spec), tmp_path, Overrides(paper="letter"), messages.append)
     assert "up to date" not in messages
 
 
 def test_cached_rebuild_gives_the_same_bytes_as_a_cold_one(tmp_path: Path) -> None:
     spec = next(p for p in EXAMPLES if p.stem == "stopped-wood-gedackt")
-    build(spec.read_bytes(), str(spec), tmp_path / "warm", BuildOptions())
+    build(spec.read_bytes(), str(spec), tmp_path / "warm", Overrides())
     changed = spec.read_text().replace("travel: 25 mm", "travel: 30 mm")
-    warm = _tree(build(changed, str(spec), tmp_path / "warm", BuildOptions()))
-    cold = _tree(build(changed, str(spec), tmp_path / "cold", BuildOptions(), use_cache=False))
+    warm = _tree(build(changed, str(spec), tmp_path / "warm", Overrides()))
+    cold = _tree(build(changed, str(spec), tmp_path / "cold", Overrides(), use_cache=False))
     assert warm == cold
     assert not (tmp_path / "cold" / ".boresmith-cache").exists()

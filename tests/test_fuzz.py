@@ -36,7 +36,7 @@ from hypothesis import strategies as st
 
 from compiler.build import Compiled, compile_text, emit_all
 from compiler.errors import SpecError
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 LONG_RUN = os.environ.get("BORESMITH_FUZZ_EXAMPLES", "").strip()
 EXAMPLES = int(LONG_RUN) if LONG_RUN else 6
@@ -418,7 +418,7 @@ def _compile(text: str) -> Compiled | None:
     """Compile, or check the SpecError points into the text and return None."""
     lines = text.splitlines()
     try:
-        return compile_text(text, "fuzz.yaml", BuildOptions())
+        return compile_text(text, "fuzz.yaml", Overrides())
     except SpecError as err:
         assert err.problems
         for problem in err.problems:
@@ -462,8 +462,8 @@ def check_spec(text: str) -> None:
         a, b = Path(temp, "a"), Path(temp, "b")
         a.mkdir()
         b.mkdir()
-        emit_all(first, BuildOptions(), a)
-        emit_all(second, BuildOptions(), b)
+        emit_all(first, a)
+        emit_all(second, b)
         files_a, files_b = _files(a), _files(b)
         assert files_a.keys() == files_b.keys()
         for name in files_a:

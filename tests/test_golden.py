@@ -24,7 +24,7 @@ import pytest
 from golden_dump import dumps_of
 
 from compiler.build import build
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 ROOT = Path(__file__).resolve().parents[1]
 CASES_DIR = Path(__file__).resolve().parent / "cases"
@@ -38,8 +38,8 @@ def _build_dumps(name: str, out_root: Path) -> dict[str, str]:
     command line prints them (left out when there are none)."""
     spec = CASES_DIR / name / "spec.yaml"
     warnings: list[str] = []
-    folder = build(spec.read_bytes(), "spec.yaml", out_root, BuildOptions(),
-                   use_cache=False, warn=warnings.append)
+    folder = build(spec.read_bytes(), "spec.yaml", out_root, Overrides(),
+                   use_cache=False, warn=lambda note: warnings.append(note.format()))
     dumps = dumps_of(folder)
     if warnings:
         dumps["warnings.txt"] = "\n".join(warnings) + "\n"

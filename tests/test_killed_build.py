@@ -23,7 +23,7 @@ from pathlib import Path
 
 from compiler.build import build
 from compiler.cache import FOLDER as CACHE_FOLDER
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 ROOT = Path(__file__).resolve().parents[1]
 EXAMPLE = ROOT / "specs_examples" / "practice-organ-610.yaml"
@@ -98,7 +98,7 @@ def _kill_when(proc: subprocess.Popen[bytes], moment: float | str, out: Path,
 def test_killed_builds_leave_the_previous_output_intact(tmp_path: Path) -> None:
     out = tmp_path / "out"
     started = time.monotonic()
-    folder = build(EXAMPLE.read_bytes(), str(EXAMPLE), out, BuildOptions())
+    folder = build(EXAMPLE.read_bytes(), str(EXAMPLE), out, Overrides())
     duration = time.monotonic() - started
     slug = folder.name
     previous = _tree(folder)
@@ -146,11 +146,11 @@ def test_killed_builds_leave_the_previous_output_intact(tmp_path: Path) -> None:
 
 def test_up_to_date_build_also_removes_leftovers_of_killed_builds(tmp_path: Path) -> None:
     out = tmp_path / "out"
-    folder = build(SMALL.read_bytes(), str(SMALL), out, BuildOptions())
+    folder = build(SMALL.read_bytes(), str(SMALL), out, Overrides())
     # What a build killed while writing leaves behind: its temporary folder, half full.
     leftover = out / f".{folder.name}.building-k1lled"
     leftover.mkdir()
     (leftover / "resolved.json").write_text("{", encoding="utf-8")
-    again = build(SMALL.read_bytes(), str(SMALL), out, BuildOptions())
+    again = build(SMALL.read_bytes(), str(SMALL), out, Overrides())
     assert again == folder
     assert _temporary(out, folder.name) == []

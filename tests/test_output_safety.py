@@ -17,7 +17,7 @@ import pytest
 
 from compiler.build import OutputError, build
 from compiler.errors import SchemaError
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 from compiler.spec import load_spec
 
 TRICKS = [
@@ -112,7 +112,7 @@ def _inside(folder: Path, path: Path) -> bool:
 ], ids=repr)
 def test_instrument_name_builds_inside_the_output_folder(name: str, tmp_path: Path) -> None:
     out = tmp_path / "out"
-    folder = build(_spec(name), "safety.yaml", out, BuildOptions(part_files=True))
+    folder = build(_spec(name), "safety.yaml", out, Overrides(part_files=True))
     assert folder.parent.resolve() == out.resolve()
     assert folder.name and "/" not in folder.name and "\\" not in folder.name
     assert folder.name not in {".", ".."} and not folder.name.startswith(".")
@@ -125,7 +125,7 @@ def test_instrument_name_builds_inside_the_output_folder(name: str, tmp_path: Pa
 def test_absolute_instrument_name_does_not_reach_that_path(tmp_path: Path) -> None:
     target = tmp_path / "elsewhere"
     out = tmp_path / "out"
-    build(_spec(str(target)), "safety.yaml", out, BuildOptions())
+    build(_spec(str(target)), "safety.yaml", out, Overrides())
     assert not target.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
 
@@ -133,7 +133,7 @@ def test_absolute_instrument_name_does_not_reach_that_path(tmp_path: Path) -> No
 def test_part_files_land_inside_the_output_folder(tmp_path: Path) -> None:
     out = tmp_path / "out"
     folder = build(_spec("../../Parts test", material="../../../sheet"), "safety.yaml", out,
-                   BuildOptions(part_files=True))
+                   Overrides(part_files=True))
     parts = sorted((folder / "parts").glob("*.dxf"))
     assert {p.stem for p in parts} >= {"tubes-holder", "pipe-C6-body"}
     for path in _everything(tmp_path):
@@ -157,7 +157,7 @@ def test_output_folder_that_is_a_link_elsewhere_is_not_written_through(tmp_path:
     out.mkdir()
     (out / "link-test").symlink_to(elsewhere, target_is_directory=True)
     with pytest.raises(OutputError, match="refusing to write outside"):
-        build(_spec("Link test"), "safety.yaml", out, BuildOptions())
+        build(_spec("Link test"), "safety.yaml", out, Overrides())
     assert list(elsewhere.iterdir()) == []
     assert (out / "link-test").is_symlink()
     # on the command line: a clean usage error, no traceback

@@ -12,7 +12,7 @@ from jsonschema import Draft202012Validator
 
 from compiler.build import build
 from compiler.cli import main
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
 from compiler.starters import FAMILIES, MODELINE, run_new, schema_text, starter
@@ -80,7 +80,7 @@ def test_every_key_is_explained(family: str) -> None:
 
 @pytest.mark.parametrize("family", FAMILIES)
 def test_starter_builds(family: str, tmp_path: Path) -> None:
-    folder = build(starter(family).encode(), f"{family}.yaml", tmp_path, BuildOptions(),
+    folder = build(starter(family).encode(), f"{family}.yaml", tmp_path, Overrides(),
                    lambda message: None)
     assert (folder / "resolved.json").is_file() and (folder / "build-sheet.pdf").is_file()
 

@@ -175,16 +175,14 @@ def sheet_entities(sheet: Sheet, parts: dict[str, Part]) -> tuple[Entity, ...]:
 def write(resolved: Resolved, parts: Parts, options: BuildOptions,
           out_dir: pathlib.Path, cache: Cache | None = None) -> list[pathlib.Path]:
     """Write ``sheet-<nn>-<material>.dxf`` for every nested sheet into ``out_dir``, and
-    ``parts/<part id>.dxf`` for every part when part files are on (``options.part_files``,
-    else the spec's ``fabrication.part_files``). Returns the paths written, sorted.
+    ``parts/<part id>.dxf`` for every part when ``options.part_files`` is on. Returns the
+    paths written, sorted.
 
     Each file's GUIDs derive from its own content and name, so an unchanged sheet gives the
     same bytes (and comes from ``cache``) whatever else changed in the spec."""
-    version = (options.dxf_version or resolved.fabrication.dxf_version).lower()
+    version = options.dxf_version
     if version not in VERSIONS:
         raise ValueError(f"unknown DXF version {version!r}; use one of {sorted(VERSIONS)}")
-    part_files = (resolved.fabrication.part_files if options.part_files is None
-                  else options.part_files)
     store = cache or Cache(None)
     by_id = {p.id: p for p in parts.parts}
     out_dir.mkdir(parents=True, exist_ok=True)
@@ -193,7 +191,7 @@ def write(resolved: Resolved, parts: Parts, options: BuildOptions,
         jobs.append(DxfFile(f"{sheet.id}.dxf", version, (0.0, 0.0, sheet.length_mm,
                                                          sheet.width_mm),
                             sheet_entities(sheet, by_id)))
-    if part_files:
+    if options.part_files:
         (out_dir / "parts").mkdir(exist_ok=True)
         for part in parts.parts:
             jobs.append(DxfFile(f"parts/{part.id}.dxf", version, bounds_of(part.entities),

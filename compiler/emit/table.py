@@ -148,7 +148,7 @@ def _trim_table(group: Group, inches: Inches | None = None) -> list[str]:
 
 
 def render(resolved: Resolved) -> str:
-    """All groups, one aligned table each, then the warnings."""
+    """All groups, one aligned table each, with their trim advice."""
     by_id = {p.id: p for p in resolved.pipes}
     lines = [f"{resolved.instrument} — {resolved.spec_file}",
              f"tuning: A4 = {resolved.tuning.a4_hz:g} Hz, {resolved.tuning.temperament} "

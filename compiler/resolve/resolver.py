@@ -10,7 +10,7 @@ from functools import partial
 from typing import Any
 
 from compiler.display import in_inches, inches_for
-from compiler.errors import SpecError
+from compiler.errors import SpecError, in_order
 from compiler.ir import (
     FabricationReport,
     Group,
@@ -138,6 +138,6 @@ def _resolve(spec: spec_model.Spec, memo: Memo) -> Resolved:
         stock=stock,
         groups=tuple(groups),
         pipes=tuple(pipes),
-        warnings=tuple(sorted(set(warnings), key=lambda n: (n.position, n.message))),
+        warnings=in_order(warnings),
         materials=materials.used(stock, pipes, groups),
     )

@@ -351,6 +351,8 @@ class Spec:
     tube_sets: tuple[TubeSet, ...]
     flutes: tuple[Flute, ...]
     surveys: tuple[Survey, ...] = ()
+    where: Mapping[str, Position] = field(default_factory=_frozen)
+    """Positions of top-level values (``instrument``)."""
 
     def stock_named(self, name: str) -> Stock | None:
         return next((s for s in self.stock if s.name == name), None)

@@ -152,6 +152,7 @@ def _build(r: _Reader, document: Document) -> model.Spec:
         tube_sets=tuple(_tube_set(r, i) for i in range(len(data.get("tube_sets", [])))),
         flutes=tuple(_flute(r, i) for i in range(len(data.get("flutes", [])))),
         surveys=tuple(read_survey(r, i) for i in range(len(data.get("surveys", [])))),
+        where=model._frozen(r.where((), "instrument")),
     )
     _check_references(r, spec)
     return spec

@@ -73,10 +73,9 @@ def test_part_files_on_request(model: Resolved, parts: Parts, tmp_path: pathlib.
     paths = dxf.write(model, parts, BuildOptions(part_files=True), tmp_path / "a")
     names = sorted(p.name for p in paths if p.parent.name == "parts")
     assert names == sorted(f"{p.id}.dxf" for p in parts.parts)
-    # The spec's fabrication.part_files applies unless the command line says otherwise.
+    # The backend follows its options alone (the spec's fabrication.part_files is merged
+    # into them once, before: tests/test_options.py).
     spec_on = replace(model, fabrication=replace(model.fabrication, part_files=True))
-    assert any(p.parent.name == "parts"
-               for p in dxf.write(spec_on, parts, BuildOptions(), tmp_path / "b"))
     assert not any(p.parent.name == "parts"
                    for p in dxf.write(spec_on, parts, BuildOptions(part_files=False),
                                       tmp_path / "c"))

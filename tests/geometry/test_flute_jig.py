@@ -17,13 +17,13 @@ import ezdxf
 import pytest
 
 from compiler.build import build, compile_text
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "specs_examples"
 
 
 def _built(name: str, folder: Path) -> tuple[dict, Path]:  # type: ignore[type-arg]
-    out = build((EXAMPLES / name).read_bytes(), name, folder, BuildOptions(part_files=True))
+    out = build((EXAMPLES / name).read_bytes(), name, folder, Overrides(part_files=True))
     return json.loads((out / "resolved.json").read_text()), out
 
 
@@ -107,7 +107,7 @@ def test_the_spec_names_the_sheet_the_jig_is_cut_from() -> None:
     text = text.replace("stock:\n", "stock:\n  acrylic-3: {material: acrylic, sheet: {thickness: "
                         "3 mm, size: 600 x 400 mm}}\n", 1)
     text = text.replace("    losses: keefe\n", "    losses: keefe\n    jig: acrylic-3\n")
-    parts = compile_text(text, "duct-flute-d.yaml", BuildOptions()).parts
+    parts = compile_text(text, "duct-flute-d.yaml", Overrides()).parts
     cutters = [p for p in parts.parts if p.kind != "template"]
     assert {p.name for p in cutters} == {"jig-front", "duct-block-profile", "window-template"}
     assert {(p.stock, p.material, p.thickness_mm) for p in cutters} == {("acrylic-3", "acrylic",

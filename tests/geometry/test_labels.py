@@ -12,7 +12,7 @@ from shapely.geometry import box as shapely_box
 from compiler.build import compile_text
 from compiler.geometry.model import Circle, Part, Polyline, Text
 from compiler.geometry.paths import flatten, text_width, to_polygon
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "specs_examples"
 SPECS = ["house-organ-principal.yaml", "stopped-wood-gedackt.yaml", "duct-flute-d.yaml",
@@ -39,7 +39,7 @@ def _lines(part: Part):  # type: ignore[no-untyped-def]
 @pytest.mark.parametrize("name", SPECS)
 def test_every_part_is_labelled_clear_of_its_lines(name: str) -> None:
     spec = EXAMPLES / name
-    parts = compile_text(spec.read_bytes(), str(spec), BuildOptions()).parts
+    parts = compile_text(spec.read_bytes(), str(spec), Overrides()).parts
     notes = {}
     for part in parts.parts:
         labels = [e for e in part.entities if isinstance(e, Text)]
@@ -59,7 +59,7 @@ def test_the_tiniest_parts_still_get_their_note() -> None:
     """The 610-pipe example's top pipes (4-5 mm languids, bodies a few mm round): the note,
     engraved small, where the pipe id and part name do not fit."""
     spec = EXAMPLES / "practice-organ-610.yaml"
-    compiled = compile_text(spec.read_bytes(), str(spec), BuildOptions())
+    compiled = compile_text(spec.read_bytes(), str(spec), Overrides())
     parts = compiled.parts
     bare = [p.id for p in parts.parts if not any(isinstance(e, Text) for e in p.entities)]
     assert bare == []

@@ -25,7 +25,7 @@ from compiler.geometry.layout import layout
 from compiler.geometry.model import TubeCut
 from compiler.geometry.stock_plan import plan
 from compiler.ir import StockItem
-from compiler.options import BuildOptions
+from compiler.options import BuildOptions, Overrides
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -133,7 +133,7 @@ def test_the_example_plans_with_its_saw_kerf() -> None:
     from compiler.emit.resolved_json import to_dict
 
     spec = ROOT / "specs_examples" / "blown-stopped-tubes.yaml"
-    compiled = compile_text(spec.read_bytes(), spec.name, BuildOptions())
+    compiled = compile_text(spec.read_bytes(), spec.name, Overrides())
     assert to_dict(compiled.resolved)["fabrication"]["tube_kerf_mm"] == 1.0  # `tube_kerf: 1 mm`
     cut = {c.pipe_id: c.length_mm for c in compiled.parts.tube_cuts}
     for b in compiled.parts.stock_lengths:

@@ -10,7 +10,7 @@ import pytest
 from compiler.build import compile_text
 from compiler.emit import resolved_json
 from compiler.ir import CHLORINATED, LEAD, METAL, WOOD_DUST
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 from compiler.resolve.materials import hazards
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "specs_examples"
@@ -36,7 +36,7 @@ def test_hazards_by_name(name: str, expected: tuple[str, ...]) -> None:
                                         if not p.name.startswith("practice-organ")))
 def test_every_material_the_parts_are_cut_from_is_classified(spec: str) -> None:
     path = EXAMPLES / spec
-    compiled = compile_text(path.read_bytes(), str(path), BuildOptions())
+    compiled = compile_text(path.read_bytes(), str(path), Overrides())
     named = {m.name for m in compiled.resolved.materials}
     cut = {p.material for p in compiled.parts.parts if p.kind != "template"}
     assert cut <= named
@@ -46,6 +46,6 @@ def test_every_material_the_parts_are_cut_from_is_classified(spec: str) -> None:
 
 def test_the_metal_rank_is_flagged_for_lead() -> None:
     path = EXAMPLES / "house-organ-principal.yaml"
-    resolved = compile_text(path.read_bytes(), str(path), BuildOptions()).resolved
+    resolved = compile_text(path.read_bytes(), str(path), Overrides()).resolved
     assert [m.name for m in resolved.materials if LEAD in m.hazards] == ["spotted-metal"]
     assert "materials" not in resolved_json.to_dict(resolved)  # not in the output contract

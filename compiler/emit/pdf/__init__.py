@@ -29,11 +29,6 @@ NAME = "pdf"
 FILE_NAME = "build-sheet.pdf"
 
 
-def paper_of(resolved: Resolved, options: BuildOptions) -> str:
-    """The paper: the command line's choice, else the spec's (``a4`` or ``letter``)."""
-    return (options.paper or resolved.fabrication.paper or "a4").lower()
-
-
 @dataclass(frozen=True)
 class BuildSheet:
     """Everything the build sheet's bytes depend on, and so its cache key: ``draw_sheet``
@@ -46,7 +41,7 @@ class BuildSheet:
 
     @staticmethod
     def of(resolved: Resolved, parts: Parts, options: BuildOptions) -> BuildSheet:
-        return BuildSheet(resolved, parts, paper_of(resolved, options))
+        return BuildSheet(resolved, parts, options.paper)
 
 
 def plan(sheet: BuildSheet) -> list[Page]:

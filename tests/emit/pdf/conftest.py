@@ -376,9 +376,9 @@ def large() -> tuple[Resolved, Parts]:
 
 def render_pdf(resolved: Resolved, parts: Parts, paper: str | None = None) -> bytes:
     from compiler.emit.pdf import render
-    from compiler.options import BuildOptions
+    from compiler.options import Overrides
 
-    return render(resolved, parts, BuildOptions(paper=paper))
+    return render(resolved, parts, Overrides(paper=paper).settle(resolved.fabrication))
 
 
 def page_texts(data: bytes) -> list[str]:

@@ -10,15 +10,15 @@ from pypdf import PdfReader
 
 from compiler.build import compile_text
 from compiler.emit import pdf
-from compiler.options import BuildOptions
+from compiler.options import Overrides
 
 EXAMPLES = Path(__file__).resolve().parents[3] / "specs_examples"
 
 
 def _pages(name: str) -> tuple[list[str], object]:
     spec = EXAMPLES / name
-    compiled = compile_text(spec.read_bytes(), str(spec), BuildOptions())
-    data = pdf.render(compiled.resolved, compiled.parts, BuildOptions())
+    compiled = compile_text(spec.read_bytes(), str(spec), Overrides())
+    data = pdf.render(compiled.resolved, compiled.parts, compiled.options)
     return [p.extract_text() for p in PdfReader(io.BytesIO(data)).pages], compiled.resolved
 
 

@@ -18,7 +18,7 @@ from compiler.emit.pdf import render
 from compiler.emit.pdf.templates import choose
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved
-from compiler.options import BuildOptions
+from compiler.options import BuildOptions, Overrides
 from compiler.resolve.resolver import slug
 
 ROOT = Path(__file__).resolve().parents[3]
@@ -36,7 +36,7 @@ def test_no_cell_is_cut_short_in_any_example(tmp_path: Path) -> None:
     for spec in sorted(EXAMPLES.glob("*.yaml")):
         if spec.name.startswith("practice-organ"):
             continue  # the same kinds of pages as the ranks below, ten times over
-        folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions())
+        folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides())
         text = "\n".join(_texts((folder / "build-sheet.pdf").read_bytes()))
         assert "..." not in text and "…" not in text, spec.name
         whole.append(" ".join(text.split()))
@@ -109,7 +109,7 @@ def test_slug_transliterates() -> None:
 
 def test_flute_cover_shows_no_sheet_or_seam_settings(tmp_path: Path) -> None:
     spec = EXAMPLES / "duct-flute-d.yaml"
-    folder = build(spec.read_bytes(), str(spec), tmp_path, BuildOptions())
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides())
     cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
     assert "seam allowance" not in cover
     assert "tuning allowance" not in cover  # flutes are cut to their solved length
@@ -117,11 +117,11 @@ def test_flute_cover_shows_no_sheet_or_seam_settings(tmp_path: Path) -> None:
     assert "sheet size" in cover
     # An instrument as measured is not cut to a length: no tuning allowance.
     survey = EXAMPLES / "measured-reed-pipe-and-whistle.yaml"
-    folder = build(survey.read_bytes(), str(survey), tmp_path, BuildOptions())
+    folder = build(survey.read_bytes(), str(survey), tmp_path, Overrides())
     cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
     assert "tuning allowance" not in cover and "seam allowance" not in cover
     organ = EXAMPLES / "house-organ-principal.yaml"
-    folder = build(organ.read_bytes(), str(organ), tmp_path, BuildOptions())
+    folder = build(organ.read_bytes(), str(organ), tmp_path, Overrides())
     cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
     for words in ("sheet size", "seam allowance", "tuning allowance"):
         assert words in cover
@@ -133,7 +133,7 @@ def test_no_absolute_path_in_any_output(tmp_path: Path) -> None:
     for name in ("house-organ-principal.yaml", "duct-flute-d.yaml"):
         spec = EXAMPLES / name
         folder = build(spec.read_bytes(), str(spec.resolve()), tmp_path / "out",
-                       BuildOptions())
+                       Overrides())
         for path in folder.rglob("*"):
             if path.suffix in (".json", ".csv", ".dxf"):
                 assert str(ROOT) not in path.read_text(encoding="utf-8"), path.name

@@ -174,7 +174,7 @@ def test_printed_labels_keep_to_the_box_kept_free_for_them() -> None:
     from compiler.emit.pdf.style import FONT
     from compiler.geometry.model import Text
     from compiler.geometry.paths import text_width
-    from compiler.options import BuildOptions
+    from compiler.options import Overrides
 
     class Recorder:
         """The canvas calls the template drawing makes; text widths as drawn."""
@@ -204,7 +204,7 @@ def test_printed_labels_keep_to_the_box_kept_free_for_them() -> None:
     checked = 0
     for name in ("duct-flute-d.yaml", "side-blown-flute-c.yaml"):
         compiled = compile_text((root / name).read_text(encoding="utf-8"), name,
-                                BuildOptions())
+                                Overrides())
         for part in compiled.parts.parts:
             if part.kind not in ("template", "sheet", "board"):
                 continue
