@@ -157,7 +157,32 @@ class _Builder:
         return value
 
 
-def _syntax(exc: yaml.MarkedYAMLError) -> tuple[Any, str, str]:
+def _open_bracket(text: str, mark: Any) -> tuple[Any, str] | None:
+    """The innermost `[` or `{` still open where ``mark`` is, and which of the two it is.
+
+    pyyaml's "while parsing a flow node" error marks where the missing value should
+    start (often the line after the bracket), not the bracket itself: the tokens before
+    the error tell which bracket is still open.
+    """
+    opened: list[yaml.Token] = []
+    try:
+        for token in yaml.scan(text, Loader=yaml.SafeLoader):
+            if token.start_mark.index >= mark.index:
+                break
+            if isinstance(token, yaml.FlowSequenceStartToken | yaml.FlowMappingStartToken):
+                opened.append(token)
+            elif isinstance(token, yaml.FlowSequenceEndToken | yaml.FlowMappingEndToken):
+                if opened:
+                    opened.pop()
+    except yaml.YAMLError:
+        pass  # the tokens read before a scanner error still tell what was open
+    if not opened:
+        return None
+    bracket = "{" if isinstance(opened[-1], yaml.FlowMappingStartToken) else "["
+    return opened[-1].start_mark, bracket
+
+
+def _syntax(exc: yaml.MarkedYAMLError, text: str) -> tuple[Any, str, str]:
     """Where a YAML syntax error is, and what it means in plain words, with a hint.
 
     pyyaml's wording names parser states (``<block end>``, ``flow mapping``); the common
@@ -165,6 +190,11 @@ def _syntax(exc: yaml.MarkedYAMLError) -> tuple[Any, str, str]:
     """
     problem, context = exc.problem or "", exc.context or ""
     mark, opened = exc.problem_mark or exc.context_mark, exc.context_mark
+    if context.startswith("while parsing a flow") and mark is not None:
+        found = _open_bracket(text, mark)
+        if found is not None:
+            opened = found[0]
+            context = "while parsing a flow " + ("mapping" if found[1] == "{" else "sequence")
     at = f"line {opened.line + 1}, column {opened.column + 1}" if opened is not None else ""
     if "'\\t'" in problem or "'\t'" in problem:
         return mark, "a tab character: YAML indents with spaces only", (
@@ -223,7 +253,7 @@ def load_document(text: str | bytes, filename: str = "<spec>") -> Document:
     try:
         nodes = list(yaml.compose_all(text, Loader=yaml.SafeLoader))
     except yaml.MarkedYAMLError as exc:
-        mark, what, hint = _syntax(exc)
+        mark, what, hint = _syntax(exc, text)
         raise _error(filename, mark, f"YAML syntax: {what}", hint) from None
     except yaml.YAMLError as exc:
         raise _error(filename, None, f"YAML syntax: {exc}", "check the file is YAML") from None
