@@ -5,7 +5,9 @@ What is printed (the maker cuts everything else from the DXF files or measures i
 - every part of kind ``template`` (drilling strips and other paper templates), whole;
 - the outline of each *distinct* sheet or board part that is not a plain rectangle (a
   rectangle is quicker to measure than to trace) and fits on at most ``OUTLINE_TILES``
-  tiles, until the outlines have used ``OUTLINE_PAGES`` pages.
+  tiles, within ``OUTLINE_PAGES`` pages: the one-page outlines first, each kept if the
+  shared pages still fit (so small parts fill the last page's room), then tiled ones.
+  The build sheet lists, by name, every outline left to the DXF files.
 
 Each template is split into tiles (windows of the part) that overlap their neighbours by
 ``OVERLAP_MM``; crosshairs sit at the centres of the shared strips so that overlaid tiles
@@ -168,39 +170,40 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
             chosen.append(Choice(part, tiling(part.width_mm, part.height_mm, ww, wh),
                                  (part.id,)))
     seen: dict[tuple[object, ...], list[str]] = {}
-    order: list[Part] = []
+    order: list[tuple[Part, list[str]]] = []
     for part in parts.parts:
         if part.kind not in ("sheet", "board") or _plain_rectangle(part):
             continue
         sig = _signature(part)
         if sig not in seen:
             seen[sig] = []
-            order.append(part)
+            order.append((part, seen[sig]))
         seen[sig].append(part.id)
     left_out: list[str] = []
     # Parts that fit one page first (languids, small feet, blocks): several share a page,
     # so more of them make it into the page budget than if large tiled outlines came first.
-    order.sort(key=lambda p: _tile_count(tiling(p.width_mm, p.height_mm, ww, wh)))
-    outlines = [Choice(p, tiling(p.width_mm, p.height_mm, ww, wh), tuple(seen[_signature(p)]))
-                for p in order]
+    outlines = sorted((Choice(p, tiling(p.width_mm, p.height_mm, ww, wh), tuple(alike))
+                       for p, alike in order), key=lambda ch: _tile_count(ch.tiles))
     small = [ch for ch in outlines if _tile_count(ch.tiles) == 1]
-    papers = [ch for ch in chosen if _tile_count(ch.tiles) == 1]
-    base = len(share_pages(papers, frame))
-
-    def pages_for(n: int) -> int:
-        return len(share_pages(papers + small[:n], frame)) - base
-
-    # the most small outlines whose shared pages stay within the budget (pages grow with n)
-    lo, hi = 0, len(small)
-    while lo < hi:
-        mid = (lo + hi + 1) // 2
-        lo, hi = (mid, hi) if pages_for(mid) <= OUTLINE_PAGES else (lo, mid - 1)
-    pages = pages_for(lo)
-    taken = {ch.part.id for ch in small[:lo]}
+    papers = [_sized(ch) for ch in chosen if _tile_count(ch.tiles) == 1]
+    base = len(_pack(papers, frame))
+    # Each small outline in turn, kept if the shared pages stay within the budget: one
+    # that would need a page of its own is skipped, and the smaller ones after it still
+    # fill the room left on the last pages (the shared pages are packed kind by kind, so
+    # a prefix of this list would stop at the first part that overflows).
+    taken: list[tuple[Choice, tuple[float, float, float]]] = []
+    pages = 0
+    for ch in small:
+        item = _sized(ch)
+        trial = _pack(papers + taken + [item], frame)
+        if len(trial) - base <= OUTLINE_PAGES:
+            taken.append(item)
+            pages = len(trial) - base
+    kept = {ch.part.id for ch, _ in taken}
     for ch in outlines:
         tiles = _tile_count(ch.tiles)
         if tiles == 1:
-            fits = ch.part.id in taken
+            fits = ch.part.id in kept
         else:
             fits = tiles <= OUTLINE_TILES and pages + tiles + 1 <= OUTLINE_PAGES
             pages += tiles + 1 if fits else 0
@@ -243,14 +246,24 @@ def share_pages(singles: list[Choice], frame: Frame) -> list[tuple[Spot, ...]]:
     """Small templates packed several to a page: shelves from the top, kind by kind (all
     handles together: a change to one kind of part leaves the other kinds' pages as they
     were), tallest first."""
+    return _pack([_sized(ch) for ch in singles], frame)
+
+
+def _sized(choice: Choice) -> tuple[Choice, tuple[float, float, float]]:
+    """A small template with its room on a shared page (``_item_size``), worked out once."""
+    return choice, _item_size(choice.part, len(choice.used_by) - 1)
+
+
+def _pack(singles: list[tuple[Choice, tuple[float, float, float]]],
+          frame: Frame) -> list[tuple[Spot, ...]]:
+    """``share_pages`` of templates already sized."""
     ww, wh = window_size(frame)
-    items = sorted(singles, key=lambda ch: (ch.part.kind != "template", ch.part.name,
-                                            -_item_size(ch.part, len(ch.used_by) - 1)[1],
-                                            ch.part.id))
+    items = sorted(singles, key=lambda item: (item[0].part.kind != "template",
+                                              item[0].part.name, -item[1][1],
+                                              item[0].part.id))
     pages: list[list[Spot]] = []
     shelf_top = shelf_h = x = 0.0
-    for ch in items:
-        w, h, _ = _item_size(ch.part, len(ch.used_by) - 1)
+    for ch, (w, h, _) in items:
         if pages and x + w <= ww + 1e-6 and h <= shelf_h + 1e-6:
             pass
         elif pages and shelf_top + shelf_h + GAP_MM + h <= wh + 1e-6:

@@ -216,3 +216,38 @@ def test_printed_labels_keep_to_the_box_kept_free_for_them() -> None:
                 assert width <= text_width(e.text, e.height) + 1e-6, (part.id, e.text)
                 checked += 1
     assert checked > 20
+
+
+def test_small_templates_fill_the_last_page_before_parts_are_left_out() -> None:
+    """The house-organ rank has more shaped outlines than the template pages hold. Its
+    small languids (F5 to C6, about 20-26 mm across) fit on the last shared page beside the
+    others; a part is left to the DXF files only when it would need a page beyond the
+    budget, and the list of left-out parts is exactly the shaped parts not printed."""
+    from compiler.build import compile_text
+    from compiler.options import BuildOptions
+
+    name = "house-organ-principal.yaml"
+    spec = Path(__file__).resolve().parents[3] / "specs_examples" / name
+    parts = compile_text(spec.read_bytes(), name, BuildOptions()).parts
+    frame = frame_for("a4")
+    chosen, left_out = templates.choose(parts, frame)
+    printed = [i for ch in chosen for i in ch.used_by]
+    high = ("F5", "Fs5", "G5", "Gs5", "A5", "Bb5", "B5", "C6")
+    assert {f"principal-4-{n}-languid" for n in high} <= set(printed)
+    singles = [ch for ch in chosen if ch.tiles.rows * ch.tiles.cols == 1]
+    shared = templates.share_pages(singles, frame)
+    assert len(shared) <= templates.OUTLINE_PAGES
+    # every shaped (not plain rectangular) sheet part is printed or listed, once
+    shaped = [p.id for p in parts.parts if p.kind in ("sheet", "board")
+              and not templates._plain_rectangle(p)]
+    assert sorted(printed + left_out) == sorted(shaped)
+    # nothing left out would have fitted: each one-page outline not printed needs a page
+    # more than the budget
+    window_w, window_h = templates.window_size(frame)
+    left = set(left_out)
+    for part in parts.parts:
+        tiles = templates.tiling(part.width_mm, part.height_mm, window_w, window_h)
+        if part.id in left and tiles.rows * tiles.cols == 1:
+            extra = templates.Choice(part, tiles, (part.id,))
+            assert len(templates.share_pages([*singles, extra], frame)) > \
+                templates.OUTLINE_PAGES, part.id
