@@ -224,11 +224,11 @@ def test_small_templates_fill_the_last_page_before_parts_are_left_out() -> None:
     others; a part is left to the DXF files only when it would need a page beyond the
     budget, and the list of left-out parts is exactly the shaped parts not printed."""
     from compiler.build import compile_text
-    from compiler.options import BuildOptions
+    from compiler.options import Overrides
 
     name = "house-organ-principal.yaml"
     spec = Path(__file__).resolve().parents[3] / "specs_examples" / name
-    parts = compile_text(spec.read_bytes(), name, BuildOptions()).parts
+    parts = compile_text(spec.read_bytes(), name, Overrides()).parts
     frame = frame_for("a4")
     chosen, left_out = templates.choose(parts, frame)
     printed = [i for ch in chosen for i in ch.used_by]
