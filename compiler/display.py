@@ -103,6 +103,13 @@ def inches_for(units: str, precision_m: float) -> Inches | None:
     return Inches(Fraction(1, 10**places))
 
 
+def fitted(value: float, unit: str) -> str:
+    """A calibration's fitted value as a maker reads it: a length with its unit to a
+    hundredth of a millimetre (``1.53 mm``: a model correction, finer than any rule), a
+    plain factor to four places (``1.0234``)."""
+    return f"{value:.2f} {unit}" if unit else f"{value:.4f}"
+
+
 _LENGTHS = re.compile(r"(?<![\w./])(-?\d+(?:\.\d+)?)(?: × (-?\d+(?:\.\d+)?))? mm\b")
 """A length (or a ``W × H`` pair) in millimetres written in a message: ``12.5 mm``."""
 

@@ -131,6 +131,8 @@ class Calibration:
     more: tuple[Fitted, ...] = ()
     """Further fitted parameters (a side-blown flute's lip cover beside its embouchure
     correction)."""
+    unit: str = ""
+    """The unit of ``value`` (``mm`` for a flute head's extra length; empty for a factor)."""
 
 
 @dataclass(frozen=True)

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from compiler.display import Inches, in_inches, inches_for
+from compiler.display import Inches, fitted, in_inches, inches_for
 from compiler.ir import Group, Pipe, Resolved
 
 
@@ -40,7 +40,7 @@ def _calibration(group: Group) -> str:
     fit = group.calibration
     if not fit.calibrated:
         return "uncalibrated"
-    text = f"calibrated, {fit.parameter} {fit.value:.3f}, "
+    text = f"calibrated, {fit.parameter} {fitted(fit.value, fit.unit)}, "
     text += "".join(f"{m.name} {m.value:.3f}, " for m in fit.more)
     if len(fit.residuals) == 1:
         return text + "an exact fit of one measurement (measure more pipes to check the model)"

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from compiler.acoustics import simple
 from compiler.acoustics.tuning import cents
-from compiler.errors import PhysicsError
+from compiler.errors import Note, PhysicsError, Position
 from compiler.ir import Calibration, Residual
 from compiler.spec.model import Measurement
 from compiler.spec.notes import note_name
@@ -27,6 +27,21 @@ MAX_RESIDUAL_CENTS = 50.0
 """A prototype that the fitted model still misses by more than a quarter-tone is not explained
 by the end corrections: another note, another pipe or a wrong temperature was most likely
 measured. Our limit, not a published one."""
+
+SPREAD_CENTS = 5.0
+"""Largest RMS misfit (cents) of two or more prototypes after the fit that passes without a
+warning. A careful maker tunes a pipe to within about 2-3 cents (common practice), a steady
+take is measured to well under a cent (``boresmith measure``), and a noted temperature
+1 °C off moves the model about 3 cents (c ∝ √T: 600·log2(294.15/293.15) ≈ 2.9 cents at
+20 °C). Together they explain a few cents of scatter; prototypes that still disagree by
+more than 5 cents RMS after one correction was fitted to them point at a wrong
+measurement, not at the model. Our limit, not a published one."""
+
+CHECK_PIPES = ("check each take's temperature (1 °C is about 3 cents), that it names the "
+               "pipe that was played, and whether that pipe was trimmed, coned or its "
+               "stopper or plug moved before it was recorded (then give its `length:` as "
+               "built)")
+"""What to check when the prototypes of a rank or tube set disagree."""
 
 
 @dataclass(frozen=True)
@@ -103,3 +118,16 @@ def fit_measured(measured: Sequence[Measurement], notes: Collection[int], group:
             "check the note, the frequency and the temperature of this measurement: "
             "calibration corrects the end corrections, worth some cents, not a wrong note")
     return result
+
+
+def disagreement(fit: Calibration, group: str, where: Position, check: str) -> list[Note]:
+    """A warning at the `measured:` entries when the prototypes disagree: the fit leaves an
+    RMS misfit over ``SPREAD_CENTS``, which one correction of the model cannot explain.
+    ``check`` says what to look at in the measurements."""
+    if len(fit.residuals) < 2 or fit.rms_cents <= SPREAD_CENTS:
+        return []
+    each = ", ".join(f"{r.note} {r.error_cents:+.1f}" for r in fit.residuals)
+    return [Note(where, f"{group}: the measurements disagree: after the calibration "
+                        f"they are still {each} cents from the model (rms {fit.rms_cents:.1f} "
+                        f"cents, more than the {SPREAD_CENTS:.0f} cents a careful tuning and "
+                        f"measurement explain), so the fitted correction is doubtful; {check}")]

@@ -136,6 +136,9 @@ def resolve_rank(inputs: RankInputs) -> tuple[Group, list[Pipe], list[Note]]:
     pipes = [_pipe(rank, inputs, stock, air, note, fit.value, warnings, found)
              for note in rank.notes]
     fab = inputs.fabrication
+    warnings += calibration.disagreement(fit, f"rank `{rank.id}`",
+                                         rank.where.get("measured", rank.position),
+                                         calibration.CHECK_PIPES)
     warnings += found.notes(plain.allowance_text(fab.allowance_fraction, fab.allowance_m)
                             if fab.allowance_fraction or fab.allowance_m else "none",
                             fab.allowance_at or rank.position,

@@ -48,6 +48,12 @@ PULL = (0.02, 0.02)
 """Of ΔL (m) and of the lip cover: a change this large weighs as much as one cent of misfit
 (our choice, see the module docstring)."""
 _STEP = (1e-4, 0.005)
+PARAMETER = "head's extra length"
+"""The fitted ΔL in a maker's words (in mm, ``Calibration.unit``)."""
+CHECK = ("check each take's temperature (1 °C is about 3 cents), that its note and "
+         "fingering are the ones played, and that the prototype is the flute as boresmith had "
+         "it cut (not shortened, no hole opened or undercut before it was recorded)")
+"""What to check when the notes of a flute's prototype disagree."""
 
 
 @dataclass(frozen=True)
@@ -146,10 +152,9 @@ def fit(flute: spec_model.Flute, prototype: Instrument, air: GroupAir,
             "measurement: calibration corrects the head, worth some cents, not a wrong note")
     correction = HeadCorrection(float(p[0]), float(p[1]) if side_blown else None)
     more = (Fitted("lip cover", float(p[1])),) if side_blown else ()
-    word = "embouchure" if side_blown else "window"
     report = Calibration(
-        True, f"{word} correction, mm", float(p[0]) * 1000.0,
+        True, PARAMETER, float(p[0]) * 1000.0,
         tuple(Residual(note_name(m.note), float(e)) for m, e in zip(flute.measured, found,
                                                                        strict=True)),
-        math.sqrt(float(np.mean(found**2))), more)
+        math.sqrt(float(np.mean(found**2))), more, unit="mm")
     return correction, report

@@ -401,5 +401,7 @@ def resolve_flute(inputs: FluteInputs) -> tuple[Group, list[Pipe], list[Note]]:
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
                   calibration=fit, holder=None, pipe_ids=(pipe.id,), source=flute.position)
-    warnings = list(air.warnings) + list(found.warnings)
+    warnings = list(air.warnings) + list(found.warnings) + calibration.disagreement(
+        fit, f"flute `{flute.id}`", flute.where.get("measured", flute.position),
+        flute_calibration.CHECK)
     return group, [pipe], warnings

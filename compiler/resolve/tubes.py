@@ -140,4 +140,6 @@ def resolve_tube_set(inputs: TubeSetInputs) -> tuple[Group, list[Pipe], list[Not
                   holder=holder, pipe_ids=tuple(p.id for p in pipes), source=tubes.position,
                   trims=trim.advise(tubes.measured, observe, fit.value, air, pipes,
                                     fab.precision_m))
-    return group, pipes, list(air.warnings)
+    return group, pipes, list(air.warnings) + calibration.disagreement(
+        fit, f"tube set `{tubes.id}`", tubes.where.get("measured", tubes.position),
+        calibration.CHECK_PIPES)

@@ -327,3 +327,52 @@ def test_speed_models_agree_between_the_schema_the_spec_reader_and_the_physics()
     branches = schema["$defs"]["environment"]["properties"]["sound_speed"]["oneOf"]
     assert set(branches[0]["enum"]) == set(SPEC_SPEED_MODELS) == set(
         air.SOUND_SPEED_MODELS)
+
+
+def _two_takes(apart_cents: float) -> str:
+    # Two prototypes of one length (300 mm, open, lossless), the second measured
+    # ``apart_cents`` higher: no factor on the end correction makes one tube sound two
+    # pitches, so least squares in cents leaves each half the gap (cents are additive: the
+    # best model pitch is the two takes' geometric mean).
+    c = 343.42
+    f = c / (2 * (0.300 + 2 * 0.6133 * 0.010))
+    takes = [("A4", f), ("A5", f * 2 ** (apart_cents / 1200))]
+    rows = "".join(f"      - {{note: {n}, frequency: {hz!r} Hz, temperature: 20 C, "
+                   "length: 300 mm}\n" for n, hz in takes)
+    return _tube_set("open-tube", "{model: unflanged}", notes="[A4, A5]",
+                     extra="    measured:\n" + rows)
+
+
+def test_prototypes_that_disagree_are_warned_at_their_entries() -> None:
+    text = _two_takes(36.0)
+    r = _resolve(text)
+    fit = r.groups[0].calibration
+    assert [round(x.error_cents, 2) for x in fit.residuals] == [-18.0, 18.0]
+    assert fit.rms_cents == pytest.approx(18.0, abs=0.01)
+    (note,) = [w for w in r.warnings if "disagree" in w.message]
+    first = next(i for i, ln in enumerate(text.splitlines(), 1) if "{note: A4" in ln)
+    assert (note.position.line, note.position.col) == (first, 7)
+    assert "A4 -18.0, A5 +18.0 cents" in note.message and "rms 18.0" in note.message
+    assert "temperature" in note.message and "trimmed" in note.message
+
+
+def test_prototypes_within_a_careful_tuning_are_not_warned() -> None:
+    r = _resolve(_two_takes(8.0))  # ±4 cents: within the 5 cents a careful maker explains
+    assert r.groups[0].calibration.rms_cents == pytest.approx(4.0, abs=0.01)
+    assert not [w for w in r.warnings if "disagree" in w.message]
+
+
+def test_rank_prototypes_that_disagree_are_warned() -> None:
+    # The example gedackt's prototype G2, measured twice 30 cents apart: the fit splits the
+    # gap (±15 cents), and the rank's `measured:` entries get the warning.
+    name = "stopped-wood-gedackt.yaml"
+    text = (SCHEMAS.parent / "specs_examples" / name).read_text()
+    take = "      - {note: G2, frequency: 92.9 Hz, temperature: 19 C}\n"
+    assert take in text
+    other = f"      - {{note: G2, frequency: {92.9 * 2 ** (30 / 1200)!r} Hz, temperature: 19 C}}\n"
+    text = text.replace(take, take + other)
+    r = resolve(load_spec(text, name))
+    assert r.groups[0].calibration.rms_cents == pytest.approx(15.0, abs=0.01)
+    (note,) = [w for w in r.warnings if "disagree" in w.message]
+    assert note.position.line == text.splitlines().index(take.rstrip("\n")) + 1
+    assert note.message.startswith("rank `gedackt-8`: the measurements disagree")

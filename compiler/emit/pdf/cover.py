@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from compiler.display import fitted
 from compiler.emit.pdf import trims
 from compiler.emit.pdf.document import (
     Block,
@@ -113,8 +114,8 @@ def _air_blocks(resolved: Resolved) -> list[Block]:
 
 
 def _calibration_table(resolved: Resolved) -> Table:
-    cols = (Column("groups", 2.0), Column("status", 1.4), Column("fitted", 2.4),
-            Column("value", 0.8, "right"), Column("rms cents", 0.9, "right"),
+    cols = (Column("groups", 2.0), Column("status", 1.4), Column("fitted", 2.1),
+            Column("value", 1.1, "right"), Column("rms cents", 0.9, "right"),
             Column("measured minus predicted (cents)", 2.5))
     rows = []
     plain = [g.id for g in resolved.groups if not g.calibration.calibrated]
@@ -124,7 +125,7 @@ def _calibration_table(resolved: Resolved) -> Table:
     for g in resolved.groups:
         cal = g.calibration
         if cal.calibrated:
-            rows.append((g.id, "calibrated", cal.parameter, f"{cal.value:.4f}",
+            rows.append((g.id, "calibrated", cal.parameter, fitted(cal.value, cal.unit),
                          fixed(cal.rms_cents, 2),
                          ", ".join(f"{r.note} {cents(r.error_cents)}" for r in cal.residuals)))
             rows += [("", "", m.name, f"{m.value:.4f}", "", "") for m in cal.more]

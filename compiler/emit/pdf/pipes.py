@@ -13,7 +13,7 @@ from dataclasses import dataclass, replace
 
 from reportlab.pdfgen.canvas import Canvas
 
-from compiler.display import Inches
+from compiler.display import Inches, fitted
 from compiler.emit.pdf import duct_block, fingering
 from compiler.emit.pdf.document import (
     Block,
@@ -380,9 +380,9 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
     if same:
         lines.append("The same for every pipe: " + ", ".join(same) + ".")
     if group.calibration.calibrated:
-        lines.append(f"Calibrated: {group.calibration.parameter} = "
-                     f"{group.calibration.value:.4f}, rms {group.calibration.rms_cents:.2f} "
-                     "cents.")
+        cal = group.calibration
+        lines.append(f"Calibrated: {cal.parameter} {fitted(cal.value, cal.unit)}, rms "
+                     f"{cal.rms_cents:.2f} cents.")
     c.setFillColor(INK)  # these lines carry dimensions the cuts depend on: 8 pt, black
     c.setFont(FONT, 8)
     for text in lines:
