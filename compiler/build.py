@@ -51,12 +51,31 @@ def backends() -> dict[str, ModuleType]:
 @dataclass(frozen=True)
 class BuildInputs:
     """What a whole build's output depends on, and so the key an up-to-date output is found
-    by: the spec's bytes, its file name (outputs name the spec file, never its folder) and
-    the command line's choices (the options settle from these and the spec)."""
+    by: the spec's bytes, its file name (outputs name the spec file, never its folder), which
+    spec file it is (``spec_origin``, kept in the manifest) and the command line's choices
+    (the options settle from these and the spec)."""
 
     spec: bytes
     file_name: str
+    spec_origin: str
     overrides: Overrides
+
+
+def spec_origin(filename: str, out_root: Path) -> str:
+    """Which spec file an output was built from, as the manifest keeps it: the sha256 of the
+    spec's path relative to the output root (``../specs/A/spec.yaml``).
+
+    The file's path, not its content, is what stays the same while a maker edits a spec, and
+    what differs between ``A/spec.yaml`` and ``B/spec.yaml`` with the same instrument name.
+    Relative to the output root, it is the same for a project checked out anywhere (a
+    manifest kept in git does not change from one machine to the next); hashed, the output
+    carries neither an absolute path nor the names of the spec's folders."""
+    spec = Path(filename).resolve()
+    try:
+        where = os.path.relpath(spec, out_root.resolve())
+    except ValueError:  # another drive (Windows): no relative path exists
+        where = str(spec)
+    return hashlib.sha256(Path(where).as_posix().encode("utf-8")).hexdigest()
 
 
 @dataclass(frozen=True)
@@ -137,9 +156,10 @@ def _pdf_worker(send: Any, compiled: Compiled, folder: Path, cache_folder: Path 
 
 
 def emit_all(compiled: Compiled, folder: Path, progress: Progress | None = None,
-             cache: Cache | None = None, build_key: str = "") -> list[Path]:
+             cache: Cache | None = None, build_key: str = "", origin: str = "") -> list[Path]:
     """Run every backend into ``folder``, then write ``manifest.json`` (with the spec's
-    warnings, which a rebuild that finds the output up to date reports again)."""
+    warnings, which a rebuild that finds the output up to date reports again, and the
+    ``origin`` of the spec, ``spec_origin``)."""
     say = progress or _quiet
     store = cache or Cache(None)
     names = list(backends())
@@ -182,6 +202,7 @@ def emit_all(compiled: Compiled, folder: Path, progress: Progress | None = None,
     manifest = {
         "instrument": compiled.resolved.instrument,
         "spec_file": compiled.resolved.spec_file,
+        "spec_origin_sha256": origin,
         "spec_sha256": compiled.resolved.spec_sha256,
         "build_key": build_key,
         "warnings": [n.shown() for n in compiled.resolved.warnings],
@@ -250,19 +271,24 @@ def _remember(out_root: Path, build_key: str, slug: str) -> None:
     os.replace(temp, path)
 
 
-def _replacing_another_spec(target: Path, spec: Spec, resolved: Resolved) -> list[Note]:
+def _replacing_another_spec(target: Path, spec: Spec, resolved: Resolved,
+                            origin: str) -> list[Note]:
     """A warning when the output about to be replaced was built from another spec file that
     names the same instrument (two specs would keep overwriting each other's output), at
-    the spec's `instrument`."""
+    the spec's `instrument`. Another file is another ``spec_origin``: the same file edited
+    is not (a manifest without one, from an older build, is compared by file name)."""
     try:
         manifest = json.loads((target / "manifest.json").read_text(encoding="utf-8"))
         before = str(manifest["spec_file"])
-    except (OSError, ValueError, KeyError, TypeError):
+        before_origin = str(manifest.get("spec_origin_sha256") or "")
+    except (OSError, ValueError, KeyError, TypeError, AttributeError):
         return []
-    if before == resolved.spec_file:
+    same = before_origin == origin if before_origin else before == resolved.spec_file
+    if same:
         return []
+    other = f"{before} in another folder" if before == resolved.spec_file else before
     return [Note(spec.where.get("instrument", Position(spec.file, 1, 1)),
-                 f"replacing {target}, the output of {before}: both specs name the instrument "
+                 f"replacing {target}, the output of {other}: both specs name the instrument "
                  f"`{resolved.instrument}`; give one of them another `instrument:` name to "
                  "keep both outputs")]
 
@@ -282,7 +308,8 @@ def build(text: str | bytes, filename: str, out_root: Path, overrides: Overrides
     say = progress or _quiet
     tell = warn or _quiet_note
     data = text.encode("utf-8") if isinstance(text, str) else text
-    build_key = key_of(BuildInputs(data, Path(filename).name, overrides))
+    origin = spec_origin(filename, out_root)
+    build_key = key_of(BuildInputs(data, Path(filename).name, origin, overrides))
     if use_cache:
         done = _up_to_date(out_root, build_key)
         if done is not None:
@@ -308,7 +335,7 @@ def build(text: str | bytes, filename: str, out_root: Path, overrides: Overrides
                           "(a symbolic link?); choose another output folder with -o")
     _clean_leftovers(out_root, slug_name)
     notes = in_order([*compiled.resolved.warnings,
-                      *_replacing_another_spec(target, spec, compiled.resolved)])
+                      *_replacing_another_spec(target, spec, compiled.resolved, origin)])
     refuse_if_strict(notes, compiled.options.strict)
     for note in notes:
         tell(note)
@@ -317,7 +344,7 @@ def build(text: str | bytes, filename: str, out_root: Path, overrides: Overrides
     os.umask(umask)
     os.chmod(work, 0o777 & ~umask)  # mkdtemp makes it private; the output is the user's
     try:
-        written = emit_all(compiled, work, progress, cache, build_key)
+        written = emit_all(compiled, work, progress, cache, build_key, origin)
         for path in written:
             if not _inside(work, path):
                 raise OutputError(f"a backend wrote outside the build folder: {path}")

@@ -175,7 +175,7 @@ def test_pipe_parts_inputs_key_on_every_field(name: str) -> None:
 
 def test_a_whole_build_keys_on_every_field() -> None:
     text, path = _spec("blown-stopped-tubes.yaml")
-    inputs = BuildInputs(text.encode(), path.name, Overrides())
+    inputs = BuildInputs(text.encode(), path.name, "0" * 64, Overrides())
     assert assert_every_field_is_in_the_key(inputs) > 5
 
 

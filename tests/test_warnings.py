@@ -93,6 +93,39 @@ def test_replacing_another_specs_output_is_a_warning_like_the_others(tmp_path: P
     assert json.loads((folder / "manifest.json").read_text(encoding="utf-8"))["warnings"] == []
 
 
+def test_a_spec_of_the_same_name_in_another_folder_is_another_spec(tmp_path: Path) -> None:
+    # A/spec.yaml and B/spec.yaml naming the same instrument: the file name alone would
+    # take them for one spec and let them overwrite each other's output without a word.
+    text = FLUTE.read_bytes()
+    a, b = tmp_path / "A" / "spec.yaml", tmp_path / "B" / "spec.yaml"
+    for path, data in ((a, text), (b, text.replace(b"# ", b"#  ", 1))):
+        path.parent.mkdir()
+        path.write_bytes(data)
+    out = tmp_path / "out"
+    told: list[Note] = []
+    folder = build(a.read_bytes(), str(a), out, Overrides(), warn=told.append)
+    assert told == []
+    build(b.read_bytes(), str(b), out, Overrides(), warn=told.append)
+    (note,) = told
+    assert note.position == Position(str(b), 8, 13)  # the `instrument:` value
+    assert "the output of spec.yaml in another folder" in note.message
+    # the same spec edited, rebuilt: its own output, no warning
+    told.clear()
+    b.write_bytes(b.read_bytes().replace(b"#  ", b"#   ", 1))
+    build(b.read_bytes(), str(b), out, Overrides(), warn=told.append)
+    assert told == []
+    # the manifest names which file without a path: neither absolute nor the folders' names
+    kept = (folder / "manifest.json").read_text(encoding="utf-8")
+    assert str(tmp_path) not in kept and '"B' not in kept and "/B" not in kept
+    # and it is the same wherever the project is: a copy elsewhere gives the same manifest
+    moved = tmp_path / "elsewhere"
+    moved.mkdir()
+    (moved / "B").mkdir()
+    (moved / "B" / "spec.yaml").write_bytes(b.read_bytes())
+    again = build(b.read_bytes(), str(moved / "B" / "spec.yaml"), moved / "out", Overrides())
+    assert (again / "manifest.json").read_text(encoding="utf-8") == kept
+
+
 def test_the_command_line_prints_them_the_same_way(tmp_path: Path,
                                                    capsys: pytest.CaptureFixture[str]) -> None:
     spec = _far_a4(tmp_path)
