@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from compiler.display import Inches
+from compiler.display import Inches, in_inches
 from compiler.emit.pdf.document import Block, Column, Heading, Page, Paragraph, Spacer, Table
 from compiler.emit.pdf.document import flow_pages as _flow_pages
 from compiler.emit.pdf.style import (
@@ -70,12 +70,17 @@ def _sheet_names(parts: Sequence[Part], sheets: Sequence[Sheet], stock: str) -> 
     return {p.id: ", ".join(where.get(p.id, [])) or "-" for p in parts}
 
 
-def _shared_notes(parts: Sequence[Part]) -> dict[str, str]:
+def _note(part: Part, inches: Inches | None) -> str:
+    """A part's note, its lengths in inches too for a spec in inches (as in cut-list.csv)."""
+    return in_inches(part.note, inches)
+
+
+def _shared_notes(parts: Sequence[Part], inches: Inches | None) -> dict[str, str]:
     """Part name → its note, where every part of that name has the same one (said once
     under the table rather than in every row)."""
     notes: dict[str, set[str]] = {}
     for p in parts:
-        notes.setdefault(p.name, set()).add(p.note)
+        notes.setdefault(p.name, set()).add(_note(p, inches))
     return {name: next(iter(found)) for name, found in notes.items()
             if len(found) == 1 and next(iter(found)) and
             sum(1 for p in parts if p.name == name) > 1}
@@ -99,7 +104,7 @@ def _pivot(parts: Sequence[Part], sheet_of: dict[str, str], inches: Inches | Non
         if p.name in rows_by[key]:
             return None  # two parts of one name for a pipe: the pivot would hide one
         rows_by[key][p.name] = p
-    shared = _shared_notes(parts)
+    shared = _shared_notes(parts, inches)
     cols = (Column("pipe", 1.5),) + tuple(Column(f"{n}\nlength × width mm", 1.7)
                                           for n in names) + (Column("sheet no.", 0.9),)
     rows, sub = [], []
@@ -126,7 +131,7 @@ def _second_line(part: Part | None, inches: Inches | None, shared: bool) -> str:
     same for every pipe and said under the table)."""
     if part is None:
         return ""
-    note = "" if shared else part.note
+    note = "" if shared else _note(part, inches)
     return " · ".join(t for t in ((_inches(part, inches) if inches else ""), note) if t)
 
 
@@ -134,12 +139,12 @@ def _per_part(parts: Sequence[Part], sheet_of: dict[str, str], inches: Inches | 
               ) -> list[Block]:
     """One row per part (pipe, part name); notes the same for every part of a name are
     said once under the table."""
-    shared = _shared_notes(parts)
+    shared = _shared_notes(parts, inches)
     cols = (Column("pipe", 1.4), Column("part", 0.9), Column("qty", 0.4, "right"),
             Column("length × width mm", 1.5), Column("sheet no.", 0.8), Column("note", 3.6))
     rows = tuple((p.pipe_id or p.id, p.name if p.pipe_id else "-", str(p.quantity),
                   "{} × {}".format(*map(mm_of, p.length_by_width)), sheet_of[p.id],
-                  "" if p.name in shared else p.note)
+                  "" if p.name in shared else _note(p, inches))
                  for p in parts)
     sub = tuple(("", "", "", _inches(p, inches), "", "") for p in parts) if inches else ()
     out: list[Block] = [Table(cols, rows, sub, size=8)]
@@ -203,7 +208,8 @@ def blocks(resolved: Resolved, parts: Parts) -> list[Block]:
     inches = inches_of(resolved.fabrication)
     items = {s.name: s for s in resolved.stock}
     cut_parts = [p for p in parts.parts if p.kind in ("sheet", "board")]
-    tube_notes = {p.pipe_id: p.note for p in parts.parts if p.kind == "tube" and p.pipe_id}
+    tube_notes = {p.pipe_id: _note(p, inches) for p in parts.parts
+                  if p.kind == "tube" and p.pipe_id}
     stocks = sorted({p.stock for p in cut_parts} | {t.stock for t in parts.tube_cuts})
     out: list[Block] = [Heading("Cut list", 15),
                         Paragraph("Sizes are length × width of each flat part's bounding box "

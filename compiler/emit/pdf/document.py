@@ -9,13 +9,13 @@ over as many pages as they need, splitting tables between rows and repeating the
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from typing import Protocol
 
 from reportlab.lib.colors import Color
-from reportlab.lib.utils import simpleSplit
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 
@@ -59,14 +59,53 @@ def wrap(text: str, font: str, size: float, width: float) -> list[str]:
     return list(_wrapped(text, font, size, width))
 
 
+NO_BREAK = "\u00a0"
+"""The no-break space: drawn as a space, never a place to end a line."""
+
+_WHOLE_AND_FRACTION = re.compile(r"(?<=\d) (?=\d+/\d+(?!\d))")
+"""The space of ``2 1/8`` (a whole number and its fraction: one length on a rule)."""
+
+
+def unbroken(text: str) -> str:
+    """``text`` with a whole number and its fraction joined by a no-break space, so that a
+    line never ends between ``2`` and ``1/8``: read alone, either is a wrong length."""
+    return _WHOLE_AND_FRACTION.sub(NO_BREAK, text)
+
+
+def words(text: str) -> list[str]:
+    """What lines may be broken between: the pieces of ``text`` between ordinary spaces
+    and tabs (``2 1/8`` is one piece)."""
+    return [w for w in re.split(r"[ \t]+", unbroken(text)) if w]
+
+
 @lru_cache(maxsize=8192)
 def _wrapped(text: str, font: str, size: float, width: float) -> tuple[str, ...]:
     # Tables measure their rows again for every page split; text metrics are pure, so
     # each (text, font, size, width) is measured once.
     lines: list[str] = []
-    for line in simpleSplit(safe(text), font, size, width):
-        lines += _break_word(line, font, size, width)
+    for paragraph in safe(text).split("\n"):
+        for line in _fill(words(paragraph), font, size, width):
+            lines += _break_word(line, font, size, width)
     return tuple(lines) or ("",)
+
+
+def _fill(pieces: list[str], font: str, size: float, width: float) -> list[str]:
+    """Lines of ``pieces`` joined by spaces, each line as full as ``width`` allows (a
+    piece wider than a line is a line of its own, broken by ``_break_word``)."""
+    space = stringWidth(" ", font, size)
+    lines: list[str] = []
+    line: list[str] = []
+    used = 0.0
+    for piece in pieces:
+        wide = stringWidth(piece, font, size)
+        if line and used + space + wide > width:
+            lines.append(" ".join(line))
+            line, used = [], 0.0
+        used += (space if line else 0.0) + wide
+        line.append(piece)
+    if line:
+        lines.append(" ".join(line))
+    return lines
 
 
 def _break_word(line: str, font: str, size: float, width: float) -> list[str]:
@@ -327,16 +366,16 @@ def _column_widths(table: Table, width: float) -> tuple[float, ...]:
     shares = [col.width for col in table.columns]
     need = []
     for k, col in enumerate(table.columns):
-        words = [w for part in col.title.split("\n") for w in part.split(" ")]
-        widest = max((stringWidth(safe(w), FONT_BOLD, table.size * 0.75) for w in words),
+        titles = [w for part in col.title.split("\n") for w in words(part)]
+        widest = max((stringWidth(safe(w), FONT_BOLD, table.size * 0.75) for w in titles),
                      default=0.0)
         for i, row in enumerate(table.rows):
             font = FONT_BOLD if i in table.shade else FONT
             if k < len(row):
-                for word in row[k].split(" "):
+                for word in words(row[k]):
                     widest = max(widest, stringWidth(safe(word), font, table.size))
             if table.sub and i < len(table.sub) and k < len(table.sub[i]):
-                for word in table.sub[i][k].split(" "):
+                for word in words(table.sub[i][k]):
                     widest = max(widest, stringWidth(safe(word), FONT, table.sub_size))
         need.append(widest + 2 * Table.PAD + 0.5)
     spare = width - sum(need)
