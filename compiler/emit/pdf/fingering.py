@@ -11,6 +11,7 @@ from dataclasses import dataclass, replace
 
 from reportlab.pdfgen.canvas import Canvas
 
+from compiler.display import Inches, in_inches
 from compiler.emit.pdf.document import (
     Block,
     Heading,
@@ -172,7 +173,7 @@ def chart_rows(pipe: Pipe) -> tuple[ChartRow, ...]:
     return tuple(rows)
 
 
-def blocks(pipe: Pipe) -> list[Block]:
+def blocks(pipe: Pipe, inches: Inches | None = None) -> list[Block]:
     """Chart, error plot and admittance plot of one holed pipe."""
     out: list[Block] = [
         Heading(f"Fingering chart: {pipe.id}", 13),
@@ -183,7 +184,7 @@ def blocks(pipe: Pipe) -> list[Block]:
                       " Nearest: the note of the tuning nearest the prediction, and the "
                       "prediction's distance from it; cents/°C: its change in 1 °C warmer air."
                       if any(f.nearest_note is not None for f in pipe.fingerings) else "")
-                  + _head_words(pipe),
+                  + _head_words(pipe, inches),
                   8.5, colour=GREY),
         Chart(tuple(sorted(pipe.holes, key=lambda h: h.number)), chart_rows(pipe)),
         Spacer(4 * MM),
@@ -207,13 +208,14 @@ def blocks(pipe: Pipe) -> list[Block]:
     return out
 
 
-def _head_words(pipe: Pipe) -> str:
+def _head_words(pipe: Pipe, inches: Inches | None) -> str:
     head = pipe.head
     if head is None:
         return ""
     words = []
     if head.cork_m is not None:
-        words.append(f"Cork {head.cork_m * 1000:.1f} mm above the embouchure centre.")
+        words.append(in_inches(f"Cork {head.cork_m * 1000:.1f} mm above the embouchure "
+                               "centre.", inches))
     if head.resonance_hz:
         words.append(f"The head (mouth and the cavity above it) resonates at "
                      f"{hz(head.resonance_hz)} Hz: notes near or above it lose their octave.")
@@ -225,9 +227,9 @@ def _head_words(pipe: Pipe) -> str:
     return (" " + " ".join(words)) if words else ""
 
 
-def pages(pipe: Pipe, frame: Frame) -> list[Page]:
+def pages(pipe: Pipe, frame: Frame, inches: Inches | None = None) -> list[Page]:
     """The fingering pages of a pipe (none when it has no fingerings)."""
     if not pipe.fingerings:
         return []
-    found = flow_pages(SECTION, blocks(pipe), frame)
+    found = flow_pages(SECTION, blocks(pipe, inches), frame)
     return [replace(p, label=pipe.id) for p in found]

@@ -71,7 +71,7 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
         if len(pipes) <= PER_PIPE_LIMIT or any(p.holes or p.fingerings for p in pipes):
             for pipe in pipes:
                 out.append(Page(SECTION, PipePage(pipe, inches), label=pipe.id))
-                out += fingering.pages(pipe, frame)
+                out += fingering.pages(pipe, frame, inches)
                 out += duct_block.pages(pipe, frame)
         else:
             out += _group_pages(group, pipes, frame, inches)
@@ -229,7 +229,8 @@ class PipePage:
         c.setFont(FONT, 7.5)
         c.setFillColor(GREY)
         c.drawString(frame.left, frame.bottom + holes_h + 1 * MM,
-                     f"Side view, dimensions in mm; {note}.")
+                     f"Side view, dimensions in mm{' (inches in brackets)' if inches else ''}; "
+                     f"{note}.")
         c.setFillColor(INK)
         x = frame.left + VIEW_WIDTH + 6 * MM
         col_w = frame.right - x

@@ -39,6 +39,8 @@ ToPage = Callable[[float, float], Point]
 
 LEVEL = 6.0 * MM
 MIN_WIDTH = 10.0 * MM
+CALLOUT_MIN = 36.0 * MM
+"""The narrowest column the callouts wrap in, however wide the view."""
 
 SHORT = {
     D.INSIDE_DIAMETER: "ø", D.OUTSIDE_DIAMETER: "ø", D.INSIDE_WIDTH: "width",
@@ -62,11 +64,13 @@ CALLOUT_WORDS = {
 """A callout's words with its sizes in mm, and with its letters on a key drawing."""
 
 
-def callout_text(callout: Callout, key: bool = False) -> str:
-    """What a callout says: its sizes in mm, or the letters of its key dimensions."""
+def callout_text(callout: Callout, key: bool = False, inches: Inches | None = None) -> str:
+    """What a callout says: its sizes in mm (and in inches, for a spec in inches: ``ø 7.14
+    (9/32 in)``), or the letters of its key dimensions."""
     if key:
         return CALLOUT_WORDS[callout.kind][1].format(" × ".join(callout.keys))
-    sizes = [mm_of(v) for v in callout.values_mm]
+    sizes = [mm_of(v) + (f" ({inches.text_of_mm(v)} in)" if inches else "")
+             for v in callout.values_mm]
     if callout.kind == V.HOLE:
         name = f"hole {callout.label}" if callout.label.isdigit() else callout.label
         return (f"{name}  ø {sizes[0]}  at {sizes[1]} from top"
@@ -99,18 +103,20 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
     hdims = [d for d in view.hdims if d.dim.key or not key]
     calls = [co for co in view.callouts if co.keys or not key]
     labels = [_dim_label(v.dim, inches, key) for v in vdims]
-    texts = [callout_text(co, key) for co in calls]
-    left = min(max((stringWidth(t, FONT, TEXT_PT) for t in texts), default=0.0) + 9 * MM,
-               w * 0.7)
-    if not texts:
-        left = 4 * MM
+    texts = [callout_text(co, key, inches) for co in calls]
+    wanted = min(max((stringWidth(t, FONT, TEXT_PT) for t in texts), default=0.0) + 9 * MM,
+                 w * 0.7) if texts else 4 * MM
     top_res = 3 * MM + LEVEL * sum(1 for d in hdims if d.above)
     bottom_res = 3 * MM + LEVEL * sum(1 for d in hdims if not d.above)
     levels = len(vdims)
     for _ in range(2):
         right = 5 * MM + LEVEL * max(levels, 1)
-        sy = min((h - top_res - bottom_res) / view.height,
-                 (w - left - right) / (2.0 * view.half_width), MM)
+        by_height = min((h - top_res - bottom_res) / view.height, MM)
+        # The callouts take the room the view leaves at the scale its height allows; longer
+        # ones wrap (in a column at least CALLOUT_MIN wide) rather than shrink the view.
+        room = w - right - max(2.0 * view.half_width * by_height, MIN_WIDTH)
+        left = max(min(wanted, room), min(wanted, CALLOUT_MIN))
+        sy = min(by_height, (w - left - right) / (2.0 * view.half_width))
         assigned = _levels(vdims, labels, sy, font, size, view.height)
         levels = max(assigned, default=-1) + 1
     sx = sy
@@ -153,7 +159,7 @@ def draw_view(c: Canvas, view: View, x: float, y: float, w: float, h: float,
         else:
             ly = by - 4 * MM - down * LEVEL
             down += 1
-        _hdim(c, x0, x1, fy, ly, _dim_label(d.dim, inches, key), font, size)
+        _hdim(c, x0, x1, fy, ly, _dim_label(d.dim, inches, key), font, size, x + w)
     _callouts(c, calls, texts, at, x, cx - view.half_width * sx - 4 * MM, y, y + h)
     c.setStrokeColor(INK)
     c.setFillColor(INK)
@@ -274,7 +280,10 @@ def _vdim(c: Canvas, lx: float, ext_from: float, y0: float, y1: float, label: st
 
 
 def _hdim(c: Canvas, x0: float, x1: float, fy: float, ly: float, label: str, font: str,
-          size: float) -> None:
+          size: float, right_edge: float) -> None:
+    """A width's dimension line at height ``ly``; a label too long for the room between the
+    arrows goes beside them, on the right unless it would pass ``right_edge`` (the box's
+    edge, where the page's tables begin)."""
     lo, hi = min(x0, x1), max(x0, x1)
     c.setLineWidth(0.35)
     sign = 1.0 if ly > fy else -1.0
@@ -293,8 +302,10 @@ def _hdim(c: Canvas, x0: float, x1: float, fy: float, ly: float, label: str, fon
         _arrow(c, hi, ly, -1.0, 0.0)
     if tw + 2 * MM <= hi - lo:
         c.drawCentredString((lo + hi) / 2.0, ly + 0.8 * MM, label)
-    else:
+    elif hi + 3.5 * MM + tw <= right_edge:
         c.drawString(hi + 3.5 * MM, ly - size * 0.35, label)
+    else:
+        c.drawRightString(lo - 3.5 * MM, ly - size * 0.35, label)
     c.setFillColor(ACCENT)
 
 

@@ -10,15 +10,20 @@ spec's 1/32 in.
 from __future__ import annotations
 
 import io
+import json
 import re
+from fractions import Fraction
 from pathlib import Path
+from typing import Any
 
 import pytest
 from pypdf import PdfReader
+from reportlab.pdfbase.pdfmetrics import stringWidth
 
 from compiler.build import build
 from compiler.emit.pdf.document import NO_BREAK, wrap
-from compiler.emit.pdf.style import FONT, register_fonts
+from compiler.emit.pdf.pipes import VIEW_WIDTH
+from compiler.emit.pdf.style import FONT, frame_for, register_fonts
 from compiler.options import Overrides
 
 ROOT = Path(__file__).resolve().parents[3]
@@ -65,3 +70,90 @@ def test_cut_list_notes_of_a_spec_in_inches_give_inches(organ_pages: list[str]) 
     assert "rout the windway 1/32 in = 0.79 mm deep" in cut_list
     # no note length left in millimetres only
     assert re.findall(r"(?<!= )\b\d+\.\d mm", cut_list) == []
+
+
+FLUTE = ROOT / "specs_examples" / "side-blown-flute-c.yaml"
+IN_INCHES = (  # the example flute written in inches, its sizes the nearest rule readings
+    ("units: mm", "units: in"),
+    ("outside_diameter: 22 mm, wall: 0.8 mm, length: 1000 mm",
+     "outside_diameter: 7/8 in, wall: 1/32 in, length: 40 in"),
+    ("from: 3 mm, to: 12 mm, step: 0.5 mm", "from: 1/8 in, to: 1/2 in, step: 1/64 in"),
+    ("precision: 0.1 mm", "precision: 1/32 in"),
+    ("diameter: 10 mm, from_top: 40 mm", "diameter: 3/8 in, from_top: 1 5/8 in"),
+    ("min_diameter: 4 mm", "min_diameter: 5/32 in"),
+    ("max_diameter: 12 mm", "max_diameter: 1/2 in"),
+    ("min_web: 4 mm", "min_web: 5/32 in"),
+    ("max_span: 40 mm", "max_span: 1 5/8 in"),
+)
+INCH = r"(\d+(?: \d+/\d+)?|\d+/\d+) in"
+"""A rule reading: ``5 15/32 in``, ``3/8 in``, ``12 in``."""
+
+
+def _rule(text: str) -> float:
+    """A rule reading in millimetres (1 in = 25.4 mm)."""
+    return float(sum(Fraction(piece) for piece in text.split())) * 25.4
+
+
+def _reads(reading: str, mm: float) -> bool:
+    """``reading`` is ``mm`` rounded to the nearest 1/32 in (half a step, 0.397 mm, plus the
+    0.01 mm the pages round millimetres to)."""
+    return abs(_rule(reading) - mm) <= 25.4 / 64 + 0.01
+
+
+@pytest.fixture(scope="module")
+def flute_folder(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The build of the example flute written in inches."""
+    text = FLUTE.read_text(encoding="utf-8")
+    for metric, inch in IN_INCHES:
+        assert metric in text
+        text = text.replace(metric, inch)
+    spec = tmp_path_factory.mktemp("flute-inch") / "flute-in.yaml"
+    spec.write_text(text, encoding="utf-8")
+    return build(text.encode(), str(spec), spec.parent / "out", Overrides())
+
+
+@pytest.fixture(scope="module")
+def flute_build(flute_folder: Path) -> tuple[list[str], dict[str, Any]]:
+    pipe = json.loads((flute_folder / "resolved.json").read_text(encoding="utf-8"))["pipes"][0]
+    return _pages(flute_folder), pipe
+
+
+def test_side_view_callouts_of_a_flute_in_inches(
+        flute_build: tuple[list[str], dict[str, Any]]) -> None:
+    pages, pipe = flute_build
+    page = next(t for t in pages if "Pipes — flute-c" in t)
+    for hole in pipe["holes"]:
+        name = f"hole {hole['label']}" if hole["label"].isdigit() else hole["label"]
+        size, at = f"{hole['diameter_mm']:.2f}", f"{hole['position_from_top_mm']:.2f}"
+        found = re.search(rf"{name} ø {size} \({INCH}\) at {at} \({INCH}\) from top", page)
+        assert found, name
+        assert _reads(found[1], hole["diameter_mm"]) and \
+            _reads(found[2], hole["position_from_top_mm"]), found[0]
+    head = pipe["head"]
+    cork = re.search(rf"cork {head['cork_mm']:.2f} \({INCH}\) above the embouchure", page)
+    mouth = re.search(rf"embouchure ø {head['embouchure_diameter_mm']:.2f} \({INCH}\)", page)
+    assert cork and _reads(cork[1], head["cork_mm"])
+    # the spec's 3/8 in embouchure, shown as it was given
+    assert mouth and mouth[1] == "3/8"
+    # the fingering page's note on the cork too
+    chart = next(t for t in pages if "Fingerings — flute-c" in t)
+    assert re.search(rf"Cork {INCH} = {head['cork_mm']:.1f} mm above", chart)
+
+
+def test_side_view_labels_stay_in_the_views_box(flute_folder: Path) -> None:
+    # The flute's outside diameter, too long for the room between its arrows, was written
+    # to the right of them and ran under the page's tables ("ø 22.23 (7/8 i").
+    reader = PdfReader(io.BytesIO((flute_folder / "build-sheet.pdf").read_bytes()))
+    page = next(p for p in reader.pages if "Pipes — flute-c" in p.extract_text())
+    register_fonts()
+    placed: list[tuple[str, float]] = []
+
+    def seen(text: str, cm: Any, tm: Any, _font: Any, size: float) -> None:
+        if text.strip():  # where the text ends on the page, in points
+            placed.append((text.strip(),
+                           cm[4] + tm[4] + stringWidth(text.strip(), FONT, size * tm[0])))
+
+    page.extract_text(visitor_text=seen)
+    right = frame_for("a4").left + VIEW_WIDTH
+    (label,) = [(t, end) for t, end in placed if t.startswith("ø 22.23")]
+    assert label[0] == "ø 22.23 (7/8 in)" and label[1] <= right, label
