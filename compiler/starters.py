@@ -283,6 +283,7 @@ flutes:                           # tubes with tone holes
       min_diameter: 3 mm          # smallest hole
       max_diameter: 9 mm          # largest hole
       min_web: 3 mm               # material left between neighbouring holes
+      min_span: 17 mm             # room for two fingers side by side (default 15 mm)
       max_span: 30 mm             # comfortable reach between adjacent fingers
     losses: keefe                 # wall losses (Keefe 1984), or `none`
     radiation: frequency-dependent   # how the open end and open holes radiate
@@ -352,6 +353,7 @@ flutes:                           # tubes with tone holes
       min_diameter: 4 mm          # smallest hole
       max_diameter: 10 mm         # largest hole
       min_web: 4 mm               # material left between neighbouring holes
+      min_span: 17 mm             # room for two fingers side by side (default 15 mm)
       max_span: 35 mm             # comfortable reach between adjacent fingers
     losses: keefe                 # wall losses (Keefe 1984), or `none`
     radiation: frequency-dependent   # how the open end and open holes radiate

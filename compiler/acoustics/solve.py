@@ -43,12 +43,15 @@ from compiler.acoustics.solve_lsq import Fit, Problem, least_squares
 from compiler.acoustics.solve_request import (
     CORK_RANGE,
     DIAMETER_RULE,
+    MIN_SPAN_M,
     SECOND_REGISTER_WEIGHT,
     CorkRange,
     DesignError,
+    FingerPair,
     FixedHole,
     HoleConstraints,
     Request,
+    finger_pairs,
     read_request,
     rule_diameters,
 )
@@ -56,13 +59,16 @@ from compiler.acoustics.solve_request import (
 __all__ = [
     "CORK_RANGE",
     "DIAMETER_RULE",
+    "MIN_SPAN_M",
     "SECOND_REGISTER_WEIGHT",
     "CorkRange",
     "Design",
     "DesignError",
+    "FingerPair",
     "FixedHole",
     "HoleConstraints",
     "design_holes",
+    "finger_pairs",
     "rule_diameters",
 ]
 
@@ -268,7 +274,8 @@ def _length(req: Request, g: Geometry, f_closed: float) -> tuple[Geometry, float
     closed_req = replace(req, template=template, closed=np.ones((1, kept.size), dtype=bool),
                          targets=np.array([f_closed]), registers=np.array([1]),
                          weights=np.array([1.0]), names=("the all-closed note",),
-                         fixed_x=req.fixed_x[kept], fixed_d=req.fixed_d[kept], spans=())
+                         fixed_x=req.fixed_x[kept], fixed_d=req.fixed_d[kept], spans=(),
+                         fingers=())
     problem = Problem(closed_req, np.array([0]), Unknowns(req.length_m is None, (), (), False),
                       g.d[kept], bounded=False)
     try:
@@ -296,6 +303,7 @@ def _check_reach(req: Request, g: Geometry) -> None:
     X[0] = req.top_limit(Dm[0])
     for h in range(1, n):
         X[h] = X[h - 1] + 0.5 * (Dm[h - 1] + Dm[h]) + req.limits.min_web_m
+        X[h] = max([X[h]] + [X[p.upper] + p.along_m for p in req.fingers if p.lower == h])
     if X[-1] >= L - 0.5 * Dm[-1] - req.limits.min_web_m:
         return  # the holes do not even fit side by side: the solver will say where
     open_req = replace(req, closed=np.zeros((1, n), dtype=bool), targets=np.array(
@@ -309,7 +317,8 @@ def _check_reach(req: Request, g: Geometry) -> None:
         raise DesignError(
             f"{req.names[i]} ({req.targets[i]:.1f} Hz) is beyond this tube's reach: with every "
             f"hole open, at its largest allowed size and as close to the {req.mouth_word} as "
-            f"the web allows, the tube sounds {f_reach:.1f} Hz",
+            f"the {'web and the fingers allow' if req.fingers else 'web allows'}, the tube "
+            f"sounds {f_reach:.1f} Hz",
             "choose a lower top note, allow larger holes, or use a wider bore", row=i)
 
 
@@ -348,7 +357,9 @@ def _start(req: Request, g: Geometry, f_closed: float) -> Float:
             if s > 1e-4:
                 x_new = e - float(downstream_for_shortening(s, a[h], 0.5 * D[h], t_e[h]))
         gap = 0.5 * (D[h] + (D[h + 1] if h + 1 < n else 0.0)) + req.limits.min_web_m
-        X[h] = max(min(x_new, below - gap), x_m + 2e-3 * (h + 1))
+        highest = min([below - gap] + [X[p.lower] - p.along_m for p in req.fingers
+                                       if p.upper == h])
+        X[h] = max(min(x_new, highest), x_m + 2e-3 * (h + 1))
     return X
 
 
@@ -360,27 +371,41 @@ def _not_reached(req: Request, problem: Problem, fit: Fit) -> DesignError:
     holding = list(fit.by_row[k]) or list(fit.binding)
     words = advice(req, fit.geometry, holding)
     side = "flat" if err < 0 else "sharp"
-    pair = holding[0] if holding and holding[0].kind in ("web", "span") else None
+    pair = holding[0] if holding and holding[0].kind in ("web", "span", "fingers") else None
+    if pair is not None and pair.kind == "fingers":
+        least = (req.limits.min_span_m or 0.0) * MM
+        return DesignError(
+            f"holes {pair.hole + 1} and {pair.other + 1} must sit {least:.1f} mm apart for the "
+            f"two fingers that cover them (`min_span`), and there {name} stays {_cents(err)} "
+            f"cents {side} of its target",
+            f"allow {words}; a smaller hole {pair.hole + 1} (it sits higher for the same note) "
+            f"or a larger hole {pair.other + 1} (it sits lower) parts them, and so does a lower "
+            "key (a longer tube)", hole=pair.other)
     if pair is not None:
         gap = "span" if pair.kind == "span" else "web"
         limit = ((req.spans[min(pair.hole, pair.other)] or 0.0) if gap == "span"
                  else req.limits.min_web_m) * MM
         return DesignError(
             f"holes {pair.hole + 1} and {pair.other + 1} are held by the {limit:.1f} mm {gap} "
-            f"allowed between them, and {name} stays {abs(err):.0f} cents {side} of its target",
+            f"allowed between them, and {name} stays {_cents(err)} cents {side} of its target",
             f"allow {words}", hole=pair.other)
     if err < 0:
         return DesignError(
-            f"{name} stays {-err:.0f} cents flat of its target: the holes that make it cannot "
+            f"{name} stays {_cents(err)} cents flat of its target: the holes that make it cannot "
             "sit high enough or be large enough within the limits",
             f"allow {words}" if words else
             "choose a lower note, allow larger holes or a wider bore, or check its fingering",
             row=row)
     return DesignError(
-        f"{name} stays {err:.0f} cents sharp of its target within the limits",
+        f"{name} stays {_cents(err)} cents sharp of its target within the limits",
         f"allow {words}" if words else
         "check its fingering (a lower note needs more holes closed), or allow smaller holes",
         row=row)
+
+
+def _cents(error: float) -> str:
+    """A miss in cents as a maker reads it: whole cents, tenths below one."""
+    return f"{abs(error):.0f}" if abs(error) >= 1.0 else f"{abs(error):.1f}"
 
 
 def _snap_and_resolve(
@@ -412,6 +437,8 @@ def _snap_and_resolve(
         if squeezed is None:
             break
         culprits = [h for h in (squeezed.hole, squeezed.other) if h in free_d]
+        if squeezed.kind == "fingers":
+            culprits = culprits[:1] if squeezed.hole in free_d else []  # smaller: higher
         if not culprits:
             raise _squeeze_error(req, squeezed)
         h = max(culprits)
@@ -451,6 +478,10 @@ def _drill_moves(unsnapped: Geometry, fit: Fit, free_d: tuple[int, ...]) -> list
         if limit.kind in ("web", "top", "span"):
             step = 1 if limit.kind == "span" else -1
             moves |= {(h, step) for h in (limit.hole, limit.other) if h in free_d}
+        elif limit.kind == "fingers":
+            # a smaller hole sits higher for the same note, a larger one lower: both part them
+            moves |= {(h, step) for h, step in ((limit.hole, -1), (limit.other, 1))
+                      if h in free_d}
     return sorted(moves)
 
 
@@ -491,6 +522,9 @@ def _squeezed(req: Request, g: Geometry) -> Limit | None:
         span = req.spans[i]
         if span is not None and X[i + 1] - X[i] > span + 1e-5:
             return Limit("span", i, i + 1)
+    for pair in req.fingers:
+        if X[pair.lower] - X[pair.upper] < pair.along_m - 1e-5:
+            return Limit("fingers", pair.upper, pair.lower)
     if X.size and X[-1] > g.length_m - 0.5 * D[-1] - web + 1e-5:
         return Limit("foot", X.size - 1)
     return None
@@ -506,6 +540,13 @@ def _squeeze_error(req: Request, limit: Limit) -> DesignError:
         return DesignError(
             f"hole {limit.hole + 1} would sit closer to the foot than its web allows",
             "lower the all-closed note or use smaller holes near the foot", hole=limit.hole)
+    if limit.kind == "fingers":
+        least = (req.limits.min_span_m or 0.0) * MM
+        return DesignError(
+            f"holes {limit.hole + 1} and {limit.other + 1} cannot sit {least:.1f} mm apart for "
+            "the two fingers that cover them with the drills of the set (`min_span`)",
+            "add drill sizes, turn one of them a little round the tube (`angle`), or set a "
+            "smaller `min_span` if the player's fingers fit closer", hole=limit.other)
     gap = (f"the {(req.spans[limit.hole] or 0.0) * MM:.1f} mm span" if limit.kind == "span"
            else f"a {web:.1f} mm web")
     return DesignError(

@@ -6,7 +6,8 @@ in millimetres. The limits are linear in them:
 
 - ``top``: the top hole's edge a web below the mouth opening;
 - ``web``: a web between neighbouring hole edges; ``span``: at most the hand's span between
-  neighbouring centres;
+  neighbouring centres; ``fingers``: at least the least span between the centres of holes
+  that neighbouring fingers cover;
 - ``foot``: the bottom hole's edge a web above the open foot;
 - ``smallest`` / ``largest``: a hole's diameter within its limits (the largest is the absolute
   limit or the ratio to the local bore, taken at the current positions);
@@ -143,6 +144,9 @@ def limits(req: Request, unknowns: Unknowns, g: Geometry) -> Limits:
         span = req.spans[i]
         if span is not None:
             rows.append((Limit("span", i, i + 1), {("x", i): 1.0, ("x", i + 1): -1.0}, -span))
+    for pair in req.fingers:
+        rows.append((Limit("fingers", pair.upper, pair.lower),
+                     {("x", pair.lower): 1.0, ("x", pair.upper): -1.0}, pair.along_m))
     for h in range(n):
         rows.append((Limit("smallest", h), {("d", h): 1.0}, lim.min_diameter_m))
         rows.append((Limit("largest", h), {("d", h): -1.0}, -float(dmax[h])))
@@ -234,6 +238,7 @@ def advice(req: Request, g: Geometry, binding: list[Limit]) -> str:
     """What would let the notes reach their targets, in a maker's words, from the limits that
     hold the solution back (most binding first); empty when nothing binds."""
     words: list[str] = []
+    pairs: list[str] = []
     web = req.limits.min_web_m * MM
     for limit in binding:
         h, o = limit.hole, limit.other
@@ -254,6 +259,9 @@ def advice(req: Request, g: Geometry, binding: list[Limit]) -> str:
         elif limit.kind == "span":
             span = (req.spans[min(h, o)] or 0.0) * MM
             text = f"a span wider than {span:.1f} mm between holes {h + 1} and {o + 1} (`max_span`)"
+        elif limit.kind == "fingers":
+            pairs.append(f"{h + 1} and {o + 1}")
+            text = _FINGERS  # every pair in one piece of advice, written below
         elif limit.kind == "foot":
             text = f"more tube below hole {h + 1}"
         elif limit.kind == "cork-low" and req.cork is not None and req.cork.low_is_hole_edge:
@@ -268,7 +276,15 @@ def advice(req: Request, g: Geometry, binding: list[Limit]) -> str:
             continue
         if text not in words:
             words.append(text)
+    if pairs:
+        least = (req.limits.min_span_m or 0.0) * MM
+        words[words.index(_FINGERS)] = (
+            f"holes {', '.join(pairs)} closer than {least:.1f} mm (`min_span`, if the player's "
+            "fingers fit) or turned apart round the tube (`angle`)")
     return "; ".join(words[:3])
+
+
+_FINGERS = "fingers"
 
 
 def snap(req: Request, g: Geometry, holes: tuple[int, ...],

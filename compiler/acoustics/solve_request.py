@@ -31,6 +31,14 @@ from memory: a concert flute's cork sits about 17 mm (0.9 bore diameters) above 
 embouchure centre; much closer and the low notes lose their tone, much further and the
 octaves collapse."""
 
+MIN_SPAN_M = 0.015
+"""Default least centre-to-centre distance between holes covered by neighbouring fingers.
+Common practice, from memory: an adult's finger pads sit about 17–22 mm apart, centre to
+centre, when they cover a flute's or whistle's holes. 15 mm is below that on purpose: it
+never refuses the spacing of an ordinary flute, still fits small instruments (high whistles)
+whose players squeeze their fingers together, and rules out holes no two fingers can cover
+(10–12 mm apart). A spec sets its own, or ``0 mm`` for none."""
+
 SECOND_REGISTER_WEIGHT = 0.5
 """Default weight of second-register rows in the least squares (first register 1): the
 player bends an overblown note more easily than a fundamental, so it gives way first."""
@@ -59,17 +67,58 @@ class DesignError(ValueError):
 
 
 @dataclass(frozen=True)
+class FingerPair:
+    """Two holes covered by neighbouring fingers (indices from 0 at the top, upper first) and
+    the least distance along the tube between their centres, metres: the least span itself for
+    holes in line, less where one is turned round the tube (the span is measured on the
+    surface, ``finger_pairs``)."""
+
+    upper: int
+    lower: int
+    along_m: float
+
+
+@dataclass(frozen=True)
 class HoleConstraints:
     """Limits on the holes, metres. max_ratio: hole diameter over the local bore diameter.
     min_web_m: wood or metal left between neighbouring hole edges, and between the top hole and
     the mouth opening. max_span_m: largest centre-to-centre distance between adjacent holes, one
-    value for every gap or a tuple with one entry per gap (None: no limit, e.g. between hands)."""
+    value for every gap or a tuple with one entry per gap (None: no limit, e.g. between hands).
+    min_span_m: least centre-to-centre distance between holes covered by neighbouring fingers
+    (None or 0: no limit; the resolver's default is ``MIN_SPAN_M``), applied to ``fingers``
+    (None: every pair of adjacent holes, in line)."""
 
     min_diameter_m: float = 0.002
     max_diameter_m: float = 0.011
     max_ratio: float = 0.8
     min_web_m: float = 0.003
     max_span_m: float | tuple[float | None, ...] | None = None
+    min_span_m: float | None = None
+    fingers: tuple[FingerPair, ...] | None = None
+
+
+def finger_pairs(angles_deg: tuple[float, ...], outside_diameter_m: float,
+                 min_span_m: float) -> tuple[FingerPair, ...]:
+    """The holes neighbouring fingers cover, and how far apart along the tube each pair must
+    be for their centres to be ``min_span_m`` apart on the tube's outside.
+
+    Fingers cover the holes on the front (less than 90° round the tube from the front line),
+    one finger each, in order down the tube; a hole on the back is a thumb's and is left out
+    (the pair is then the front holes above and below it). Two holes turned apart by an arc
+    ``s`` of the outside surface need only ``sqrt(span² − s²)`` along the tube (the surface
+    distance, unrolled: plane geometry)."""
+    front = [i for i, a in enumerate(angles_deg) if abs(_wrapped(a)) < 90.0]
+    pairs = []
+    for i, j in zip(front, front[1:], strict=False):
+        turn = abs(_wrapped(angles_deg[j] - angles_deg[i]))
+        arc = np.pi * outside_diameter_m * turn / 360.0
+        pairs.append(FingerPair(i, j, float(np.sqrt(max(min_span_m ** 2 - arc ** 2, 0.0)))))
+    return tuple(pairs)
+
+
+def _wrapped(angle_deg: float) -> float:
+    """An angle round the tube as −180° to 180° from the front line."""
+    return (angle_deg + 180.0) % 360.0 - 180.0
 
 
 @dataclass(frozen=True)
@@ -111,6 +160,8 @@ class Request:
     names: tuple[str, ...]
     limits: HoleConstraints
     spans: tuple[float | None, ...]
+    fingers: tuple[FingerPair, ...]
+    """The pairs held ``limits.min_span_m`` apart (none without a least span)."""
     fixed_x: Float
     """Fixed position per hole, NaN where free."""
     fixed_d: Float
@@ -210,13 +261,14 @@ def read_request(
         raise DesignError("the fixed hole positions must lie in order below the mouth and "
                           "inside the tube", "check the fixed positions (measured from the "
                           "top end)", about="holes")
+    fingers = _fingers(limits, n_holes, fx, spans)
     word = {"duct": "window", "embouchure": "embouchure hole", "open": "top end"}[head.kind]
     half = {"duct": 0.5 * head.window_length_m, "embouchure": head.embouchure_radius_m}
     weight = float(np.clip(second_weight, 0.0, 1.0))
     request = Request(
         template=template, air=air, closed=table, targets=targets, registers=regs,
         weights=np.where(regs == 1, 1.0, weight), names=names, limits=limits,
-        spans=tuple(spans), fixed_x=fx, fixed_d=fd, length_m=length_m, cork=cork,
+        spans=tuple(spans), fingers=fingers, fixed_x=fx, fixed_d=fd, length_m=length_m, cork=cork,
         drills=np.sort(np.asarray(drills_m, dtype=np.float64)),
         mouth_half_m=half.get(head.kind, 0.0), mouth_word=word)
     dmax = request.max_diameter(np.where(np.isfinite(fx), fx, x_m + 0.1))
@@ -227,3 +279,33 @@ def read_request(
                 f"{limits.min_diameter_m * 1e3:.1f}–{dmax[h] * 1e3:.1f} mm",
                 "change the fixed diameter or the hole-size limits", hole=int(h))
     return request
+
+
+def _fingers(limits: HoleConstraints, n_holes: int, fixed_x: Float,
+             spans: list[float | None] | tuple[float | None, ...]) -> tuple[FingerPair, ...]:
+    """The pairs held apart by the least span, checked against the fixed positions and the
+    largest span; raise ``DesignError`` at the lower hole of a pair that cannot be."""
+    least = limits.min_span_m or 0.0
+    if least <= 0.0:
+        return ()
+    pairs = (limits.fingers if limits.fingers is not None else
+             tuple(FingerPair(i, i + 1, least) for i in range(n_holes - 1)))
+    for p in pairs:
+        if not 0 <= p.upper < p.lower < n_holes:
+            raise DesignError("a pair of neighbouring finger holes names holes that are not "
+                              "there", "list each pair once, upper hole first", about="holes")
+        apart = fixed_x[p.lower] - fixed_x[p.upper]
+        if np.isfinite(apart) and apart < p.along_m - 1e-9:
+            raise DesignError(
+                f"holes {p.upper + 1} and {p.lower + 1} are fixed {apart * 1e3:.1f} mm apart "
+                f"along the tube, closer than the {least * 1e3:.1f} mm two neighbouring fingers "
+                "need between their centres (`min_span`)",
+                "move them apart or turn one round the tube (`angle`), or set a smaller "
+                "`min_span` if the fingers that cover them fit closer", hole=p.lower)
+        widest = spans[p.upper] if p.lower == p.upper + 1 else None
+        if widest is not None and widest < p.along_m - 1e-9:
+            raise DesignError(
+                f"holes {p.upper + 1} and {p.lower + 1} must be {least * 1e3:.1f} mm apart or "
+                f"more (`min_span`) and {widest * 1e3:.1f} mm or less (`max_span`)",
+                "give a `max_span` larger than `min_span`", hole=p.lower)
+    return tuple(pairs)

@@ -226,7 +226,8 @@ def _first_register(instrument: Instrument, air: Air, closed: np.ndarray) -> flo
 def _as_cut(flute: spec_model.Flute, design: solve.Design, limits: solve.HoleConstraints,
             head: EngineHead, step: float) -> tuple[float, ...]:
     """Free hole positions rounded to the precision, each nudged by one more step where the
-    rounding would break a web or the span the solution kept (fixed positions stay)."""
+    rounding would break a web, the span or the fingers' least span the solution kept (fixed
+    positions stay)."""
     x = [x if h.position_m is not None else plain.round_to(x, step)
          for h, x in zip(flute.holes, design.hole_positions_m, strict=True)]
     free = [h.position_m is None for h in flute.holes]
@@ -250,6 +251,13 @@ def _as_cut(flute: spec_model.Flute, design: solve.Design, limits: solve.HoleCon
             x[i + 1] = round(x[i + 1] + move * step, 9)
         elif free[i]:
             x[i] = round(x[i] - move * step, 9)
+    for pair in limits.fingers or ():
+        if x[pair.lower] - x[pair.upper] >= pair.along_m - 1e-9:
+            continue
+        if free[pair.lower]:
+            x[pair.lower] = round(x[pair.lower] + step, 9)
+        elif free[pair.upper]:
+            x[pair.upper] = round(x[pair.upper] - step, 9)
     return tuple(x)
 
 
@@ -304,9 +312,15 @@ def prototype(inputs: FluteInputs) -> Instrument:
     stock = inputs.stock_named(flute.stock)
     assert stock is not None and stock.inside_diameter_m is not None
     engine_head, _, cork = _head(flute, stock.inside_diameter_m, stock.thickness_m)
-    limits = _limits(flute)
+    limits = _limits(flute, _outside(stock))
     _check_fixed(flute, engine_head, limits.min_web_m)
     return _design(flute, inputs, engine_head, cork, _rows(flute, inputs), limits, air).instrument
+
+
+def _outside(stock: spec_model.Stock) -> float:
+    """The tube's outside diameter, where the fingers are."""
+    assert stock.inside_diameter_m is not None
+    return stock.outside_diameter_m or stock.inside_diameter_m + 2 * stock.thickness_m
 
 
 def jig(name: str | None, inputs: FluteInputs | SurveyInputs) -> Jig:
@@ -317,15 +331,27 @@ def jig(name: str | None, inputs: FluteInputs | SurveyInputs) -> Jig:
     return Jig(item.name, item.material, item.thickness_m, item.kind)
 
 
-def _limits(flute: spec_model.Flute) -> solve.HoleConstraints:
+def _limits(flute: spec_model.Flute, outside_diameter_m: float) -> solve.HoleConstraints:
+    """The spec's limits on the holes, the solver's defaults where it gives none. The least
+    span holds the front holes apart, pair by pair (``solve.finger_pairs``)."""
     c = flute.constraints
     defaults = solve.HoleConstraints()
+    least = c.min_span_m if c.min_span_m is not None else solve.MIN_SPAN_M
+    if c.min_span_m is None and c.max_span_m is not None and c.max_span_m < least:
+        raise PhysicsError.at(flute.where.get("constraints.max_span", _at(flute, "constraints")),
+                              f"flute `{flute.id}`: max_span ({c.max_span_m * 1000:g} mm) is "
+                              f"less than the {least * 1000:g} mm two neighbouring fingers "
+                              "need between their holes' centres (the default `min_span`)",
+                              "give a larger `max_span`, or a `min_span` below it if the "
+                              "player's fingers fit that close")
+    angles = tuple(h.angle_deg for h in flute.holes)
     return solve.HoleConstraints(
         min_diameter_m=c.min_diameter_m or defaults.min_diameter_m,
         max_diameter_m=c.max_diameter_m or defaults.max_diameter_m,
         max_ratio=c.max_ratio or defaults.max_ratio,
         min_web_m=c.min_web_m if c.min_web_m is not None else defaults.min_web_m,
-        max_span_m=c.max_span_m)
+        max_span_m=c.max_span_m, min_span_m=least,
+        fingers=solve.finger_pairs(angles, outside_diameter_m, least) if least > 0 else ())
 
 
 def resolve_flute(inputs: FluteInputs) -> tuple[Group, list[Pipe], list[Note]]:
@@ -337,7 +363,7 @@ def resolve_flute(inputs: FluteInputs) -> tuple[Group, list[Pipe], list[Note]]:
     bore_d, wall = stock.inside_diameter_m, stock.thickness_m
     engine_head, head, cork = _head(flute, bore_d, wall)
     rows = _rows(flute, inputs)
-    limits = _limits(flute)
+    limits = _limits(flute, _outside(stock))
     _check_fixed(flute, engine_head, limits.min_web_m)
     made = _design(flute, inputs, engine_head, cork, rows, limits, air)
     fit = calibration.uncalibrated()

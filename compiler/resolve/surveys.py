@@ -24,7 +24,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from numpy.typing import NDArray
 
-from compiler.acoustics import playing
+from compiler.acoustics import playing, solve
 from compiler.acoustics.impedance import Bore, Instrument, Segment
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.impedance import Hole as EngineHole
@@ -195,9 +195,7 @@ def _holes(survey: spec_model.Survey, bore: Bore, head: EngineHead,
                                       f"({_mm(above.position_from_top_m)} from the top)",
                                       "list the holes from the head downward")
         for other in out:
-            dx = abs(_around(h.angle_deg, circumference) - _around(other.angle_deg,
-                                                                   circumference))
-            gap = math.hypot(min(dx, circumference - dx), x - other.position_from_top_m)
+            gap = _apart(x, h.angle_deg, other, circumference)
             overlap = (h.diameter_m + other.diameter_m) / 2 - gap
             if overlap > 0:
                 raise PhysicsError.at(at, f"{name}: {where} overlaps hole {other.label} by "
@@ -213,6 +211,35 @@ def _holes(survey: spec_model.Survey, bore: Bore, head: EngineHead,
 
 def _around(angle_deg: float, circumference: float) -> float:
     return ((angle_deg + 180.0) % 360.0 - 180.0) / 360.0 * circumference
+
+
+def _apart(x: float, angle_deg: float, other: Hole, circumference: float) -> float:
+    """Centre-to-centre distance of a hole at ``x``, ``angle_deg`` from ``other``, on the
+    tube's outside unrolled (plane geometry)."""
+    dx = abs(_around(angle_deg, circumference) - _around(other.angle_deg, circumference))
+    return math.hypot(min(dx, circumference - dx), x - other.position_from_top_m)
+
+
+def _finger_notes(survey: spec_model.Survey, holes: tuple[Hole, ...],
+                  outside_diameter: float) -> list[Note]:
+    """Neighbouring front holes closer than two fingers commonly cover (``solve.MIN_SPAN_M``,
+    the flutes' default least span): a measuring slip, or an instrument for small hands or
+    fingertips. Only a warning: a survey is predicted as it is, and a copy keeps the spacing."""
+    pairs = solve.finger_pairs(tuple(h.angle_deg for h in holes), outside_diameter,
+                               solve.MIN_SPAN_M)
+    circumference = math.pi * outside_diameter
+    notes = []
+    for pair in pairs:
+        upper, lower = holes[pair.upper], holes[pair.lower]
+        if lower.position_from_top_m - upper.position_from_top_m >= pair.along_m - 1e-9:
+            continue
+        apart = _apart(lower.position_from_top_m, lower.angle_deg, upper, circumference)
+        notes.append(Note(lower.source or survey.position,
+                          f"survey `{survey.id}`: holes {upper.label} and {lower.label} are "
+                          f"{_mm(apart)} apart centre to centre, closer than two neighbouring "
+                          f"fingers commonly cover ({_mm(solve.MIN_SPAN_M)}): check the "
+                          "measurement; a copy keeps this spacing"))
+    return notes
 
 
 def _head_bottom(survey: spec_model.Survey, head: EngineHead) -> float:
@@ -346,7 +373,7 @@ def resolve_survey(inputs: SurveyInputs) -> tuple[Group, list[Pipe], list[Note]]
     if lowest is None:
         raise PhysicsError.at(survey.position, f"{name}: the model finds no resonance for any "
                               "fingering", "check the length, bore and holes as measured")
-    warnings += stock_notes
+    warnings += _finger_notes(survey, holes, outside) + stock_notes
     pipe = replace(_pipe(survey, air, instrument, engine_head, head, holes, (top_d, outside),
                          fingerings, lowest, stock), jig=jig(survey.jig, inputs))
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",

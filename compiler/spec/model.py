@@ -241,6 +241,7 @@ class Constraints:
     max_ratio: float | None = None
     min_web_m: float | None = None
     max_span_m: float | None = None
+    min_span_m: float | None = None
 
 
 @dataclass(frozen=True)

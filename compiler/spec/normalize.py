@@ -578,6 +578,12 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         r.fail((*c, "min_diameter"), f"{_name((*c, 'min_diameter'))}: "
                f"{smallest * 1000:g} mm is larger than max_diameter ({largest * 1000:g} mm)",
                "the smallest hole allowed must not be larger than the largest")
+    closest, widest = r.length((*c, "min_span"), positive=False), r.length((*c, "max_span"))
+    if closest is not None and widest is not None and closest > widest:
+        r.fail((*c, "min_span"), f"{_name((*c, 'min_span'))}: {closest * 1000:g} mm is larger "
+               f"than max_span ({widest * 1000:g} mm)",
+               "the least distance between neighbouring fingers' holes must not be larger than "
+               "the largest")
     return model.Flute(
         id=str(r.get((*base, "id"))),
         family=str(r.get((*base, "family"))),
@@ -590,7 +596,8 @@ def _flute(r: _Reader, i: int) -> model.Flute:
             max_diameter_m=largest,
             max_ratio=r.ratio((*c, "max_ratio")),
             min_web_m=r.length((*c, "min_web"), positive=False),
-            max_span_m=r.length((*c, "max_span"))),
+            max_span_m=widest,
+            min_span_m=closest),
         length_m=r.length((*base, "length")),
         losses=r.get((*base, "losses")) or "keefe",
         radiation=r.get((*base, "radiation")) or "frequency-dependent",
@@ -601,6 +608,7 @@ def _flute(r: _Reader, i: int) -> model.Flute:
         jig=r.get((*base, "jig")),
         where=model._frozen(r.where(base, "id", "family", "stock", "head", "holes",
                                     "fingerings", "constraints", "length", "measured", "jig",
+                                    "constraints.max_span", "constraints.min_span",
                                     "head.cork", "head.embouchure.diameter",
                                     "head.embouchure.from_top", "head.window.width",
                                     "head.window.length", "head.window.from_top",

@@ -25,6 +25,7 @@ from compiler.acoustics.solve import (
     FixedHole,
     HoleConstraints,
     design_holes,
+    finger_pairs,
 )
 
 DRILLS = tuple(np.round(np.arange(2.0, 13.01, 0.5), 1) / 1000)  # metric, 0.5 mm steps
@@ -181,6 +182,44 @@ def test_hand_span_is_respected() -> None:
         constraints=FLUTE_LIMITS,
     )
     assert np.max(np.diff(free.hole_positions_m)) > 0.027
+
+
+def test_neighbouring_fingers_keep_their_room() -> None:
+    # Adult finger pads sit about 17–22 mm apart, centre to centre, on a flute's holes (common
+    # practice, from memory): 17 mm between the centres of neighbouring front holes, measured
+    # on the tube's outside. The first hole is a thumb hole at the back (180°), covered by
+    # the thumb: it may sit closer to hole 2. Hole 6 is turned 40° round the tube, so its
+    # neighbours need less distance along the tube for the same 17 mm on the surface.
+    angles = (180.0, 0.0, 0.0, 0.0, 0.0, 40.0, 0.0, 0.0)
+    outside = 0.01905
+    least = 0.017
+    limits = HoleConstraints(max_diameter_m=0.010, min_web_m=0.003, min_span_m=least,
+                             fingers=finger_pairs(angles, outside, least))
+    args = (FLUTE_BORE, 0.00124, FLUTE_HEAD, FLUTE_TABLE[:9], FLUTE_TARGETS[:9], AIR)
+    d = design_holes(*args, drills_m=DRILLS, constraints=limits)
+    check_design(d, FLUTE_TABLE[:9], FLUTE_TARGETS[:9], [1] * 9, 0.00124, limits)
+    x = np.array(d.hole_positions_m)
+    # Surface distance between two hole centres: the tube's outside unrolled is a plane, the
+    # turn an arc of π·D·angle/360 across it (plane geometry).
+    for upper, lower in [(1, 2), (2, 3), (3, 4), (4, 5), (5, 6), (6, 7)]:
+        arc = np.pi * outside * abs(angles[lower] - angles[upper]) / 360.0
+        assert np.hypot(x[lower] - x[upper], arc) >= least - 2e-5, (upper, lower)
+    # without the limit the solver puts some neighbours closer than fingers can cover (the
+    # constraint really bound), and the thumb hole is held to nothing but the web
+    free = design_holes(*args, drills_m=DRILLS, constraints=HoleConstraints(
+        max_diameter_m=0.010, min_web_m=0.003))
+    assert np.min(np.diff(free.hole_positions_m)[1:]) < 0.013
+    assert x[1] - x[0] < least
+
+
+def test_fixed_holes_too_close_for_fingers() -> None:
+    fixed = (None, None, None, FixedHole(0.200), FixedHole(0.212), None)
+    limits = HoleConstraints(min_span_m=0.015)
+    with pytest.raises(DesignError) as err:
+        design_holes(Bore.cylinder(0.010), 0.001, DUCT_HEAD, DUCT_TABLE[:7], DUCT_TARGETS[:7],
+                     AIR, fixed=fixed, constraints=limits)
+    assert err.value.hole == 4
+    assert "12.0 mm apart" in err.value.message and "`min_span`" in err.value.message
 
 
 def test_least_squares_when_targets_outnumber_unknowns() -> None:

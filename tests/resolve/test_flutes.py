@@ -3,10 +3,12 @@ impossible requests reported at the spec's position."""
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import pytest
 
+from compiler.emit.resolved_json import dumps
 from compiler.errors import PhysicsError
 from compiler.resolve.resolver import resolve
 from compiler.spec import load_spec
@@ -44,6 +46,55 @@ def test_first_register_in_tune_after_drill_snapping(name: str) -> None:
     text = (EXAMPLES / f"{name}.yaml").read_text()
     overblown = len(first) - text.count(", second_register: none}")
     assert len([f for f in pipe.fingerings if f.register == 2]) == overblown
+
+
+def _front_gaps(text: str, name: str = "flute.yaml") -> list[float]:
+    """Centre-to-centre distances (mm) of neighbouring front holes, read from resolved.json:
+    holes less than 90° round the tube from the front line, taken in order down the tube."""
+    data = json.loads(dumps(resolve(load_spec(text, name))))
+    front = [h["position_from_top_mm"] for h in data["pipes"][0]["holes"]
+             if abs(h["angle_deg"]) < 90]
+    return [b - a for a, b in zip(front, front[1:], strict=False)]
+
+
+@pytest.mark.parametrize("name", ["duct-flute-d", "side-blown-flute-c"])
+def test_neighbouring_fingers_fit(name: str) -> None:
+    # Both examples ask for 17 mm between neighbouring front holes' centres: adult finger
+    # pads sit about 17–22 mm apart on a flute or whistle (common practice, from memory).
+    # The side-blown flute's thumb hole at the back is the thumb's, not a finger's neighbour.
+    text = (EXAMPLES / f"{name}.yaml").read_text()
+    assert "min_span: 17 mm" in text
+    gaps = _front_gaps(text, f"{name}.yaml")
+    assert len(gaps) == (5 if name == "duct-flute-d" else 6)
+    assert min(gaps) >= 17.0 - 1e-6
+
+
+def test_without_min_span_the_default_keeps_room_for_fingers() -> None:
+    # Without `min_span` the solver keeps 15 mm: below the 17–22 mm of adult finger pads
+    # (common practice, from memory), above the 10–12 mm no two fingers can cover.
+    text = (EXAMPLES / "duct-flute-d.yaml").read_text()
+    line = next(ln for ln in text.splitlines(keepends=True) if "min_span:" in ln)
+    text = text.replace(line, "")
+    assert "min_span" not in text
+    assert min(_front_gaps(text)) >= 15.0 - 1e-6
+
+
+def test_room_for_fingers_that_costs_notes_is_warned_at_the_note(tmp_path: Path) -> None:
+    # 22 mm between every pair of neighbouring holes is more than this whistle's semitone
+    # steps allow with holes of 3 to 10 mm: the notes that miss their goal are warned about at
+    # their fingering's line, naming the limit and what would help.
+    text = (EXAMPLES / "duct-flute-d.yaml").read_text().replace("min_span: 17 mm",
+                                                                 "min_span: 22 mm")
+    spec = tmp_path / "wide.yaml"
+    spec.write_text(text)
+    r = _resolve(spec)
+    pipe = r.pipes[0]
+    xs = [h.position_from_top_m for h in pipe.holes]
+    assert min(b - a for a, b in zip(xs, xs[1:], strict=False)) >= 0.022 - 1e-9
+    lines = {i for i, ln in enumerate(text.splitlines(), 1) if "{note:" in ln}
+    held = [n for n in r.warnings if "`min_span`" in n.message]
+    assert held and all(n.position.line in lines for n in held)
+    assert all("turned apart round the tube (`angle`)" in n.message for n in held)
 
 
 def test_thumb_hole_keeps_its_angle_and_label() -> None:
@@ -132,7 +183,8 @@ flutes:
       - {note: A5, closed: xxoooo}
       - {note: B5, closed: xooooo}
       - {note: C#6, closed: oooooo, second_register: none}
-    constraints: {min_diameter: 4 mm, max_diameter: 5 mm, min_web: 4 mm, max_span: 35 mm}
+    constraints: {min_diameter: 4 mm, max_diameter: 5 mm, min_web: 4 mm, max_span: 35 mm,
+                  min_span: 0 mm}
 """
 
 
@@ -141,7 +193,8 @@ def test_the_cork_stays_above_the_embouchure_hole(tmp_path: Path) -> None:
     # (a fact of the trade). On a 14 mm bore a free cork may come as close as a quarter of
     # the bore (3.5 mm) by the rule of thumb, but the 8 mm hole's edge is 4 mm above its
     # centre: the cork stays above the edge, and small holes that pull it down do not make
-    # the warnings offer a cork nearer still.
+    # the warnings offer a cork nearer still. (Holes this small sit closer than fingers can
+    # cover; `min_span: 0 mm` lets them, the cork being what is tested.)
     spec = tmp_path / "fife.yaml"
     spec.write_text(FIFE)
     r = resolve(load_spec(FIFE, str(spec)))

@@ -329,3 +329,24 @@ def test_a_copy_gets_the_flutes_cutter_parts() -> None:
     names = sorted(p.name for p in layout(resolved, BuildOptions()).parts)
     assert "jig-front" in names and "jig-back" in names and "template" in names
     assert resolved.pipes[0].jig is not None and resolved.pipes[0].jig.thickness_m == 0.003
+
+
+def test_front_holes_closer_than_fingers_are_flagged_at_the_lower_hole() -> None:
+    # Two fingers side by side need about 15 mm between hole centres at the least (adult
+    # finger pads sit some 17–22 mm apart: common practice, from memory). A survey is not
+    # changed, only warned about: a measuring slip, or an instrument for small hands.
+    thumb = "{label: T, from_top: 160 mm, diameter: 5 mm, angle: 180 deg}"
+    close = FIFE.format(third="from_top: 186 mm", fingerings="").replace(
+        "      - {from_top: 153 mm, diameter: 5.5 mm}\n",
+        f"      - {{from_top: 153 mm, diameter: 5.5 mm}}\n      - {thumb}\n")
+    resolved = _resolve(close)
+    notes = [n for n in resolved.warnings if "apart centre to centre" in n.message]
+    # holes 175 and 186 mm from the top are 11 mm apart; the thumb hole at the back between
+    # holes 1 and 3 is covered by the thumb and is no finger's neighbour (1 to 3: 22 mm)
+    assert len(notes) == 1
+    assert "holes 3 and 4 are 11.0 mm apart" in notes[0].message
+    # at the lower hole's line (the spec's five lines of heading come first)
+    lower = next(i for i, line in enumerate(close.splitlines(), 1) if "186 mm" in line)
+    assert notes[0].position.line == 5 + lower
+    apart = _resolve(FIFE.format(third="from_top: 195.5 mm", fingerings=""))
+    assert not [n for n in apart.warnings if "apart centre to centre" in n.message]
