@@ -20,7 +20,15 @@ from reportlab.pdfgen.canvas import Canvas
 from compiler.cache import Cache, key_of
 from compiler.emit.pdf import cautions, cover, cutlist, pipes, templates
 from compiler.emit.pdf.document import Page, draw_chrome
-from compiler.emit.pdf.style import FONT, REPERTOIRE, Frame, frame_for, register_fonts, safe
+from compiler.emit.pdf.style import (
+    FONT,
+    REPERTOIRE,
+    Frame,
+    frame_for,
+    inches_of,
+    register_fonts,
+    safe,
+)
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved
 from compiler.options import BuildOptions
@@ -52,7 +60,7 @@ def plan(sheet: BuildSheet) -> list[Page]:
         ("Cautions", cautions.pages(resolved, frame)),
         ("Cut list", cutlist.pages(resolved, parts, frame)),
         ("Pipes", pipes.pages(resolved, frame)),
-        ("Templates", templates.pages(parts, frame)),
+        ("Templates", templates.pages(parts, frame, inches_of(resolved.fabrication))),
     ]
     count = 1
     for _ in range(4):

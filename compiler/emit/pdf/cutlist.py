@@ -16,6 +16,7 @@ from compiler.emit.pdf.document import flow_pages as _flow_pages
 from compiler.emit.pdf.style import (
     MM,
     Frame,
+    inch_pair,
     inches_of,
     length,
     mm_of,
@@ -46,8 +47,7 @@ def _stock_line(name: str, item: StockItem | None, inches: Inches | None, materi
 
 
 def _inches(part: Part, inches: Inches) -> str:
-    length, width = part.length_by_width
-    return f"{inches.text_of_mm(length)} × {inches.text_of_mm(width)} in"
+    return inch_pair(*part.length_by_width, inches)
 
 
 def _size(part: Part) -> str:

@@ -141,6 +141,11 @@ def length(length_m: float, inches: Inches | None, unit: bool = True) -> str:
     return text
 
 
+def inch_pair(length_mm: float, width_mm: float, inches: Inches) -> str:
+    """A part's ``length × width`` in inches: ``1 1/2 × 1 1/4 in``."""
+    return f"{inches.text_of_mm(length_mm)} × {inches.text_of_mm(width_mm)} in"
+
+
 def per_step_words() -> str:
     """The inch sensitivity's unit, as a column or row says it."""
     return f"1/{SENSITIVITY_STEP_IN.denominator} in"

@@ -25,6 +25,7 @@ from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.pdfgen.pathobject import PDFPathObject
 
+from compiler.display import Inches, in_inches
 from compiler.emit.pdf.document import (
     Block,
     Column,
@@ -44,6 +45,7 @@ from compiler.emit.pdf.style import (
     INK,
     MM,
     Frame,
+    inch_pair,
     mm_of,
     safe,
 )
@@ -71,6 +73,13 @@ def size_text(part: Part) -> str:
     """``length × width`` in mm, the one size order of every output."""
     length, width = part.length_by_width
     return f"{mm_of(length)} × {mm_of(width)}"
+
+
+def size_words(part: Part, inches: Inches | None) -> str:
+    """The size a caption gives: ``38.10 × 31.75 mm``, with ``= 1 1/2 × 1 1/4 in`` after it
+    for a spec in inches."""
+    return f"{size_text(part)} mm" + (f" = {inch_pair(*part.length_by_width, inches)}"
+                                      if inches else "")
 
 
 @dataclass(frozen=True)
@@ -161,8 +170,10 @@ class Choice:
     used_by: tuple[str, ...]
 
 
-def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
-    """The templates to print, and the parts whose outlines were left to the DXF files."""
+def choose(parts: Parts, frame: Frame, inches: Inches | None = None
+           ) -> tuple[list[Choice], list[str]]:
+    """The templates to print, and the parts whose outlines were left to the DXF files
+    (their captions, in inches too for a spec in inches, take room on the shared pages)."""
     ww, wh = window_size(frame)
     chosen: list[Choice] = []
     for part in parts.parts:
@@ -185,7 +196,7 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
     outlines = sorted((Choice(p, tiling(p.width_mm, p.height_mm, ww, wh), tuple(alike))
                        for p, alike in order), key=lambda ch: _tile_count(ch.tiles))
     small = [ch for ch in outlines if _tile_count(ch.tiles) == 1]
-    papers = [_sized(ch) for ch in chosen if _tile_count(ch.tiles) == 1]
+    papers = [_sized(ch, inches) for ch in chosen if _tile_count(ch.tiles) == 1]
     base = len(_pack(papers, frame))
     # Each small outline in turn, kept if the shared pages stay within the budget: one
     # that would need a page of its own is skipped, and the smaller ones after it still
@@ -194,7 +205,7 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
     taken: list[tuple[Choice, tuple[float, float, float]]] = []
     pages = 0
     for ch in small:
-        item = _sized(ch)
+        item = _sized(ch, inches)
         trial = _pack(papers + taken + [item], frame)
         if len(trial) - base <= OUTLINE_PAGES:
             taken.append(item)
@@ -214,21 +225,24 @@ def choose(parts: Parts, frame: Frame) -> tuple[list[Choice], list[str]]:
     return chosen, left_out
 
 
-def _caption(part: Part, alike: int, width_mm: float) -> list[tuple[str, str]]:
+def _caption(part: Part, alike: int, width_mm: float, inches: Inches | None
+             ) -> list[tuple[str, str]]:
     """Caption lines under a small template: (font, text)."""
     head = f"{part.id} ({part.name})"
-    size = f"{size_text(part)} mm at 1:1" + (f", also for {alike} more alike" if alike else "")
+    size = f"{size_words(part, inches)} at 1:1" + (f", also for {alike} more alike"
+                                                   if alike else "")
     out = [(FONT_BOLD, line) for line in wrap(head, FONT_BOLD, CAPTION_PT, width_mm * MM)]
     out += [(FONT, line) for line in wrap(size, FONT, CAPTION_PT, width_mm * MM)]
     if part.note:
-        out += [(FONT, line) for line in wrap(part.note, FONT, CAPTION_PT, width_mm * MM)]
+        out += [(FONT, line) for line in wrap(in_inches(part.note, inches), FONT, CAPTION_PT,
+                                              width_mm * MM)]
     return out
 
 
-def _item_size(part: Part, alike: int = 0) -> tuple[float, float, float]:
+def _item_size(part: Part, alike: int, inches: Inches | None) -> tuple[float, float, float]:
     """A small template's room on a shared page (mm): width, height, caption height."""
     width = max(part.width_mm + 2 * INSET_MM, CAPTION_MIN_MM)
-    caption = len(_caption(part, alike, width)) * CAPTION_PT * 1.2 / MM + 1.0
+    caption = len(_caption(part, alike, width, inches)) * CAPTION_PT * 1.2 / MM + 1.0
     return width, part.height_mm + 2 * INSET_MM + caption, caption
 
 
@@ -242,16 +256,17 @@ class Spot:
     y: float
 
 
-def share_pages(singles: list[Choice], frame: Frame) -> list[tuple[Spot, ...]]:
+def share_pages(singles: list[Choice], frame: Frame, inches: Inches | None = None
+                ) -> list[tuple[Spot, ...]]:
     """Small templates packed several to a page: shelves from the top, kind by kind (all
     handles together: a change to one kind of part leaves the other kinds' pages as they
     were), tallest first."""
-    return _pack([_sized(ch) for ch in singles], frame)
+    return _pack([_sized(ch, inches) for ch in singles], frame)
 
 
-def _sized(choice: Choice) -> tuple[Choice, tuple[float, float, float]]:
+def _sized(choice: Choice, inches: Inches | None) -> tuple[Choice, tuple[float, float, float]]:
     """A small template with its room on a shared page (``_item_size``), worked out once."""
-    return choice, _item_size(choice.part, len(choice.used_by) - 1)
+    return choice, _item_size(choice.part, len(choice.used_by) - 1, inches)
 
 
 def _pack(singles: list[tuple[Choice, tuple[float, float, float]]],
@@ -277,18 +292,19 @@ def _pack(singles: list[tuple[Choice, tuple[float, float, float]]],
     return [tuple(p) for p in pages]
 
 
-def pages(parts: Parts, frame: Frame) -> list[Page]:
-    """Index, shared pages of small templates, then assembly maps and tiles of the large."""
-    chosen, left_out = choose(parts, frame)
+def pages(parts: Parts, frame: Frame, inches: Inches | None = None) -> list[Page]:
+    """Index, shared pages of small templates, then assembly maps and tiles of the large;
+    sizes and notes in inches too for a spec in inches (``inches``)."""
+    chosen, left_out = choose(parts, frame, inches)
     if not chosen:
         return []
     singles = [ch for ch in chosen if ch.tiles.rows * ch.tiles.cols == 1]
-    shared = share_pages(singles, frame)
+    shared = share_pages(singles, frame, inches)
     where = {spot.choice.part.id: f"small templates, page {k + 1}"
              for k, spots in enumerate(shared) for spot in spots}
-    out = _index_pages(chosen, where, left_out, frame)
+    out = _index_pages(chosen, where, left_out, frame, inches)
     for k, spots in enumerate(shared):
-        out.append(Page(SECTION, SharedPage(spots, k + 1, len(shared)),
+        out.append(Page(SECTION, SharedPage(spots, k + 1, len(shared), inches),
                         label=f"small templates {k + 1} of {len(shared)}"))
     for ch in chosen:
         t = ch.tiles
@@ -297,7 +313,7 @@ def pages(parts: Parts, frame: Frame) -> list[Page]:
         out.append(Page(SECTION, MapPage(ch), label=f"{ch.part.id} map"))
         for r in range(t.rows):
             for c in range(t.cols):
-                out.append(Page(SECTION, TilePage(ch, r, c),
+                out.append(Page(SECTION, TilePage(ch, r, c, inches),
                                 label=f"{ch.part.id} tile {r + 1}/{c + 1}"))
     return out
 
@@ -308,7 +324,7 @@ def tile_label(part: Part, tiles: Tiling, row: int, col: int) -> str:
 
 
 def _index_pages(chosen: list[Choice], where: dict[str, str], left_out: list[str],
-                 frame: Frame) -> list[Page]:
+                 frame: Frame, inches: Inches | None) -> list[Page]:
     """The section's first pages: how to print and join, what is printed and what not."""
     blocks: list[Block] = [
         Heading("Full-size templates", 14),
@@ -326,7 +342,9 @@ def _index_pages(chosen: list[Choice], where: dict[str, str], left_out: list[str
                         else ""),
                      size_text(ch.part),
                      where.get(ch.part.id, f"{ch.tiles.rows}×{ch.tiles.cols} tiles"))
-                    for ch in chosen), size=9, min_rows=1),
+                    for ch in chosen),
+              tuple(("", inch_pair(*ch.part.length_by_width, inches), "") for ch in chosen)
+              if inches else (), size=9, min_rows=1),
         Paragraph("Parts that are plain rectangles are not printed: measure them from the "
                   "cut list.", 8.5),
     ]
@@ -363,9 +381,10 @@ class SharedPage:
     spots: tuple[Spot, ...]
     number: int
     total: int
+    inches: Inches | None = None
 
     def draw(self, c: Canvas, frame: Frame) -> None:
-        spots, number, total = self.spots, self.number, self.total
+        spots, number, total, inches = self.spots, self.number, self.total, self.inches
         c.setFont(FONT_BOLD, 12)
         c.setFillColor(INK)
         c.drawString(frame.left, frame.top - 5.5 * MM,
@@ -378,7 +397,7 @@ class SharedPage:
         for spot in spots:
             part = spot.choice.part
             alike = len(spot.choice.used_by) - 1
-            w, _, caption = _item_size(part, alike)
+            w, _, caption = _item_size(part, alike, inches)
             c.saveState()
             c.translate(wx + (spot.x + (w - part.width_mm) / 2) * MM,
                         wy + (spot.y + caption + INSET_MM) * MM)
@@ -386,7 +405,7 @@ class SharedPage:
             _entities(c, part)
             c.restoreState()
             y = wy + (spot.y + caption) * MM - CAPTION_PT
-            for font, line in _caption(part, alike, w):
+            for font, line in _caption(part, alike, w, inches):
                 c.setFont(font, CAPTION_PT)
                 c.setFillColor(INK)
                 c.drawString(wx + spot.x * MM, y, line)
@@ -488,6 +507,32 @@ def polyline_path(c: Canvas, line: Polyline) -> PDFPathObject:
     return path
 
 
+INFO_LINES = 3
+"""Lines of 8 pt the title band of a tile page has room for under the title."""
+
+
+def tile_info(choice: Choice, inches: Inches | None, width: float) -> list[str]:
+    """The lines under a tile's title: its size, how tiles join, the parts alike and its
+    note, in at most ``INFO_LINES``. A long note first drops the words on joining (the map
+    and the index say them), then is left to the cut list, which gives every part's note:
+    nothing is cut off in the middle."""
+    part = choice.part
+    joining = (f" · shaded strips overlap the next tile by {OVERLAP_MM:.0f} mm: match the "
+               "crosshairs")
+    alike = (f" · also for {len(choice.used_by) - 1} more part(s) alike"
+             if len(choice.used_by) > 1 else "")
+    note = f" · {in_inches(part.note, inches)}" if part.note else ""
+    head = f"{size_words(part, inches)} (length × width) at 1:1"
+    tries = [head + joining + alike + note, head + alike + note]
+    if note:
+        tries.append(head + alike + " · its note: see the cut list")
+    for info in tries:
+        lines = wrap(info, FONT, 8, width)
+        if len(lines) <= INFO_LINES:
+            break
+    return lines
+
+
 @dataclass(frozen=True)
 class TilePage:
     """One tile of a template too large for a page."""
@@ -495,6 +540,7 @@ class TilePage:
     choice: Choice
     row: int
     col: int
+    inches: Inches | None = None
 
     def draw(self, c: Canvas, frame: Frame) -> None:
         ch, row, col = self.choice, self.row, self.col
@@ -502,15 +548,9 @@ class TilePage:
         title = tile_label(part, t, row, col)
         c.setFont(FONT_BOLD, fit_size(title, FONT_BOLD, 12, frame.content_width, 8))
         c.drawString(frame.left, frame.top - 5.5 * MM, safe(title))
-        info = (f"{size_text(part)} mm (length × width) at 1:1 · shaded strips overlap the "
-                f"next tile by {OVERLAP_MM:.0f} mm: match the crosshairs")
-        if len(ch.used_by) > 1:
-            info += f" · also for {len(ch.used_by) - 1} more part(s) alike"
-        if part.note:
-            info += f" · {part.note}"
         c.setFont(FONT, 8)
         c.setFillColor(INK)
-        for k, line in enumerate(wrap(info, FONT, 8, frame.content_width)[:3]):
+        for k, line in enumerate(tile_info(ch, self.inches, frame.content_width)):
             c.drawString(frame.left, frame.top - (10 + 3.4 * k) * MM, line)
         x0, y0, x1, y1 = t.window(row, col)
         wx, wy = frame.left, frame.bottom + BAR_BAND

@@ -12,6 +12,7 @@ from __future__ import annotations
 import io
 import json
 import re
+from dataclasses import replace
 from fractions import Fraction
 from pathlib import Path
 from typing import Any
@@ -24,6 +25,8 @@ from compiler.build import build
 from compiler.emit.pdf.document import NO_BREAK, wrap
 from compiler.emit.pdf.pipes import VIEW_WIDTH
 from compiler.emit.pdf.style import FONT, frame_for, register_fonts
+from compiler.emit.pdf.templates import INFO_LINES, Choice, tile_info, tiling
+from compiler.geometry.model import Part
 from compiler.options import Overrides
 
 ROOT = Path(__file__).resolve().parents[3]
@@ -157,3 +160,33 @@ def test_side_view_labels_stay_in_the_views_box(flute_folder: Path) -> None:
     right = frame_for("a4").left + VIEW_WIDTH
     (label,) = [(t, end) for t, end in placed if t.startswith("ø 22.23")]
     assert label[0] == "ø 22.23 (7/8 in)" and label[1] <= right, label
+
+
+def test_template_captions_of_a_spec_in_inches_give_inches(organ_pages: list[str]) -> None:
+    templates = " ".join(t for t in organ_pages if "Templates" in t.split(" page ")[0])
+    # the index: the C5 foot's outline 124.39 × 106.32 mm = 4 29/32 × 4 3/16 in
+    # (4.897 × 4.186 in)
+    assert "open-metal-C5-foot (foot) 124.39 × 106.32 4 29/32 × 4 3/16 in" in templates
+    # a small template's caption: its size and its note
+    assert "stopped-wood-C4-block (block) 38.10 × 31.75 mm = 1 1/2 × 1 1/4 in at 1:1 glue 4 " \
+        "layers, plane to 1 1/4 in = 31.8 mm wide and 1 1/2 in = 38.1 mm deep" in templates
+    # a tile's line under its title: the body of C5, 280.19 × 108.24 mm (11.031 × 4.261 in)
+    assert "280.19 × 108.24 mm = 11 1/32 × 4 1/4 in (length × width) at 1:1" in templates
+    assert "roll to 1 1/4 in = 31.8 mm inside; seam strip 1/4 in = 6.0 mm" in templates
+
+
+def test_a_tiles_lines_fit_its_band_and_keep_the_note_whole() -> None:
+    register_fonts()
+    part = Part("flute-jig-front", "flute", "flute", "drilling strip", "paper", "", 0.0,
+                "template", 69.12, 326.23, ())
+    choice = Choice(part, tiling(69.12, 326.23, 180.0, 200.0), ("flute-jig-front",))
+    short = tile_info(replace(choice, part=replace(part, note="wrap around the tube")), None,
+                      300.0)
+    assert short[0].startswith("326.23 × 69.12 mm (length × width) at 1:1 · shaded strips")
+    for words in (10, 40, 80):
+        note = " ".join(["open hole 3 to 7.5 mm"] * words)
+        lines = tile_info(replace(choice, part=replace(part, note=note)), None, 510.0)
+        text = " ".join(lines)
+        assert len(lines) <= INFO_LINES
+        # the note whole, or sent to the cut list: never cut off in the middle
+        assert text.endswith(note) or text.endswith("its note: see the cut list"), text
