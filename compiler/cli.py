@@ -143,6 +143,7 @@ def _per_recording(values: list[str] | None, count: int, option: str) -> list[st
 
 def cmd_measure(args: argparse.Namespace) -> int:
     from compiler.recordings import RecordingError, analyse, as_dicts, entries
+    from compiler.spec.notes import NoteError, parse_note
     from compiler.spec.units import (
         UnitParseError,
         parse_frequency,
@@ -158,6 +159,12 @@ def cmd_measure(args: argparse.Namespace) -> int:
     except UnitParseError as exc:
         raise UsageError(f"{exc.message} ({exc.hint})" if exc.hint else exc.message) from None
     notes = _per_recording(args.note, len(args.recordings), "--note")
+    for note in args.note or []:
+        try:
+            parse_note(note)
+        except NoteError as exc:
+            raise UsageError(f"--note {note}: {exc.message} ({exc.hint})" if exc.hint
+                             else f"--note {note}: {exc.message}") from None
     lengths = _per_recording(args.length, len(args.recordings), "--length")
     for name in args.recordings:
         if not Path(name).is_file():

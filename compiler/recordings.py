@@ -48,6 +48,13 @@ class Audio:
     channels: int
     encoding: str
     """In words: ``16-bit PCM``, ``32-bit float``, ``FLAC``."""
+    announced_s: float | None = None
+    """A WAV file cut short (its data chunk ends before the length its header gives): the
+    seconds the header announces; None for a whole file."""
+
+    @property
+    def seconds(self) -> float:
+        return len(self.samples) / self.rate if self.rate > 0 else 0.0
 
 
 @dataclass(frozen=True)
@@ -105,9 +112,19 @@ def read_audio(path: Path) -> Audio:
 def _read_pcm(path: Path) -> Audio:
     with wave.open(str(path), "rb") as w:
         channels, width, rate = w.getnchannels(), w.getsampwidth(), w.getframerate()
-        raw = w.readframes(w.getnframes())
+        announced = w.getnframes()
+        raw = w.readframes(announced)
     return Audio(_mono(_pcm(raw, width, channels), channels), float(rate), channels,
-                 f"{8 * width}-bit PCM")
+                 f"{8 * width}-bit PCM",
+                 _cut_short(len(raw), announced * width * channels, width * channels, rate))
+
+
+def _cut_short(held: int, announced: int, frame: int, rate: float) -> float | None:
+    """The seconds a data chunk's header announces when the file holds fewer bytes (a
+    recorder stopped while writing, a copy cut short), else None."""
+    if held >= announced or frame <= 0 or rate <= 0:
+        return None
+    return announced / frame / rate
 
 
 def _pcm(raw: bytes, width: int, channels: int) -> Samples:
@@ -142,6 +159,7 @@ def _read_riff(data: bytes) -> Audio:
     """IEEE-float or extensible WAV (``wave`` reads only plain PCM)."""
     fmt: bytes | None = None
     payload: bytes | None = None
+    announced = 0
     at = 12
     while at + 8 <= len(data):
         name, size = data[at: at + 4], struct.unpack_from("<I", data, at + 4)[0]
@@ -149,7 +167,7 @@ def _read_riff(data: bytes) -> Audio:
         if name == b"fmt ":
             fmt = body
         elif name == b"data":
-            payload = body
+            payload, announced = body, size
         at += 8 + size + (size & 1)  # chunks are padded to an even length
     if fmt is None or len(fmt) < 16 or payload is None:
         raise RecordingError("a damaged WAV file (no format or no sound data)",
@@ -160,15 +178,17 @@ def _read_riff(data: bytes) -> Audio:
             raise RecordingError("a damaged WAV file (short extensible format)",
                                  "export it again")
         tag = struct.unpack_from("<H", fmt, 24)[0]  # the sub-format GUID's first two bytes
+    short = _cut_short(len(payload), announced, bits // 8 * channels, float(rate))
     if tag == PCM and bits in (8, 16, 24, 32):
         return Audio(_mono(_pcm(payload, bits // 8, channels), channels), float(rate),
-                     channels, f"{bits}-bit PCM")
+                     channels, f"{bits}-bit PCM", short)
     if tag == IEEE_FLOAT and bits in (32, 64):
         usable = len(payload) - len(payload) % (bits // 8 * max(channels, 1))
         samples = np.frombuffer(payload[:usable], dtype=f"<f{bits // 8}").astype(np.float64)
         if not np.all(np.isfinite(samples)):
             raise RecordingError("the float samples hold NaN or infinity", "export it again")
-        return Audio(_mono(samples, channels), float(rate), channels, f"{bits}-bit float")
+        return Audio(_mono(samples, channels), float(rate), channels, f"{bits}-bit float",
+                     short)
     raise RecordingError(f"a WAV encoding boresmith does not read (format {tag}, {bits} bits)",
                          "export as PCM (16, 24 or 32-bit) or 32-bit float")
 
@@ -219,12 +239,12 @@ def analyse(path: Path, shown: str, note: str | None, length: str | None,
     try:
         pitch = estimate(audio.samples, audio.rate)
     except RecordingProblem as problem:
+        if audio.announced_s is not None:  # what is left of a damaged file does not do
+            raise RecordingError(f"a damaged WAV file ({_cut_short_text(audio)}): "
+                                 f"{problem.message}", "export it again") from None
         raise RecordingError(problem.message, problem.hint) from None
     if note is not None:
-        try:
-            midi, source = parse_note(note), "--note"
-        except NoteError as exc:
-            raise RecordingError(f"--note {note}: {exc.message}", exc.hint) from None
+        midi, source = parse_note(note), "--note"  # checked by the command line
     else:
         named = note_in_name(path)
         if named is not None:
@@ -234,6 +254,11 @@ def analyse(path: Path, shown: str, note: str | None, length: str | None,
     named_hz = a4_hz * 2 ** ((midi - 69) / 12)
     off = 1200 * math.log2(pitch.frequency_hz / named_hz)
     return Take(shown, midi, source, pitch, length, audio, off)
+
+
+def _cut_short_text(audio: Audio) -> str:
+    return (f"it ends after {audio.seconds:.2f} s of the {audio.announced_s:.2f} s its header "
+            "announces")
 
 
 def _decimals(frequency_hz: float) -> int:
@@ -256,8 +281,12 @@ def entry(take: Take, temperature: str) -> str:
     if take.pitch.other_pitch_share >= 0.05:
         ratio = take.pitch.other_pitch_ratio
         what = "an octave higher (overblown)" if abs(ratio - 2) < 0.03 else (
+            "a twelfth higher (overblown)" if abs(ratio - 3) < 0.045 else
             f"{ratio:.2f} times higher" if ratio > 1 else f"{ratio:.2f} times lower")
         notes.append(f"{take.pitch.other_pitch_share:.0%} of it sounded {what}, left out")
+    if take.audio.announced_s is not None:
+        notes.append(f"CHECK: the file is cut short ({_cut_short_text(take.audio)}); "
+                     "measured on what is there")
     if take.note_from == "nearest note":
         notes.append("note guessed from the pitch: check it")
     elif abs(take.cents_from_note) >= FAR_FROM_NOTE_CENTS:
@@ -290,6 +319,9 @@ def as_dicts(takes: list[Take], temperature_c: float) -> list[dict[str, object]]
         "steady_to_s": round(t.pitch.steady_to_s, 3),
         "partials": t.pitch.partials,
         "other_pitch_share": round(t.pitch.other_pitch_share, 3),
+        "other_pitch_ratio": round(t.pitch.other_pitch_ratio, 3),
+        "duration_s": round(t.audio.seconds, 3),
+        "announced_s": None if t.audio.announced_s is None else round(t.audio.announced_s, 3),
         "cents_from_note": round(t.cents_from_note, 2),
         "temperature_c": round(temperature_c, 2),
         "length": t.length,

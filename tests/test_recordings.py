@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import struct
 import wave
 from pathlib import Path
@@ -243,3 +244,86 @@ def test_a_take_far_from_its_named_note_is_flagged(tmp_path: Path,
     assert main(["measure", str(tmp_path / "G2.wav"), "-t", "19 C", "--json"]) == 0
     assert json.loads(capsys.readouterr().out)[0]["cents_from_note"] == pytest.approx(1200,
                                                                                     abs=0.5)
+
+
+def test_an_overblown_stretch_is_reported_in_the_comment_and_json(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # A G2 take that overblew to its octave for its first 0.75 s, louder than its tone: the
+    # stretch is left out and said so, not dropped unseen with the level.
+    g2 = 440.0 * 2 ** (-26 / 12)
+    t = np.arange(int(2.5 * RATE)) / RATE
+    octave = 0.8 * np.sin(2 * np.pi * 2 * g2 * t)
+    x = np.where(t < 0.75, octave, 0.6 * signal(g2)[:, 0])
+    write_pcm(tmp_path / "G2.wav", x[:, None], 16)
+    assert main(["measure", str(tmp_path / "G2.wav"), "-t", "19 C"]) == 0
+    out = capsys.readouterr().out
+    share = re.search(r"(\d+)% of it sounded an octave higher \(overblown\), left out", out)
+    assert share and 27 <= int(share[1]) <= 33  # 0.75 s of 2.5 s
+    found = float(str(_entries(out)[0]["frequency"]).split()[0])
+    assert abs(1200 * math.log2(found / g2)) < 0.1
+    assert main(["measure", str(tmp_path / "G2.wav"), "-t", "19 C", "--json"]) == 0
+    [take] = json.loads(capsys.readouterr().out)
+    assert take["other_pitch_share"] == pytest.approx(0.3, abs=0.03)
+    assert take["other_pitch_ratio"] == pytest.approx(2.0, abs=0.01)
+
+
+def test_a_pitch_that_never_settles_is_refused_with_a_hint(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # A tone gliding up 30 cents over the whole take: no settled pitch to measure.
+    t = np.arange(int(2.5 * RATE)) / RATE
+    phase = 2 * np.pi * np.cumsum(220.0 * 2 ** (30 * t / 2.5 / 1200)) / RATE
+    write_pcm(tmp_path / "A3.wav", (0.4 * np.sin(phase))[:, None], 16)
+    assert main(["measure", str(tmp_path / "A3.wav"), "-t", "19 C"]) == 1
+    err = capsys.readouterr().err
+    assert f"{tmp_path / 'A3.wav'}: error: the pitch never settled" in err
+    assert "hint: record a longer steady note" in err
+
+
+@pytest.mark.parametrize("floating", [False, True], ids=["pcm", "float"])
+def test_a_wav_cut_short_is_measured_on_what_is_there_and_says_so(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str], floating: bool) -> None:
+    # A recorder stopped while writing: the data chunk's header gives 2.5 s, the file holds
+    # 1.5 s (RIFF layout, Microsoft 1991: the chunk's length is written before its bytes).
+    wav = tmp_path / "G2.wav"
+    if floating:
+        write_riff(wav, signal(), 32, floating=True, extensible=False)
+    else:
+        write_pcm(wav, signal(), 16)
+    whole = wav.read_bytes()
+    block = 4 if floating else 2
+    wav.write_bytes(whole[: len(whole) - RATE * block])  # the last second lost
+    assert main(["measure", str(wav), "-t", "19 C"]) == 0
+    out = capsys.readouterr().out
+    assert "CHECK: the file is cut short (it ends after 1.50 s of the 2.50 s its header " \
+           "announces); measured on what is there" in out
+    found = float(str(_entries(out)[0]["frequency"]).split()[0])
+    assert abs(1200 * math.log2(found / 92.93)) < 0.1
+    assert main(["measure", str(wav), "-t", "19 C", "--json"]) == 0
+    [take] = json.loads(capsys.readouterr().out)
+    assert (take["duration_s"], take["announced_s"]) == (1.5, 2.5)
+    # cut to 0.2 s, too little to measure: refused as damaged, as a chunk running past the
+    # end of the file is
+    wav.write_bytes(whole[: len(whole) - int(2.3 * RATE) * block])
+    assert main(["measure", str(wav), "-t", "19 C"]) == 1
+    err = capsys.readouterr().err
+    assert f"{wav}: error: a damaged WAV file (it ends after 0.20 s of the 2.50 s its header " \
+           "announces): too short" in err
+    assert "hint: export it again" in err and "Traceback" not in err
+
+
+def test_a_whole_wav_says_nothing_of_cuts(tmp_path: Path,
+                                          capsys: pytest.CaptureFixture[str]) -> None:
+    write_pcm(tmp_path / "G2.wav", signal(), 16)
+    assert main(["measure", str(tmp_path / "G2.wav"), "-t", "19 C", "--json"]) == 0
+    [take] = json.loads(capsys.readouterr().out)
+    assert (take["duration_s"], take["announced_s"]) == (2.5, None)
+
+
+def test_a_bad_note_is_a_usage_error(tmp_path: Path,
+                                     capsys: pytest.CaptureFixture[str]) -> None:
+    write_pcm(tmp_path / "take.wav", signal(), 16)
+    target = tmp_path / "out.yaml"
+    assert main(["measure", str(tmp_path / "take.wav"), "-t", "19 C", "--note", "H2",
+                 "-o", str(target)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("boresmith: error: --note H2: ") and not target.exists()

@@ -7,27 +7,35 @@ file formats are read in ``compiler.recordings``. The steps:
 1. *Checks*: a recording too short to hold a steady tone, silent (peak below −60 dBFS),
    or clipped (flat tops: runs of samples stuck at the recording's extreme, near full
    scale) is refused with a ``RecordingProblem`` saying what to do instead.
-2. *The steady part*: the longest stretch whose level (RMS in 30 ms frames) stays within
-   3 dB of the loud level (the 95th percentile frame); a slow attack and the release are
-   left out, and 50 ms more at each end.
-3. *A first pitch* in frames of that stretch, by YIN (A. de Cheveigné and H. Kawahara
-   2002, "YIN, a fundamental frequency estimator for speech and music", J. Acoust. Soc.
-   Am. 111(4), 1917–1930): the cumulative-mean-normalised difference function, its first
-   dip below an absolute threshold (or, in noise, the first dip within 0.1 of the deepest).
-   The period of the whole waveform, not the strongest partial: a weak or missing
-   fundamental (a stopped pipe's strong 3rd partial, a loud octave) gives the right pitch.
-   Frames that sounded another pitch (the pipe overblowing to its octave for a moment)
-   are counted and left out: the pitch held longest wins.
-4. *The fine pitch*: the tone counts from the first frame within 2 cents of that pitch
-   (a pipe often speaks sharp or flat and settles). In the Hann-windowed, zero-padded
-   spectrum of the settled tone every harmonic h·f0 above the local noise is located by
-   parabolic interpolation of the log magnitude (J. O. Smith, "Spectral Audio Signal
-   Processing", 2011, "Quadratic interpolation of spectral peaks"), and f0 is the weighted
-   least-squares fit of f_h = h·f0 (weights: the partial's power).
+2. *A pitch track*: the RMS level and a first pitch of frames 20 ms apart over the whole
+   recording, by YIN (A. de Cheveigné and H. Kawahara 2002, "YIN, a fundamental frequency
+   estimator for speech and music", J. Acoust. Soc. Am. 111(4), 1917–1930): the
+   cumulative-mean-normalised difference function, its first dip below an absolute
+   threshold (or, in noise, the first dip within 0.1 of the deepest). The period of the
+   whole waveform, not the strongest partial: a weak or missing fundamental (a stopped
+   pipe's strong 3rd partial, a loud octave) gives the right pitch.
+3. *The steady part*: of the frames that sound (within 20 dB of the loud level), the pitch
+   held longest is the pipe's; frames more than a semitone from it sounded another pitch
+   (the pipe overblowing for a while, louder or softer than its tone) and are counted and
+   left out, whatever their level. The steady part is the longest run of frames at the held
+   pitch within 3 dB of that pitch's own loud level (a slow attack and the release are left
+   out), less 50 ms at each end.
+4. *The settled tone*: a pipe often speaks sharp or flat and settles. In blocks of 0.1 s
+   (at least 8 periods) the pitch must have stopped moving at the end of the steady part
+   (less than 2 cents over its last third or last second, a trend beyond the blocks'
+   scatter); if it still glides there, the recording is refused ("the pitch never
+   settled"). The settled tone starts after the last block, before that end, still away
+   from the settled pitch (by 0.5 cent, or three times the blocks' scatter).
+   *The fine pitch*: in the Hann-windowed, zero-padded spectrum of the settled tone every
+   harmonic h·f0 above the local noise is located by parabolic interpolation of the log
+   magnitude (J. O. Smith, "Spectral Audio Signal Processing", 2011, "Quadratic
+   interpolation of spectral peaks"), and f0 is the weighted least-squares fit of
+   f_h = h·f0 (weights: the partial's power).
 5. *Its uncertainty*: the same fit in blocks of about 0.25 s gives the scatter
    (``spread_cents``, the pipe's wander); the uncertainty is the standard error of the
    blocks' mean (one standard deviation), or the distance of that mean from the whole
-   tone's pitch where larger (a tone that drifts), and at least 0.01 cent.
+   tone's pitch, or half the blocks' drift (a tone still settling) where larger, and at
+   least 0.01 cent.
 """
 
 from __future__ import annotations
@@ -56,7 +64,11 @@ CLIP_RUNS = 3
 recording's extreme, where that extreme is within 1 % of full scale. (A sine peaking at
 full scale repeats its top code on at most 3 samples at 44.1 kHz down to 30 Hz in 16 bits.)"""
 STEADY_DB = 3.0
-FRAME_S, HOP_S, EDGE_S = 0.03, 0.01, 0.05
+SOUNDING_DB = 20.0
+"""Frames within this of the recording's loud level are sounding: the pipe's tone at
+whatever pitch (the attack, a stretch overblown louder or softer); below it, room noise and
+the release's tail."""
+TRACK_HOP_S, MAX_TRACK_FRAMES, EDGE_S = 0.02, 800, 0.05
 BLOCK_S = 0.25
 MAX_BLOCKS = 16
 MAX_ANALYSED_S = 8.0
@@ -65,7 +77,18 @@ YIN_THRESHOLD = 0.15
 YIN_APERIODIC = 0.5
 """A frame whose deepest normalised dip stays above this holds no clear period."""
 SAME_PITCH_CENTS = 50.0
+ANOTHER_PITCH_CENTS = 100.0
+"""Sounding frames more than a semitone from the pitch held longest sounded another pitch:
+an overblown partial (an octave or more away) or another pipe. Nearer ones are the tone
+settling: a pipe speaks some tens of cents sharp or flat at first (common practice)."""
 SETTLED_CENTS = 2.0
+SETTLED_TAIL_S = 1.0
+"""A settled tone drifts less than SETTLED_CENTS over the last third of its steady part,
+or over its last SETTLED_TAIL_S if longer (a short part: less than 2 cents a second)."""
+SETTLE_BLOCK_S = 0.1
+SETTLE_FLOOR_CENTS = 0.5
+"""The settled tone starts where its pitch stays within this (or three times its own block
+scatter, if larger) of the settled pitch."""
 HARMONICS = 24
 PEAK_OVER_NOISE = 10.0
 """A partial is used when its peak stands 20 dB above the median of the spectrum near it."""
@@ -136,26 +159,6 @@ def _flat_tops(samples: Samples) -> int:
     return count
 
 
-def steady_part(samples: Samples, rate: float) -> tuple[int, int]:
-    """First and last+1 sample of the steady tone (see the module's step 2)."""
-    frame, hop = max(int(FRAME_S * rate), 16), max(int(HOP_S * rate), 1)
-    count = 1 + max(len(samples) - frame, 0) // hop
-    power = np.cumsum(np.concatenate(([0.0], samples * samples)))
-    starts = np.arange(count) * hop
-    ends = np.minimum(starts + frame, len(samples))
-    rms = np.sqrt((power[ends] - power[starts]) / (ends - starts))
-    loud = float(np.percentile(rms, 95))
-    steady = rms >= loud * 10 ** (-STEADY_DB / 20)
-    padded = np.concatenate(([False], steady, [False])).astype(np.int8)
-    edges = np.flatnonzero(np.diff(padded))
-    runs = list(zip(edges[::2], edges[1::2], strict=True))
-    first, last = max(runs, key=lambda r: (r[1] - r[0], -r[0]))
-    edge = int(EDGE_S * rate)
-    begin = int(starts[first]) + edge
-    end = int(ends[last - 1]) - edge
-    return begin, max(begin, end)
-
-
 def _difference(frame: Samples, longest: int) -> Samples:
     """YIN's difference function d(τ) = Σ (x_j − x_{j+τ})², j < W, for τ = 0..longest."""
     width = len(frame) - longest
@@ -195,28 +198,55 @@ def yin_period(frame: Samples, shortest: int, longest: int) -> tuple[float, floa
     return tau + offset, float(at)
 
 
-def _first_pitches(part: Samples, rate: float) -> tuple[Samples, Samples]:
-    """YIN pitch (Hz) of frames spread over ``part`` (0 where a frame has no clear period),
-    and each frame's centre (sample index)."""
-    longest = min(int(rate / LOWEST_HZ) + 1, len(part) // 2 - 1)
+@dataclass(frozen=True)
+class Track:
+    """YIN pitch and RMS level of overlapping frames over the whole recording."""
+
+    starts: NDArray[np.int64]
+    """First sample of each frame."""
+    width: int
+    hop: int
+    level: Samples
+    pitch: Samples
+    """Hz; 0 where the frame is not sounding or has no clear period."""
+    sounding: NDArray[np.bool_]
+    """Within ``SOUNDING_DB`` of the loud level."""
+
+
+def pitch_track(samples: Samples, rate: float) -> Track:
+    """The level and YIN pitch of frames ``TRACK_HOP_S`` apart (at most
+    ``MAX_TRACK_FRAMES``), each two periods of the lowest pitch looked for wide."""
+    longest = min(int(rate / LOWEST_HZ) + 1, len(samples) // 2 - 1)
     shortest = max(int(rate / HIGHEST_HZ), 2)
     width = 2 * longest
-    if longest <= shortest + 2 or width > len(part):
-        raise RecordingProblem("too short: the steady tone is shorter than two periods of "
-                               "the lowest pitch looked for",
+    if longest <= shortest + 2 or width > len(samples):
+        raise RecordingProblem("too short: the tone is shorter than two periods of the lowest "
+                               "pitch looked for",
                                "record each pipe for 2 s or more after it has spoken")
-    count = int(min(64, max(8, (len(part) - width) / (0.05 * rate))))
-    starts = np.linspace(0, len(part) - width, count).astype(int)
-    found = []
-    for start in starts:
-        tau, _ = yin_period(part[start: start + width], shortest, longest)
-        found.append(rate / tau if tau > 0 else 0.0)
-    return np.asarray(found), starts + width / 2
+    hop = max(int(TRACK_HOP_S * rate), (len(samples) - width) // MAX_TRACK_FRAMES, 1)
+    starts = np.arange(0, len(samples) - width + 1, hop, dtype=np.int64)
+    power = np.cumsum(np.concatenate(([0.0], samples * samples)))
+    level = np.sqrt(np.maximum(power[starts + width] - power[starts], 0.0) / width)
+    sounding = level >= float(np.percentile(level, 95)) * 10 ** (-SOUNDING_DB / 20)
+    pitch = np.zeros(len(starts))
+    for k in np.flatnonzero(sounding):
+        tau, _ = yin_period(samples[starts[k]: starts[k] + width], shortest, longest)
+        pitch[k] = rate / tau if tau > 0 else 0.0
+    return Track(starts, width, hop, level, pitch, sounding)
+
+
+def _off(pitch: Samples, held: float) -> Samples:
+    """Cents of each frame's pitch from ``held`` (inf where a frame has none)."""
+    out: Samples = np.full(len(pitch), np.inf)
+    clear = pitch > 0
+    out[clear] = np.abs(1200 * np.log2(pitch[clear] / held))
+    return out
 
 
 def _held_pitch(pitches: Samples) -> tuple[float, float, float]:
-    """The pitch held longest among the frames, the share of frames at another pitch, and
-    that other pitch's ratio to it (0 when none)."""
+    """The pitch held longest among the sounding frames, the share of them that sounded
+    another pitch (more than ``ANOTHER_PITCH_CENTS`` away), and that pitch's ratio to it
+    (the most frames of them; 0 when none)."""
     clear = pitches[pitches > 0]
     if len(clear) < max(3, len(pitches) // 2):
         raise RecordingProblem("no steady pitch: the recording sounds like noise, or like "
@@ -230,9 +260,81 @@ def _held_pitch(pitches: Samples) -> tuple[float, float, float]:
             groups.append([f])
     groups.sort(key=lambda g: (-len(g), float(np.median(g))))
     held = float(np.median(groups[0]))
-    others = len(pitches) - len(groups[0])
-    ratio = float(np.median(groups[1])) / held if len(groups) > 1 else 0.0
-    return held, others / len(pitches), ratio
+    away = [g for g in groups[1:] if abs(cents(float(np.median(g)) / held))
+            > ANOTHER_PITCH_CENTS]
+    share = sum(len(g) for g in away) / len(pitches)
+    ratio = float(np.median(away[0])) / held if away else 0.0
+    return held, share, ratio
+
+
+def steady_part(track: Track, held: float, length: int, rate: float) -> tuple[int, int]:
+    """First and last+1 sample of the steady tone (see the module's step 2): the longest
+    run of frames at the held pitch (or with none clear: a frame lost in noise does not cut
+    the tone) within ``STEADY_DB`` of that pitch's loud level, less ``EDGE_S`` each end."""
+    off = _off(track.pitch, held)
+    near = track.sounding & ((track.pitch == 0) | (off <= SAME_PITCH_CENTS))
+    # a lone frame at another pitch between two at the held one: YIN's octave slip in noise
+    lone = np.zeros(len(near), dtype=bool)
+    lone[1:-1] = near[:-2] & near[2:]
+    near |= lone & track.sounding
+    loud = float(np.percentile(track.level[off <= SAME_PITCH_CENTS], 95))
+    steady = near & (track.level >= loud * 10 ** (-STEADY_DB / 20))
+    padded = np.concatenate(([False], steady, [False])).astype(np.int8)
+    edges = np.flatnonzero(np.diff(padded))
+    runs = list(zip(edges[::2], edges[1::2], strict=True))
+    first, last = max(runs, key=lambda r: (r[1] - r[0], -r[0]))
+    centre = track.width // 2
+    edge = int(EDGE_S * rate)
+    begin = max(int(track.starts[first]) + centre - track.hop // 2, 0) + edge
+    end = min(int(track.starts[last - 1]) + centre + track.hop // 2, length) - edge
+    return begin, max(begin, end)
+
+
+def settled_from(part: Samples, rate: float, held: float) -> int:
+    """The first sample of ``part`` from which its pitch has settled (the module's step 4);
+    ``RecordingProblem`` when it never does: the tone still glides at its end."""
+    # blocks of SETTLE_BLOCK_S, fewer but at least 4 in a short part, each at least 8
+    # periods long (the partials resolved)
+    size = max(min(int(SETTLE_BLOCK_S * rate), len(part) // 4), int(8 * rate / held))
+    count = len(part) // size
+    if count < 3:
+        return 0  # too short to tell; its blocks' drift is in its uncertainty
+    times, offsets = [], []
+    for i in range(count):
+        f, used = fine_pitch(part[i * size: (i + 1) * size], rate, held)
+        if used and abs(cents(f / held)) <= SAME_PITCH_CENTS:
+            times.append((i + 0.5) * size / rate)
+            offsets.append(cents(f / held))
+    if len(times) < 3:
+        return 0
+    t, c = np.array(times), np.array(offsets)
+    tail_s = max(SETTLED_TAIL_S, len(part) / rate / 3)
+    tail = t >= len(part) / rate - tail_s
+    tt, cc = t[tail], c[tail]
+    if len(tt) < 3:
+        return 0
+    slope, intercept = np.polyfit(tt, cc, 1)
+    residual = cc - (slope * tt + intercept)
+    spread = float(np.sqrt(np.sum(residual**2) / max(len(tt) - 2, 1)))
+    slope_error = spread / math.sqrt(float(np.sum((tt - tt.mean()) ** 2)))
+    # the drift over the tail, or over SETTLED_TAIL_S at the rate it still moves at the end
+    drift = abs(float(slope)) * max(float(tt[-1] - tt[0]), SETTLED_TAIL_S)
+    if drift > SETTLED_CENTS and abs(float(slope)) > 3 * slope_error:
+        moved = float(c[-1] - c[0])
+        raise RecordingProblem(
+            f"the pitch never settled: it moved {moved:+.0f} cents over the "
+            f"{(t[-1] - t[0]):.1f} s of steady tone and still moves {abs(float(slope)):.1f} "
+            f"cents a second at its end (a settled pipe moves less than {SETTLED_CENTS:g} "
+            f"cents in a second)",
+            "record a longer steady note: hold it 2 s or more after the pipe has settled, "
+            "with the wind steady")
+    level = float(np.mean(cc))
+    tolerance = max(SETTLE_FLOOR_CENTS, 3 * spread)
+    # Before the tail, the last block still away from the settled pitch ends the settling.
+    away = np.flatnonzero(~tail & (np.abs(c - level) > tolerance))
+    if not len(away):
+        return 0
+    return int(round((t[away[-1]] + 0.5 * size / rate) * rate))
 
 
 def _spectrum(part: Samples, rate: float) -> tuple[Samples, float]:
@@ -283,37 +385,31 @@ def estimate(samples: Samples, rate: float) -> PitchEstimate:
     samples = np.asarray(samples, dtype=np.float64)
     check_samples(samples, rate)
     samples = samples - float(np.mean(samples))
-    begin, end = steady_part(samples, rate)
-    longest = int(MAX_ANALYSED_S * rate)
-    if end - begin > longest:
-        begin += (end - begin - longest) // 2
-        end = begin + longest
+    track = pitch_track(samples, rate)
+    held, share, ratio = _held_pitch(track.pitch[track.sounding])
+    begin, end = steady_part(track, held, len(samples), rate)
     if (end - begin) / rate < MIN_STEADY_S:
         raise RecordingProblem(
             f"too short: the steady tone lasts {(end - begin) / rate:.2f} s (at least "
             f"{MIN_STEADY_S:g} s is needed)",
             "hold the note longer, and record 2 s or more after the pipe has spoken")
+    # A pipe often speaks sharp or flat and settles: the tone counts from where it has.
+    begin += settled_from(samples[begin:end], rate, held)
+    if (end - begin) / rate < MIN_STEADY_S:
+        raise RecordingProblem(
+            f"the pitch never settled: it held steady for only {(end - begin) / rate:.2f} s "
+            f"(at least {MIN_STEADY_S:g} s is needed)",
+            "record a longer steady note: hold it 2 s or more after the pipe has settled, "
+            "with the wind steady")
+    longest = int(MAX_ANALYSED_S * rate)
+    if end - begin > longest:
+        begin += (end - begin - longest) // 2
+        end = begin + longest
     part = samples[begin:end]
-    pitches, centres = _first_pitches(part, rate)
-    held, share, ratio = _held_pitch(pitches)
-    # A pipe often speaks sharp or flat and settles: the tone counts from the first frame
-    # within SETTLED_CENTS of the pitch held longest.
-    settled = np.flatnonzero(np.abs(1200 * np.log2(np.maximum(pitches, 1e-9) / held))
-                             <= SETTLED_CENTS)
-    skip = int(centres[settled[0]]) if len(settled) and settled[0] > 0 else 0
-    if (len(part) - skip) / rate >= MIN_STEADY_S:
-        part, begin = part[skip:], begin + skip
-        keep = centres >= skip
-        pitches, centres = pitches[keep], centres[keep] - skip
     count = int(min(MAX_BLOCKS, max(3, len(part) / (BLOCK_S * rate))))
     size = len(part) // count
     blocks = []
     for i in range(count):
-        inside = pitches[(centres >= i * size) & (centres < (i + 1) * size)]
-        if len(inside) and not np.any(
-                (inside > 0) & (np.abs(1200 * np.log2(np.maximum(inside, 1e-9) / held))
-                                <= SAME_PITCH_CENTS)):
-            continue  # this block sounded another pitch (or none): left out
         f, used = fine_pitch(part[i * size: (i + 1) * size], rate, held)
         if used and abs(cents(f / held)) <= SAME_PITCH_CENTS:
             blocks.append(f)
@@ -324,12 +420,15 @@ def estimate(samples: Samples, rate: float) -> PitchEstimate:
     offsets = np.array([cents(f / whole) for f in blocks])
     spread = float(np.std(offsets, ddof=1)) if len(offsets) > 1 else 0.0
     error = max(spread / math.sqrt(len(offsets)), abs(float(np.mean(offsets))))
+    if len(offsets) >= 3:  # a tone still settling: its pitch is known to half its drift
+        slope = float(np.polyfit(np.arange(len(offsets)), offsets, 1)[0])
+        error = max(error, abs(slope) * (len(offsets) - 1) / 2)
     return PitchEstimate(
         frequency_hz=float(whole),
         uncertainty_cents=max(error, UNCERTAINTY_FLOOR_CENTS),
         spread_cents=spread,
         steady_from_s=begin / rate,
-        steady_to_s=(begin + len(part)) / rate,
+        steady_to_s=end / rate,
         blocks=len(offsets),
         partials=partials,
         other_pitch_share=share,
