@@ -219,6 +219,15 @@ SUB_MIN_SIZE = 8.0
 """Smallest size of a table's second lines: they carry inches and bench notes, which a cut
 depends on."""
 
+HEADER_MIN_SIZE = 8.0
+"""Smallest size of a table's header: a column is made wide enough for its title's longest
+word at this size, and a title wraps at its spaces rather than shrink below it."""
+
+
+def header_size(size: float) -> float:
+    """The smallest size a table of body text ``size`` draws its header at."""
+    return min(size, HEADER_MIN_SIZE)
+
 
 @dataclass(frozen=True)
 class Column:
@@ -284,9 +293,11 @@ class Table(Block):
         return [self._row_height(i, widths) for i in range(len(self.rows))]
 
     def _title_size(self, title: str, width: float) -> float:
-        """The header's size in a column: made smaller (to 3/4) so its longest word fits."""
+        """The header's size in a column: made smaller (down to ``HEADER_MIN_SIZE``) so its
+        longest word fits."""
         longest = max(title.replace("\n", " ").split(" "), key=len, default="")
-        return fit_size(longest, FONT_BOLD, self.size, width - 2 * self.PAD, self.size * 0.75)
+        return fit_size(longest, FONT_BOLD, self.size, width - 2 * self.PAD,
+                        header_size(self.size))
 
     def _titles(self, widths: list[float]) -> list[list[str]]:
         return [[line for part in col.title.split("\n")
@@ -367,8 +378,8 @@ def _column_widths(table: Table, width: float) -> tuple[float, ...]:
     need = []
     for k, col in enumerate(table.columns):
         titles = [w for part in col.title.split("\n") for w in words(part)]
-        widest = max((stringWidth(safe(w), FONT_BOLD, table.size * 0.75) for w in titles),
-                     default=0.0)
+        widest = max((stringWidth(safe(w), FONT_BOLD, header_size(table.size))
+                      for w in titles), default=0.0)
         for i, row in enumerate(table.rows):
             font = FONT_BOLD if i in table.shade else FONT
             if k < len(row):

@@ -7,8 +7,10 @@ from __future__ import annotations
 import dataclasses
 import io
 import json
+import math
 from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 from pypdf import PdfReader
 
@@ -155,3 +157,30 @@ def test_left_out_templates_are_listed_by_name(large: tuple[Resolved, Parts],
     assert f"Not printed here ({len(left_out)} parts)" in text
     for part_id in left_out:
         assert part_id in text.replace(" ", "")
+
+
+def _bold_sizes(page: Any) -> list[tuple[str, float]]:
+    """Each bold text drawn on a page and its size in points (font size × text scale)."""
+    found: list[tuple[str, float]] = []
+
+    def seen(text: str, _cm: Any, tm: Any, font: Any, size: float) -> None:
+        if text.strip() and font is not None and "Bold" in str(font.get("/BaseFont", "")):
+            found.append((text.strip(), size * math.hypot(tm[0], tm[1])))
+
+    page.extract_text(visitor_text=seen)
+    return found
+
+
+def test_table_headers_wrap_instead_of_shrinking_below_8_pt(tmp_path: Path) -> None:
+    # "predicted Hz" on a rank's table page printed at 6.25 pt and "temperature" on the
+    # cover at 6.75 pt: a header is body text, at least 8 pt (as every text a cut depends on)
+    spec = EXAMPLES / "house-organ-principal.yaml"
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides())
+    reader = PdfReader(io.BytesIO((folder / "build-sheet.pdf").read_bytes()))
+    cover, table = reader.pages[0], next(p for p in reader.pages
+                                         if "principal-4 (1 of 2)" in p.extract_text())
+    sizes = dict(_bold_sizes(cover)) | dict(_bold_sizes(table))
+    assert sizes["temperature"] == 8.0 and sizes["predicted"] == 8.0 and sizes["Hz"] == 8.0
+    small = [(text, size) for page in reader.pages for text, size in _bold_sizes(page)
+             if size < 8.0 - 1e-6]
+    assert small == []
