@@ -108,7 +108,8 @@ def cmd_diff(args: argparse.Namespace) -> int:
     from compiler.diff import DiffInputError, run_diff
 
     try:
-        code, text = run_diff(args.old, args.new, Path.cwd(), args.json)
+        code, text = run_diff(args.old, args.new, Path.cwd(), args.json, warn=_warn,
+                              strict=args.strict)
     except DiffInputError as exc:
         raise UsageError(str(exc)) from None
     except SpecError as exc:  # as diff does: 1 means "they differ", so trouble is 2
@@ -266,6 +267,8 @@ def build_parser() -> argparse.ArgumentParser:
     diff.add_argument("new", metavar="NEW", help="a spec file, or FILE@REV")
     diff.add_argument("--json", action="store_true",
                       help="print the summary, a line per pipe and every change as JSON")
+    diff.add_argument("--strict", action="store_true",
+                      help="treat warnings as errors (exit 2, as any trouble)")
     diff.set_defaults(run=cmd_diff)
 
     from compiler.starters import FAMILIES  # a light module: no numpy

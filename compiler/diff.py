@@ -14,7 +14,9 @@ mm, rounded as in the file), and compared field by field:
 - instrument-wide settings: the name, tuning, fabrication and stock (by name).
 
 Not compared: positions in the spec file (any edit moves them), the spec's file name and
-hash, plot samples and warnings. Differences below the JSON rounding vanish in the rounding.
+hash, plot samples and warnings (each spec's warnings are reported as every command
+reports them, through ``run_diff``'s ``warn``). Differences below the JSON rounding vanish
+in the rounding.
 A length's change is given in mm, a frequency's in cents: 1200·log2(new/old) (A. J. Ellis,
 1885, the definition of the cent).
 
@@ -40,6 +42,7 @@ from typing import Any
 
 from compiler.display import Inches, in_inches, inches_for
 from compiler.emit.resolved_json import to_dict
+from compiler.errors import Note, in_order, refuse_if_strict
 from compiler.ir import Resolved
 from compiler.spec.loader import SpecFileError, read_spec_file
 
@@ -539,9 +542,15 @@ def as_json(changes: list[Change]) -> dict[str, Any]:
     }
 
 
-def run_diff(old_arg: str, new_arg: str, cwd: Path, json_output: bool = False) -> tuple[int, str]:
+def run_diff(old_arg: str, new_arg: str, cwd: Path, json_output: bool = False,
+             warn: Callable[[Note], None] | None = None, strict: bool = False
+             ) -> tuple[int, str]:
     """Resolve both specs and report: (0, "no changes") or (1, the report); with
     ``json_output`` the report is ``as_json`` as text.
+
+    The warnings of both specs, each at its own spec (``FILE@REV:LINE:COL`` for a
+    revision), go to ``warn`` in order before the report is made; with ``strict`` they are
+    errors instead.
 
     Raises ``DiffInputError`` when an argument cannot be read and ``SpecError`` when a spec
     is wrong; the command line turns both into exit code 2, as ``diff`` does on trouble.
@@ -553,6 +562,11 @@ def run_diff(old_arg: str, new_arg: str, cwd: Path, json_output: bool = False) -
     new_bytes, new_name = read_spec_arg(new_arg, cwd)
     old = resolve(load_spec(old_bytes, old_name))
     new = resolve(load_spec(new_bytes, new_name))
+    notes = in_order([*old.warnings, *new.warnings])
+    refuse_if_strict(notes, strict)
+    if warn is not None:
+        for note in notes:
+            warn(note)
     changes = compare(old, new)
     code = EXIT_CHANGED if changes else EXIT_SAME
     if json_output:

@@ -137,3 +137,25 @@ def test_the_command_line_prints_them_the_same_way(tmp_path: Path,
     assert main(["resolve", "--strict", str(spec)]) == 1
     err = capsys.readouterr().err
     assert f"{spec}:18:7: error: A4 = 500 Hz" in err and f"hint: {STRICT_HINT}" in err
+
+
+def test_diff_reports_each_specs_warnings_the_same_way(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # diff resolves both specs: their warnings are printed as resolve prints them, not lost
+    old = _far_a4(tmp_path, "old.yaml")
+    new = _far_a4(tmp_path, "new.yaml")
+    new.write_text(new.read_text(encoding="utf-8").replace("  a4: 500 Hz", "  a4: 501 Hz"),
+                   encoding="utf-8")
+    assert main(["diff", str(old), str(new)]) == 1
+    captured = capsys.readouterr()
+    assert f"{old}:18:7: warning: A4 = 500 Hz is far from" in captured.err
+    assert f"{new}:18:7: warning: A4 = 501 Hz is far from" in captured.err
+    assert "warning" not in captured.out  # the report itself stays clean
+    assert main(["diff", "--json", str(old), str(new)]) == 1
+    captured = capsys.readouterr()
+    assert json.loads(captured.out)["summary"] and f"{new}:18:7: warning:" in captured.err
+    # with --strict they are errors: diff's trouble, exit 2, and no report
+    assert main(["diff", "--strict", str(old), str(new)]) == 2
+    captured = capsys.readouterr()
+    assert f"{new}:18:7: error: A4 = 501 Hz" in captured.err and captured.out == ""
+    assert f"hint: {STRICT_HINT}" in captured.err
