@@ -85,8 +85,9 @@ def _holders(resolved: Resolved, stock: dict[str, StockItem]) -> list[Draft]:
         item = stock.get(group.holder.stock)
         kind = item.kind if item is not None and item.kind == "board" else "sheet"
         room = sheet_size(resolved, group.holder.stock).length_mm - 2.0 * spacing - kerf
-        source = group.holder.source or (pipes[0].source if pipes
-                                         else Position("<spec>", 0, 0))
+        # The plate is the set's: blamed at its `holder:`, else at the set itself.
+        source = group.holder.source or group.source or (pipes[0].source if pipes
+                                                         else Position("<spec>", 0, 0))
         drafts += holder_drafts(group, pipes, kind, room, source)
     return drafts
 

@@ -133,9 +133,9 @@ def duct_flute() -> Pipe:
 
 
 def _group(gid: str, kind: str, family: str, construction: str, pipes: list[Pipe],
-           holder: Holder | None = None) -> Group:
+           holder: Holder | None = None, source: Position | None = None) -> Group:
     return Group(gid, kind, family, construction, AIR, "unflanged", CALIBRATION, holder,
-                 tuple(p.id for p in pipes))
+                 tuple(p.id for p in pipes), source=source)
 
 
 def resolved(pipes: list[Pipe], groups: list[Group],
@@ -148,6 +148,8 @@ def resolved(pipes: list[Pipe], groups: list[Group],
 
 
 HOLDER = Holder("ply-6", "birch-ply", 0.006, 0.012, 0.015, 0.0005)
+TUBE_SET_AT = Position(SPEC, 58, 5)
+"""Where the sample tube set is defined (its pipes are on the lines after it)."""
 
 
 def metal_model() -> Resolved:
@@ -163,7 +165,7 @@ def wood_model() -> Resolved:
 def tube_set_model(holder: Holder | None = HOLDER) -> Resolved:
     ps = tube_set_pipes()
     return resolved(ps, [_group("tubes", "tube-set", "stopped-tube", "stock-tube", ps,
-                                holder)])
+                                holder, TUBE_SET_AT)])
 
 
 def flute_model() -> Resolved:

@@ -60,7 +60,13 @@ def test_holder_openings_closer_than_the_web() -> None:
     for problem in err.problems:
         assert "`tubes-holder`" in problem.message
         assert "6.0 mm web" in problem.message
-        assert problem.position == Position(samples.SPEC, 60, 9)
+        # the plate belongs to the tube set: blamed at the set, not at its first tube
+        # (line 60) when the holder carries no position of its own
+        assert problem.position == samples.TUBE_SET_AT
+    # a holder that knows its line in the spec is blamed there
+    at = Position(samples.SPEC, 66, 7)
+    err = _error(samples.tube_set_model(replace(holder, source=at)))
+    assert {p.position for p in err.problems} == {at}
 
 
 def test_holder_margin_below_the_web() -> None:
