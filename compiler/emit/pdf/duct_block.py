@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 from reportlab.pdfgen.canvas import Canvas
 
+from compiler.display import Inches
 from compiler.emit.pdf.document import Page, wrap
 from compiler.emit.pdf.style import FONT, FONT_BOLD, GREY, INK, MM, Frame, fixed, safe
 from compiler.emit.pdf.templates import calibration_bars
@@ -27,8 +28,9 @@ TEXT = 8.0
 ARROW_MM = 1.6
 
 
-def pages(pipe: Pipe, frame: Frame) -> list[Page]:
-    """The duct block page of a duct flute (none without a head, window and duct height)."""
+def pages(pipe: Pipe, frame: Frame, inches: Inches | None = None) -> list[Page]:
+    """The duct block page of a duct flute (none without a head, window and duct height);
+    its sizes in inches too for a spec in inches."""
     head = pipe.head
     if (head is None or head.kind != "duct" or head.labium_from_top_m is None
             or head.duct_height_m is None or pipe.inside_diameter_m is None
@@ -40,7 +42,7 @@ def pages(pipe: Pipe, frame: Frame) -> list[Page]:
     window = head.window_length_m * 1000.0
     if length <= 0 or not 0 < flat < bore / 2:
         return []
-    return [Page(SECTION, DuctBlockPage(pipe.id, bore, length, flat, window),
+    return [Page(SECTION, DuctBlockPage(pipe.id, bore, length, flat, window, inches),
                  label=f"{pipe.id} duct block")]
 
 
@@ -53,6 +55,7 @@ class DuctBlockPage:
     length: float
     flat: float
     window: float
+    inches: Inches | None = None
 
     def draw(self, c: Canvas, frame: Frame) -> None:
         pipe_id, bore, length = self.pipe_id, self.bore, self.length
@@ -73,13 +76,20 @@ class DuctBlockPage:
         # Side view on the left, end view to its right; millimetres from here on.
         x0 = frame.left / MM + 25.0
         y0 = frame.top / MM - 40.0 - length
-        _side_view(c, x0, y0, bore, length, flat, window)
-        _end_view(c, x0 + bore + GAP_MM + bore / 2.0, y0 + length - bore / 2.0, bore, flat)
+        _side_view(c, x0, y0, bore, length, flat, window, self.inches)
+        _end_view(c, x0 + bore + GAP_MM + bore / 2.0, y0 + length - bore / 2.0, bore, flat,
+                  self.inches)
         calibration_bars(c, frame)
 
 
+def _size(value_mm: float, decimals: int, inches: Inches | None) -> str:
+    """A size on the drawing: ``14.0``, or ``14.0 (35/64 in)`` for a spec in inches."""
+    return fixed(value_mm, decimals) + (f" ({inches.text_of_mm(value_mm)} in)" if inches
+                                        else "")
+
+
 def _side_view(c: Canvas, x0: float, y0: float, bore: float, length: float, flat: float,
-               window: float) -> None:
+               window: float, inches: Inches | None) -> None:
     top = y0 + length
     c.setStrokeColor(INK)
     c.setLineWidth(0.6)
@@ -96,13 +106,14 @@ def _side_view(c: Canvas, x0: float, y0: float, bore: float, length: float, flat
     c.drawCentredString((x0 + bore / 2) * MM, (y0 - window / 2 - 1.2) * MM, "window")
     c.setFillColor(INK)
     _caption(c, x0 + bore / 2, top + 16.0, "SIDE VIEW", ("top end up,", "duct's flat on the left"))
-    _hdim(c, x0, x0 + bore, top + 3.5, top, f"{fixed(bore, 1)} bore")
-    _hdim(c, x0, x0 + flat, y0 - window - 6.0, y0 - window, f"{fixed(flat, 2)} duct",
+    _hdim(c, x0, x0 + bore, top + 3.5, top, f"{_size(bore, 1, inches)} bore")
+    _hdim(c, x0, x0 + flat, y0 - window - 6.0, y0 - window, f"{_size(flat, 2, inches)} duct",
           below=True)
-    _vdim(c, x0 + bore + 6.0, x0 + bore, y0, top, f"{fixed(length, 1)} long")
+    _vdim(c, x0 + bore + 6.0, x0 + bore, y0, top, f"{_size(length, 1, inches)} long")
 
 
-def _end_view(c: Canvas, cx: float, cy: float, bore: float, flat: float) -> None:
+def _end_view(c: Canvas, cx: float, cy: float, bore: float, flat: float,
+              inches: Inches | None) -> None:
     r = bore / 2.0
     yf = cy + r - flat
     half = math.sqrt(r * r - (r - flat) ** 2)
@@ -117,8 +128,8 @@ def _end_view(c: Canvas, cx: float, cy: float, bore: float, flat: float) -> None
     c.setLineWidth(0.6)
     c.drawPath(path, stroke=1, fill=0)
     _caption(c, cx, cy + r + 16.0, "END VIEW", ("seen from the top end,", "duct's flat on top"))
-    _hdim(c, cx - r, cx + r, cy - r - 6.0, cy - r, f"ø {fixed(bore, 1)}", below=True)
-    _vdim(c, cx + r + 6.0, cx + half, yf, cy + r, f"{fixed(flat, 2)} flat")
+    _hdim(c, cx - r, cx + r, cy - r - 6.0, cy - r, f"ø {_size(bore, 1, inches)}", below=True)
+    _vdim(c, cx + r + 6.0, cx + half, yf, cy + r, f"{_size(flat, 2, inches)} flat")
 
 
 def _caption(c: Canvas, x: float, y: float, title: str, lines: tuple[str, ...]) -> None:

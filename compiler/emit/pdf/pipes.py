@@ -72,7 +72,7 @@ def pages(resolved: Resolved, frame: Frame) -> list[Page]:
             for pipe in pipes:
                 out.append(Page(SECTION, PipePage(pipe, inches), label=pipe.id))
                 out += fingering.pages(pipe, frame, inches)
-                out += duct_block.pages(pipe, frame)
+                out += duct_block.pages(pipe, frame, inches)
         else:
             out += _group_pages(group, pipes, frame, inches)
     if out:

@@ -190,3 +190,23 @@ def test_a_tiles_lines_fit_its_band_and_keep_the_note_whole() -> None:
         assert len(lines) <= INFO_LINES
         # the note whole, or sent to the cut list: never cut off in the middle
         assert text.endswith(note) or text.endswith("its note: see the cut list"), text
+
+
+def test_duct_block_page_of_a_spec_in_inches(tmp_path: Path) -> None:
+    # the example whistle with its lengths shown in inches, to 1/64 in
+    text = (ROOT / "specs_examples" / "duct-flute-d.yaml").read_text(encoding="utf-8")
+    for metric, inch in (("units: mm", "units: in"), ("precision: 0.1 mm", "precision: 1/64 in")):
+        assert metric in text
+        text = text.replace(metric, inch)
+    folder = build(text.encode(), str(tmp_path / "whistle.yaml"), tmp_path / "out", Overrides())
+    page = next(t for t in _pages(folder) if "Duct block:" in t)
+    pipe = json.loads((folder / "resolved.json").read_text(encoding="utf-8"))["pipes"][0]
+    bore, head = pipe["inside_diameter_mm"], pipe["head"]
+    length = head["labium_from_top_mm"] - head["window_length_mm"]
+    for value, decimals, words in ((bore, 1, "bore"), (length, 1, "long"),
+                                   (head["duct_height_mm"], 2, "duct"),
+                                   (head["duct_height_mm"], 2, "flat")):
+        found = re.search(rf"{value:.{decimals}f} \({INCH}\) {words}", page)
+        # within half a 1/64 in step of the millimetres shown (which round to 0.05 mm)
+        assert found and abs(_rule(found[1]) - value) <= 25.4 / 128 + 0.05, words
+    assert re.search(rf"ø {bore:.1f} \({INCH}\)", page)
