@@ -39,27 +39,25 @@ def _text(value: str) -> str:
     return '"' + value.replace("\\", "\\\\").replace('"', '\\"') + '"'
 
 
-def _lwpolyline(entity: Any) -> str:
+def _vertices(vertices: Any, closed: bool) -> str:
+    """One line for a polyline: its shape, count and points, a bulge only where there is one."""
     points = []
-    for x, y, bulge in entity.get_points("xyb"):
+    for (x, y), bulge in vertices:
         point = _xy((x, y))
         if round(bulge, BULGE_PLACES) != 0:
             point += f" b={_num(bulge, BULGE_PLACES)}"
         points.append(point)
-    shape = "closed" if entity.closed else "open"
+    shape = "closed" if closed else "open"
     return f"{shape} n={len(points)} " + " ".join(points)
+
+
+def _lwpolyline(entity: Any) -> str:
+    return _vertices((((x, y), b) for x, y, b in entity.get_points("xyb")), entity.closed)
 
 
 def _polyline(entity: Any) -> str:
-    points = []
-    for vertex in entity.vertices:
-        point = _xy(vertex.dxf.location)
-        bulge = vertex.dxf.get("bulge", 0.0)
-        if round(bulge, BULGE_PLACES) != 0:
-            point += f" b={_num(bulge, BULGE_PLACES)}"
-        points.append(point)
-    shape = "closed" if entity.is_closed else "open"
-    return f"{shape} n={len(points)} " + " ".join(points)
+    return _vertices((((v.dxf.location[0], v.dxf.location[1]), v.dxf.get("bulge", 0.0))
+                      for v in entity.vertices), entity.is_closed)
 
 
 def _text_entity(entity: Any) -> str:
