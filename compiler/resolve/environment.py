@@ -36,7 +36,10 @@ def group_air(family: str, *layers: spec_model.Environment,
     preset = preset or ("breath" if family in BREATH_FAMILIES else "room")
     base = dict(airmod.BREATH_AIR if preset == "breath" else airmod.ROOM_AIR)
     values: dict[str, float | str] = {**base, "model": "cramer-1993"}
-    speed: float | None = None
+    # A measured speed belongs to the temperature of the environment it is written in (the
+    # schema says so): a later layer that only changes the temperature (a flute's breath, a
+    # survey's) carries it there as c ∝ √T, as it does for any other temperature.
+    measured: tuple[float, float] | None = None
     given: set[str] = set()
     for env in layers:
         for field, key in (("temperature_k", "temperature_k"), ("humidity", "humidity"),
@@ -47,8 +50,12 @@ def group_air(family: str, *layers: spec_model.Environment,
                 values[key] = value
                 given.add(key)
         if env.sound_speed is not None:
-            speed = env.sound_speed_m_s
-    state = airmod.air_state(float(values["temperature_k"]), float(values["pressure_pa"]),
+            measured = (None if env.sound_speed_m_s is None
+                        else (env.sound_speed_m_s, float(values["temperature_k"])))
+    temperature_k = float(values["temperature_k"])
+    speed = (None if measured is None
+             else airmod.speed_from_measurement(measured[0], measured[1], temperature_k))
+    state = airmod.air_state(temperature_k, float(values["pressure_pa"]),
                              float(values["humidity"]), float(values["co2"]),
                              str(values["model"]), speed)
     names = {"temperature_k": "temperature", "humidity": "humidity", "pressure_pa": "pressure",
@@ -65,6 +72,10 @@ def group_air(family: str, *layers: spec_model.Environment,
             if where is not None:
                 warnings.append(Note(where, "the air lies outside the range Cramer (1993) was "
                                      "fitted for (0-30 C, 75-102 kPa, CO2 up to 1 %)"))
+    # The report names the speed as measured and where: 343.5 m/s at 20 °C, not the 349.3 m/s
+    # it was carried to for a flute at 30 °C (the report's own speed_m_s).
+    as_measured = ((measured[0], measured[1] - airmod.ZERO_CELSIUS_K) if measured is not None
+                   else (state.speed_m_s, state.temperature_c))
     report = AirReport(
         preset=preset,
         temperature_c=state.temperature_c,
@@ -75,7 +86,7 @@ def group_air(family: str, *layers: spec_model.Environment,
         speed_m_s=state.speed_m_s,
         density_kg_m3=state.density_kg_m3,
         defaults=defaults,
-        sound_speed_formula=airmod.formula(state.model, state.speed_m_s, state.temperature_c),
+        sound_speed_formula=airmod.formula(state.model, *as_measured),
     )
     return GroupAir(state, report, tuple(warnings))
 

@@ -211,6 +211,28 @@ def test_cents_per_degree_follow_the_ideal_gas() -> None:
     assert pipe.cents_per_c == pytest.approx(per_kelvin, rel=1e-3)
 
 
+def test_a_measured_speed_keeps_the_temperature_it_was_measured_at() -> None:
+    # 343.5 m/s measured in the room at 20 °C; the survey is played at 30 °C. The ideal gas
+    # carries the speed as c ∝ sqrt(T) (standard physics texts): 343.5·sqrt(303.15/293.15)
+    # = 349.31 m/s, and the closed-open cylinder sounds c/4(L + 0.6133a) (Levine & Schwinger
+    # 1948), within 0.05 cent. Taken as 343.5 m/s at 30 °C it would be 29 cents flat.
+    room = "environment: {temperature: 20 C, humidity: 0 %, sound_speed: 343.5 m/s}\n"
+    resolved = _resolve(_plain("closed", 500, "8 mm",
+                               extra=", environment: {temperature: 30 C}"), room)
+    air = resolved.groups[0].air
+    carried = 343.5 * math.sqrt(303.15 / 293.15)
+    assert air.temperature_c == pytest.approx(30.0)
+    assert air.speed_m_s == pytest.approx(carried, rel=1e-12)
+    assert air.sound_speed_formula.startswith("measured 343.50 m/s at 20.0 °C")
+    f1 = _registers(resolved.pipes[0])[0]
+    assert abs(cents(f1, carried / (4 * (0.5 + 0.6133 * 0.004)))) < 0.05
+    assert not resolved.warnings  # the measurement agrees with Cramer (1993) at 20 °C
+    # Measured where it is played: used as given.
+    here = _resolve(_plain("closed", 500, "8 mm", extra=", environment: {temperature: 30 C, "
+                           "sound_speed: 349.0 m/s}"), room)
+    assert here.groups[0].air.speed_m_s == 349.0
+
+
 def test_reed_extra_length_is_more_closed_bore() -> None:
     # A reed's 20 mm of extra closed bore on a 480 mm cylinder sounds as a 500 mm closed pipe.
     _, reed = _pipe(_plain("reed", 480, "10 mm", extra=", reed: {extra_length: 20 mm}"))
