@@ -393,8 +393,9 @@ class Group:
     trims: tuple[Trim, ...] = ()
     """Trim advice for each measured pipe (ranks and tube sets)."""
     losses: str | None = None
-    """Wall-loss model of a rank's or tube set's closed form (``keefe`` or ``none``); None
-    where the group does not report it here (flutes and surveys carry their own)."""
+    """Wall-loss model the group was resolved with (``keefe`` or ``none``): a rank's or tube
+    set's closed form, a flute's or survey's transfer-matrix model. None for a hand-built
+    group that does not say."""
     source: Position | None = spec_position()
     """Where the spec defines the rank, tube set, flute or survey."""
 

@@ -426,7 +426,8 @@ def resolve_flute(inputs: FluteInputs) -> tuple[Group, list[Pipe], list[Note]]:
         jig=jig(flute.jig, inputs))
     group = Group(id=flute.id, kind="flute", family=flute.family, construction="stock-tube",
                   air=air.report, end_correction_model=flute.radiation,
-                  calibration=fit, holder=None, pipe_ids=(pipe.id,), source=flute.position)
+                  calibration=fit, holder=None, pipe_ids=(pipe.id,), losses=flute.losses,
+                  source=flute.position)
     warnings = list(air.warnings) + list(found.warnings) + calibration.disagreement(
         fit, f"flute `{flute.id}`", flute.where.get("measured", flute.position),
         flute_calibration.CHECK)

@@ -379,7 +379,7 @@ def resolve_survey(inputs: SurveyInputs) -> tuple[Group, list[Pipe], list[Note]]
     group = Group(id=survey.id, kind="survey", family=FAMILY, construction="stock-tube",
                   air=air.report, end_correction_model=survey.radiation,
                   calibration=calibration.uncalibrated(), holder=None, pipe_ids=(pipe.id,),
-                  source=survey.position)
+                  losses=survey.losses, source=survey.position)
     return group, [pipe], warnings
 
 

@@ -35,6 +35,7 @@ import pytest
 from scipy.optimize import brentq
 
 from compiler.emit.resolved_json import to_dict
+from compiler.emit.table import render
 from compiler.ir import Pipe, Resolved
 from compiler.resolve.resolver import resolve
 from compiler.resolve.targets import nearest_note
@@ -314,6 +315,16 @@ def test_resolved_json_carries_the_survey() -> None:
     assert {"nearest_note", "nearest_cents", "cents_per_c"} <= set(pipe["fingerings"][0])
     assert all(c["quantity"] == "impedance" for c in pipe["curves"])
     assert data["groups"][0]["kind"] == "survey"
+    assert data["groups"][0]["losses"] == "none"  # asked lossless: the output says so
+
+
+def test_the_output_says_whether_the_prediction_has_wall_losses() -> None:
+    # Keefe's (1984) losses lower this 8 mm bore by about 20 cents: a maker comparing two
+    # predictions must see which one was lossless, in resolve's table as in resolved.json.
+    for losses in ("keefe", "none"):
+        resolved = _resolve(_plain("open", 500, "8 mm", losses=losses))
+        assert resolved.groups[0].losses == losses
+        assert f"wall losses: {losses};" in render(resolved)
 
 
 def test_a_copy_from_stock_tube_names_it_and_warns_of_another_bore() -> None:
