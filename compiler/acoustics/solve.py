@@ -180,6 +180,7 @@ def design_holes(
         problem = Problem(req, both, Unknowns(length_m is None, free_x, free_d, free_cork), rule)
         fit = least_squares(problem, fit.geometry)
         iterations += fit.iterations
+    unsnapped_fit = fit
     unsnapped = fit.geometry
     unsnapped_r = _all_residuals(req, fit, both if second else req.first)
     # Drills, then the rest again.
@@ -204,19 +205,58 @@ def design_holes(
         iterations=iterations,
         unsnapped_hole_diameters_m=unsnapped.diameters_m,
         unsnapped_residual_cents=tuple(float(x) for x in unsnapped_r),
-        advice=_advice_by_row(req, rows, fit),
+        advice=_advice_by_row(req, rows, fit, unsnapped_fit,
+                              _fixed_cork(req, instrument, np.asarray(resid))),
     )
 
 
-def _advice_by_row(req: Request, rows: NDArray[np.intp], fit: Fit) -> tuple[str, ...]:
+def _advice_by_row(req: Request, rows: NDArray[np.intp], fit: Fit, unsnapped: Fit,
+                   cork: tuple[str, ...]) -> tuple[str, ...]:
     """Per row of the request, what would bring it closer (``solve_active.advice``); a fixed
-    tube length is named first, since the solver could not touch it."""
+    tube length is named first, since the solver could not touch it. The drills fix the
+    diameters before the last solve, whose limits then cannot name them: for a row that
+    missed its goal before the drills too, the diameter limits that held the free solution
+    (``max_diameter``, ``max_ratio``, ``min_diameter``) are named before the others, and a
+    cork the spec fixes (``cork``, per row from ``_fixed_cork``) before those."""
     out = [""] * req.targets.size
     fixed = (f"a tube length other than the fixed {req.length_m * MM:.1f} mm (`length`)"
              if req.length_m is not None else "")
     for k, row in enumerate(rows):
+        sizes = ""
+        if unsnapped is not fit and abs(unsnapped.cents[k]) > GOAL_CENTS[int(req.registers[row])]:
+            sizes = advice(req, unsnapped.geometry, [
+                limit for limit in unsnapped.by_row[k] if limit.kind in ("largest", "smallest")])
         words = advice(req, fit.geometry, list(fit.by_row[k]))
-        out[int(row)] = "; ".join(w for w in (fixed, words) if w)
+        out[int(row)] = "; ".join(w for w in (fixed, cork[int(row)], sizes, words) if w)
+    return tuple(out)
+
+
+CORK_PROBE_M = 0.001
+"""How far the fixed cork is moved to see which way would help a second-register note."""
+
+
+def _fixed_cork(req: Request, instrument: Instrument, resid: Float) -> tuple[str, ...]:
+    """Per row, for a cork the spec fixes: whether a shorter or longer one would bring a
+    second-register note that misses its goal closer (by a cent or more per millimetre; the
+    cork tunes the octaves, the holes and length the first register), in a maker's words."""
+    out = [""] * req.targets.size
+    goals = np.array([GOAL_CENTS[int(r)] for r in req.registers])
+    miss = (req.registers == 2) & np.isfinite(resid) & (np.abs(resid) > goals)
+    if req.cork is None or req.cork.free or not np.any(miss):
+        return tuple(out)
+    cork = instrument.head.cavity_length_m
+    gains: dict[str, Float] = {}
+    for word, move in (("shorter", -CORK_PROBE_M), ("longer", CORK_PROBE_M)):
+        if cork + move <= 0.0:
+            continue
+        moved = replace(instrument, head=replace(instrument.head, cavity_length_m=cork + move))
+        _, other, _ = predictions(moved, req.air, req.closed, req.targets, req.registers)
+        gains[word] = np.abs(resid) - np.abs(np.where(np.isfinite(other), other, np.inf))
+    for row in np.flatnonzero(miss):
+        best = max(gains, key=lambda w: gains[w][row], default=None)
+        if best is not None and gains[best][row] >= 1.0:
+            out[int(row)] = (f"a {best} cork than the fixed {cork * MM:.1f} mm above the "
+                             f"{req.mouth_word} (`cork`; leave it out and boresmith places it)")
     return tuple(out)
 
 

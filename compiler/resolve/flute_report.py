@@ -103,7 +103,8 @@ def _judge(label: str, f: Fingering, predicted: Sequence[float], advice: str) ->
     leave_out = "; use another fingering for it (`second_register: none` leaves this one out)"
     if f.resonance == "weak":
         why = (f"it lies above the open holes' cutoff ({f.cutoff_hz:.0f} Hz), where they no "
-               "longer end the air column"
+               "longer end the air column (larger open holes, set closer together, or a "
+               "narrower bore raise the cutoff)"
                if f.cutoff_hz is not None and f.predicted_hz > f.cutoff_hz else
                f"its resonance is under {playing.WEAK_RATIO:.0%} of the first register's")
         return f"{label}: {what} is weak: {why}, so the player may not hold it" + leave_out
