@@ -303,8 +303,9 @@ def _pipe(rank: spec_model.Rank, inputs: RankInputs, stock: spec_model.Stock,
     if not inside:
         across = section.diameter_m if section.round else width
         assert across is not None
-        ratios = (width / across, cutup / across) if section.round else (
-            width / section.mouth_side_m, cutup / width)
+        ratios = (width / across, cutup / across, 0.0) if section.round else (
+            width / section.mouth_side_m, cutup / width,
+            (section.depth_m or 0.0) / section.mouth_side_m)
         mouth_where = where if override and (override.mouth_width or override.cutup) else (
             rank.where.get("mouth", rank.position))
         found.outside.setdefault(mouth_where, []).append((name, *ratios))

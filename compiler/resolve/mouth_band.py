@@ -107,8 +107,9 @@ class Shortfalls:
     round_: bool
     step_m: float
     """The spec's precision: a suggested allowance or travel is rounded up to it."""
-    outside: dict[Position, list[tuple[str, float, float]]] = field(default_factory=dict)
-    """Mouth position -> (note, width ratio, cut-up ratio) of pipes outside the fitted range."""
+    outside: dict[Position, list[tuple[str, float, float, float]]] = field(default_factory=dict)
+    """Mouth position -> (note, width ratio, cut-up ratio, depth over width: wooden pipes) of
+    pipes outside the fitted range."""
     short: list[tuple[str, float, float]] = field(default_factory=list)
     """(note, extra length needed, speaking length) of pipes whose spec allowance is short."""
     travel: list[tuple[str, float]] = field(default_factory=list)
@@ -119,13 +120,14 @@ class Shortfalls:
         """The warnings: mouths outside the fit, and allowances or travels that fall short."""
         out = []
         for where, pipes in self.outside.items():
-            _, w, h = pipes[0]
+            _, w, h, deep = pipes[0]
             if self.round_:
                 shape = (f"mouth width {w:.2f} and cut-up {h:.2f} of the diameter; fitted for "
                          "0.5-1.0 and 0.1-0.4")
             else:
                 shape = (f"mouth width {w:.2f} of the pipe's width, cut-up {h:.2f} of the mouth "
-                         "width; fitted for a full-width mouth cut up 0.1-0.6, 0.5-2 widths deep")
+                         f"width, {deep:.2f} widths deep; fitted for a full-width mouth cut up "
+                         "0.1-0.6, 0.5-2 widths deep")
             out.append(Note(where, f"rank `{self.rank}`: the mouth of "
                             f"{_names([p[0] for p in pipes])} lies outside the range its "
                             f"correction was fitted for ({shape}): its uncertainty is taken as "

@@ -219,6 +219,24 @@ def test_a_mouth_outside_the_fitted_range_widens_the_band() -> None:
     assert "outside the range" in r.warnings[0].message
 
 
+def test_a_wooden_pipe_too_deep_for_the_fit_is_told_why() -> None:
+    # The wooden fit is trusted for pipes 0.5-2 widths deep (module docstring of
+    # compiler.acoustics.mouth: our assumption). A pipe 3.33 widths deep with an ordinary
+    # mouth (full width, cut up 1/4) lies outside only by its depth: the warning must say so,
+    # else every figure it shows looks inside the range.
+    body = ("  - id: w\n    family: open-flue\n    construction: boards\n    stock: pine\n"
+            "    notes: [C3]\n"
+            "    scale: {reference: {note: C3, width: 60 mm, depth: 200 mm}}\n"
+            "    mouth: {width: 1, cutup: 1/4}\n")
+    r = _rank(body, "  pine: {material: pine, board: {thickness: 10 mm}}\n",
+              "{precision: 0.1 mm, tuning_allowance: 10 %}")
+    m = r.pipes[0].mouth
+    assert m is not None and not m.in_fitted_range and m.band_percent == 16.0
+    [warning] = r.warnings
+    assert warning.position == Position("bench.yaml", 14, 12)
+    assert "3.33 widths deep" in warning.message
+
+
 def test_a_stopped_wooden_pipe_keeps_its_band_on_the_stopper() -> None:
     # A stopped wooden pipe is tuned by its stopper: its travel must reach a pipe whose mouth
     # term is smaller than modelled (the stopper then sits higher, by about the band).
