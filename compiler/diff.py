@@ -217,6 +217,8 @@ _KEYED: dict[str, _Key] = {
                              else "".join("x" if c else "o" for c in f["closed"])
                              + f" r{f['register']}"),
     "residuals": lambda r: str(r["note"]),
+    # A group's trim advice, one per measured pipe: ``trims[G3].change_mm``.
+    "trims": lambda t: str(t["note"]),
     "stock": lambda s: str(s["name"]),
 }
 
@@ -239,6 +241,14 @@ def _leaves(old: Any, new: Any, path: str, name: str) -> Iterator[tuple[str, str
         order = list(o_map) + [k for k in n_map if k not in o_map]
         for k in order:
             yield from _leaves(o_map.get(k), n_map.get(k), f"{path}[{k}]", name)
+        return
+    if lists and items and all(isinstance(i, dict) for i in items):
+        # Records of no known key: field by field, by position (never a repr of the dict).
+        o_list, n_list = old or [], new or []
+        for i in range(max(len(o_list), len(n_list))):
+            a = o_list[i] if i < len(o_list) else None
+            b = n_list[i] if i < len(n_list) else None
+            yield from _leaves(a, b, f"{path}[{i}]", name)
         return
     if lists and items and all(_is_number(i) for i in items):
         o_list, n_list = old or [], new or []

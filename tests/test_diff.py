@@ -386,3 +386,24 @@ def test_diff_json(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["diff", "--json", str(tmp_path / "a.yaml"), str(tmp_path / "a.yaml")]) == 0
     assert json.loads(capsys.readouterr().out) == {"changed": False, "summary": "no changes",
                                                    "pipes": [], "changes": []}
+
+
+def test_trim_advice_is_compared_field_by_field_per_measured_pipe(organ: Resolved) -> None:
+    # A prototype G3 measured flat (the pipe as cut is long): the group gains trim advice.
+    # Each of its fields is a change of its own, keyed by the measured note, in mm for the
+    # lengths (never the record printed whole).
+    measured = ORGAN.read_text(encoding="utf-8") + (
+        "    measured:\n      - {note: G3, frequency: 193.5 Hz, temperature: 18 C}\n")
+    changes = compare(organ, _resolve(measured))
+    trims = {c.field: c for c in changes if c.scope == "group" and c.field.startswith("trims")}
+    assert "trims" not in trims
+    change = trims["trims[G3].change_mm"]
+    assert change.old is None and isinstance(change.new, float) and change.new < 0
+    assert trims["trims[G3].action"].new == "cut"
+    # the same measurement a little warmer: only what moved, with its change in mm
+    warmer = _resolve(measured.replace("193.5 Hz, temperature: 18 C",
+                                       "193.5 Hz, temperature: 20 C"))
+    moved = {c.field: c for c in compare(_resolve(measured), warmer)
+             if c.field.startswith("trims")}
+    assert moved["trims[G3].change_mm"].unit == "mm"
+    assert "{" not in render(compare(organ, warmer))
