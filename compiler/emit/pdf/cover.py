@@ -37,7 +37,8 @@ WARNINGS_SHOWN = 12
 
 def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
     """The fabrication settings that apply to this build: sheet, spacing and seam only where
-    parts are nested on sheets (a flute's or a copy's jig too) or rolled; the tuning
+    parts are nested on sheets (a flute's or a copy's jig too) or rolled; the saw kerf
+    (``tube_kerf``, else ``kerf``) only where tube is cut from stock lengths; the tuning
     allowance only where it is added (not to flutes, cut to their solved length, nor to
     instruments as measured)."""
     fab = resolved.fabrication
@@ -52,8 +53,11 @@ def _settings(resolved: Resolved) -> tuple[tuple[str, str], ...]:
                                  f"{length(fab.sheet_width_m, inches)} (length × width)"),
                   ("kerf, spacing", f"{length(fab.kerf_m, inches)}, "
                                     f"{length(fab.spacing_m, inches)}")]
-    elif constructions & {"stock-tube"}:
-        items.append(("kerf", length(fab.kerf_m, inches)))
+    planned = {p.stock for p in resolved.pipes if p.construction == "stock-tube"} & {
+        s.name for s in resolved.stock if s.kind == "tube" and s.length_m}
+    if planned:  # tube lengths planned out of stock lengths: the saw's cut between pieces
+        saw = fab.kerf_m if fab.tube_kerf_m is None else fab.tube_kerf_m
+        items.append(("tube saw kerf", length(saw, inches)))
     if "rolled-sheet" in constructions:
         items.append(("seam allowance", length(fab.seam_allowance_m, inches)))
     if any(g.kind not in ("flute", "survey") for g in resolved.groups):

@@ -129,6 +129,24 @@ def test_flute_cover_shows_no_sheet_or_seam_settings(tmp_path: Path) -> None:
         assert words in cover
 
 
+def test_tube_cover_shows_the_saw_kerf_of_its_stock_plan(tmp_path: Path) -> None:
+    """Tubes cut from stock lengths: the cover gives the saw's kerf the stock plan counts
+    between pieces (``tube_kerf``, 1 mm in the example), not only the laser's 0.15 mm."""
+    spec = EXAMPLES / "blown-stopped-tubes.yaml"
+    folder = build(spec.read_bytes(), str(spec), tmp_path, Overrides())
+    lines = _texts((folder / "build-sheet.pdf").read_bytes())[0].splitlines()
+    assert lines[lines.index("tube saw kerf") + 1] == "1.00 mm"
+    assert lines[lines.index("kerf, spacing") + 1] == "0.15 mm, 5.00 mm"
+    # Without the holder nothing is nested: no sheet, no laser kerf; the saw's kerf stays.
+    bare = spec.read_text(encoding="utf-8").replace(
+        "    holder: {stock: ply-6, spacing: 10 mm, margin: 15 mm, clearance: 0.4 mm}\n", "")
+    folder = build(bare.encode(), str(spec), tmp_path / "bare", Overrides())
+    cover = _texts((folder / "build-sheet.pdf").read_bytes())[0]
+    lines = cover.splitlines()
+    assert lines[lines.index("tube saw kerf") + 1] == "1.00 mm"
+    assert "sheet size" not in cover and "kerf, spacing" not in cover and "0.15 mm" not in cover
+
+
 def test_no_absolute_path_in_any_output(tmp_path: Path) -> None:
     """The spec given by its absolute path: resolved.json, the manifest, the PDF's text and
     the CSV name the file only."""
