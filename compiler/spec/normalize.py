@@ -619,13 +619,19 @@ def _flute(r: _Reader, i: int) -> model.Flute:
 def _check_references(r: _Reader, spec: model.Spec) -> None:
     """Stock names must exist and be of the right kind; group ids must be unique."""
     by_name = {s.name: s for s in spec.stock}
+    given = r.doc.data.get("stock")
+    # Names refused by the schema (a space, a letter outside ASCII) or as stock: their own
+    # problem is reported at the stock, not again at every group that uses them.
+    refused = r.rejected | (set(map(str, given)) - set(by_name) if isinstance(given, dict)
+                            else set())
 
     def need(name: str, kinds: tuple[str, ...], path: Path, what: str) -> None:
         item = by_name.get(name)
-        if item is None and name in r.rejected:
+        if item is None and name in refused:
             return  # its own problem is reported at the stock
         if item is None:
-            known = ", ".join(f"`{n}`" for n in sorted(by_name)) or "none yet"
+            known = ", ".join(f"`{n}`" for n in sorted(by_name)) or (
+                "none usable yet (see the errors at `stock:`)" if refused else "none yet")
             r.fail(path, f"{what}: no stock named `{name}`",
                    f"add it under `stock:` or use one of: {known}")
         elif item.kind not in kinds:
@@ -633,31 +639,36 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
                    + " or ".join(f"a {k}" for k in kinds),
                    "pick stock of the right kind")
 
+    def called(kind: str, section: str, i: int, ident: str) -> str:
+        """``rank `principal-8```, or ``rank 2`` (its place) where the id was refused."""
+        return f"{kind} `{ident}`" if isinstance(r.get((section, i, "id")), str) else (
+            f"{kind} {i + 1}")
+
     for i, rank in enumerate(spec.ranks):
         kinds = ("sheet",) if rank.construction == "rolled-sheet" else ("board", "sheet")
-        need(rank.stock, kinds, ("ranks", i, "stock"), f"rank `{rank.id}`")
+        need(rank.stock, kinds, ("ranks", i, "stock"), called("rank", "ranks", i, rank.id))
     for i, tubes in enumerate(spec.tube_sets):
+        what = called("tube set", "tube_sets", i, tubes.id)
         for j, name in enumerate(tubes.stock):
             path: Path = ("tube_sets", i, "stock") + ((j,) if len(tubes.stock) > 1 else ())
-            need(name, ("tube",), path, f"tube set `{tubes.id}`")
+            need(name, ("tube",), path, what)
         if tubes.holder is not None:
             need(tubes.holder.stock, ("sheet", "board"), ("tube_sets", i, "holder", "stock"),
-                 f"holder of `{tubes.id}`")
+                 f"holder of {what}")
         for j, o in enumerate(tubes.overrides):
             if o.stock is not None:
-                need(o.stock, ("tube",), ("tube_sets", i, "overrides", j, "stock"),
-                     f"tube set `{tubes.id}`")
+                need(o.stock, ("tube",), ("tube_sets", i, "overrides", j, "stock"), what)
     for i, flute in enumerate(spec.flutes):
-        need(flute.stock, ("tube",), ("flutes", i, "stock"), f"flute `{flute.id}`")
+        what = called("flute", "flutes", i, flute.id)
+        need(flute.stock, ("tube",), ("flutes", i, "stock"), what)
         if flute.jig is not None:
-            need(flute.jig, ("sheet", "board"), ("flutes", i, "jig"),
-                 f"jig of flute `{flute.id}`")
+            need(flute.jig, ("sheet", "board"), ("flutes", i, "jig"), f"jig of {what}")
     for i, survey in enumerate(spec.surveys):
+        what = called("survey", "surveys", i, survey.id)
         if survey.stock is not None:
-            need(survey.stock, ("tube",), ("surveys", i, "stock"), f"survey `{survey.id}`")
+            need(survey.stock, ("tube",), ("surveys", i, "stock"), what)
         if survey.jig is not None:
-            need(survey.jig, ("sheet", "board"), ("surveys", i, "jig"),
-                 f"jig of survey `{survey.id}`")
+            need(survey.jig, ("sheet", "board"), ("surveys", i, "jig"), f"jig of {what}")
     seen: dict[str, Path] = {}
     groups: list[tuple[str, Path]] = []
     groups += [(g.id, ("ranks", i, "id")) for i, g in enumerate(spec.ranks)]
@@ -665,6 +676,8 @@ def _check_references(r: _Reader, spec: model.Spec) -> None:
     groups += [(g.id, ("flutes", i, "id")) for i, g in enumerate(spec.flutes)]
     groups += [(g.id, ("surveys", i, "id")) for i, g in enumerate(spec.surveys)]
     for ident, path in groups:
+        if not isinstance(r.get(path), str):
+            continue  # a refused id: said at the id
         if ident in seen:
             r.fail(path, f"the id `{ident}` is used twice", "give each rank, set, flute or "
                    "survey its own id: it names the output files")

@@ -189,10 +189,11 @@ def _describe(error: ValidationError, document: Document, fallback: str = "") ->
         # The instance is a key of the mapping at ``path``: point at that key.
         return [Problem(document.key_at((*path, value)),
                         f"`{_printable(value)}` cannot be used as a name in {name}",
-                        "use letters, digits, `-`, `_` and `.` only (no spaces), starting with "
-                        "a letter or digit, e.g. `alu-22`", "schema")]
+                        f"{_NAME_RULE}, e.g. `alu-22`", "schema")]
     if kind == "pattern":
         examples = schema.get("examples", [])
+        if schema.get("pattern") == _NAME_PATTERN:  # an id: say which characters it takes
+            hint = f"{_NAME_RULE} (it names output files)."
         tip = hint + (" Examples: " + ", ".join(f"`{e}`" for e in examples) if examples else "")
         return [Problem(where, f"{name}: `{_printable(value)}` is not written the expected way",
                         tip.strip(), "schema")]
@@ -273,6 +274,12 @@ def _article(kind: str) -> str:
              "number": "a number", "integer": "a whole number", "boolean": "true or false",
              "string or number": "a value such as `12 mm` or a number"}
     return words.get(kind, kind)
+
+
+_NAME_PATTERN = "^[A-Za-z0-9][A-Za-z0-9_.-]*$"
+"""The schema's pattern for names (stock) and ids (ranks, tube sets, flutes, surveys)."""
+_NAME_RULE = ("use letters, digits, `-`, `_` and `.` only (no spaces, no accented letters), "
+              "starting with a letter or digit")
 
 
 def _short(text: str) -> str:

@@ -125,3 +125,40 @@ def test_every_independent_problem_in_one_run(tmp_path: Path,
     assert "the note C5 is listed twice" in err and "the note D5 is listed twice" in err
     assert "no stock named `steel`" in err and "give two of" not in err
     assert sum("harmonic" in ln for ln in err.splitlines() if ": error: " in ln) == 1
+
+
+def test_a_refused_name_is_reported_once_and_a_refused_id_is_not_called_none(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # A stock name the schema refuses (a space) is reported at the name, not again at the
+    # rank that uses it; a rank whose id is refused is called by its place (`rank 2`), never
+    # `None`; the id's hint says which characters an id takes.
+    spec = tmp_path / "names.yaml"
+    rank = ("  - id: {id}\n"
+            "    family: open-flue\n"
+            "    construction: rolled-sheet\n"
+            "    stock: {stock}\n"
+            "    notes: C4..C5\n"
+            "    scale: {{reference: {{note: C4, diameter: 55 mm}}, halving_interval: 16}}\n"
+            "    mouth: {{width: 1/4, cutup: 1/4}}\n")
+    spec.write_text(
+        "boresmith: 1\n"
+        "instrument: Names\n"
+        "stock:\n"
+        "  zinc 07: {material: zinc, sheet: {thickness: 0.7 mm}}\n"        # 4: refused name
+        "ranks:\n"
+        + rank.format(id="open-2ft", stock="zinc 07")                       # 6..12
+        + rank.format(id="große-flöte", stock="zink-07")                    # 13: refused id
+        + rank.format(id="große-flöte2", stock="zink-07"),                  # 20: refused id
+        encoding="utf-8")
+    assert main(["check", str(spec)]) == 1
+    err = capsys.readouterr().err
+    errors = [ln for ln in err.splitlines() if ": error: " in ln]
+    assert [ln.split(": error: ")[0].rsplit(":", 2)[1] for ln in errors] == [
+        "4", "13", "16", "20", "23"], err
+    assert "None" not in err
+    assert f"{spec}:16:12: error: rank 2: no stock named `zink-07`" in err
+    assert f"{spec}:23:12: error: rank 3: no stock named `zink-07`" in err
+    assert "none usable yet (see the errors at `stock:`)" in err
+    assert "used twice" not in err  # two refused ids are not the same id
+    assert "hint: use letters, digits, `-`, `_` and `.` only (no spaces, no accented " \
+           "letters), starting with a letter or digit (it names output files)." in err
