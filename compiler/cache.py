@@ -1,10 +1,12 @@
 """A content-addressed store that lets a rebuild skip work whose inputs did not change.
 
-Every key is the sha256 of the program's own fingerprint (its source files and schemas)
-and of the ``repr`` of the inputs (frozen dataclasses, whose reprs are deterministic), so
-a new version of boresmith never reads an old entry. Entries are plain files under
-``OUT/.boresmith-cache/<instrument>/``; after each build the entries it did not use are
-removed, so the cache stays about one build's size.
+Every key is the sha256 of the program's own fingerprint (its source files, schemas and
+fonts, and the versions of Python, zlib and the libraries that compute and write the
+output) and of the ``repr`` of the inputs (frozen dataclasses, whose reprs are
+deterministic), so a new version of boresmith, or of a library under it, never reads an
+old entry. Entries are plain files under ``OUT/.boresmith-cache/<instrument>/``; after
+each build the entries it did not use are removed, so the cache stays about one build's
+size.
 """
 
 from __future__ import annotations
@@ -12,22 +14,43 @@ from __future__ import annotations
 import hashlib
 import os
 import pickle
+import platform
 import tempfile
+import zlib
 from collections.abc import Callable
 from functools import lru_cache
+from importlib import metadata
 from pathlib import Path
 from typing import Any, TypeVar
 
 T = TypeVar("T")
 FOLDER = ".boresmith-cache"
 
+LIBRARIES = ("pyyaml", "jsonschema", "numpy", "ezdxf", "reportlab", "shapely", "soundfile")
+"""The distributions boresmith depends on (``pyproject.toml``): another version of one may
+compute or write other bytes (ezdxf the DXF files, reportlab the PDF and the page bodies
+a rebuild replays, numpy and shapely the numbers and outlines)."""
+
+
+def runtime() -> str:
+    """The versions of Python, zlib (the PDF's compressed streams) and ``LIBRARIES``."""
+    lines = [f"{platform.python_implementation()} {platform.python_version()}",
+             f"zlib {zlib.ZLIB_RUNTIME_VERSION}"]
+    for name in LIBRARIES:
+        try:
+            version = metadata.version(name)
+        except metadata.PackageNotFoundError:
+            version = "not installed"
+        lines.append(f"{name} {version}")
+    return "\n".join(lines)
+
 
 @lru_cache(maxsize=1)
 def fingerprint() -> str:
-    """sha256 over boresmith's own source, schema and font files (a change empties the
-    cache)."""
+    """sha256 over boresmith's own source, schema and font files and the ``runtime`` (a
+    change empties the cache: a cached rebuild must give a cold build's bytes)."""
     package = Path(__file__).resolve().parent
-    digest = hashlib.sha256()
+    digest = hashlib.sha256(runtime().encode())
     roots = [package, package / "schemas", package.parent / "schemas"]
     files = sorted({p for root in roots if root.is_dir() for p in root.rglob("*")
                     if p.suffix in (".py", ".json", ".ttf") and "__pycache__" not in p.parts})

@@ -276,3 +276,52 @@ def test_cached_rebuild_after_an_edit_is_a_cold_build(tmp_path: Path, name: str,
     cold = _tree(build(edited, str(path), tmp_path / "cold", Overrides(), use_cache=False))
     assert warm == cold
     assert changed in warm and warm[changed] != before[changed]
+
+
+# --- another library version is another program -------------------------------------------
+
+def test_the_libraries_are_every_dependency() -> None:
+    """The fingerprint covers the version of every distribution ``pyproject.toml`` depends
+    on (a new dependency must be added to ``cache.LIBRARIES``)."""
+    import re
+    import tomllib
+
+    from compiler import cache
+
+    project = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))["project"]
+    wanted = {re.split(r"[<>=!~ \[;]", d, maxsplit=1)[0].lower()
+              for d in project["dependencies"]}
+    assert wanted == set(cache.LIBRARIES)
+
+
+def test_another_library_version_misses_the_cache(tmp_path: Path,
+                                                  monkeypatch: pytest.MonkeyPatch) -> None:
+    """After an upgrade of reportlab (which writes the PDF and whose page operators a
+    rebuild replays) no entry of the earlier build is read, and the build is not taken as
+    up to date: a cached rebuild must give the bytes of a cold build with the new library."""
+    from compiler import cache
+
+    text, path = _spec("house-organ-principal.yaml")
+    out = tmp_path / "out"
+
+    def entries() -> set[str]:
+        return {p.name for p in (out / FOLDER).rglob("*") if p.is_file()}
+
+    try:
+        build(text, str(path), out, Overrides())
+        before = entries()
+        assert len(before) > 10
+        real = cache.metadata.version
+        monkeypatch.setattr(cache.metadata, "version",
+                            lambda name: "999.0" if name == "reportlab" else real(name))
+        cache.fingerprint.cache_clear()
+        assert "reportlab 999.0" in cache.runtime()
+        steps: list[str] = []
+        build(text, str(path), out, Overrides(), progress=steps.append)
+        assert "up to date" not in steps
+        after = entries()
+        assert len(after) > 10
+        assert not (before & after) - {"last-builds.json"}
+    finally:
+        monkeypatch.undo()
+        cache.fingerprint.cache_clear()
