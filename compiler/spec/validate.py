@@ -95,10 +95,15 @@ def schema_problems(document: Document) -> tuple[list[Problem], list[tuple[str |
     errors = list(_validator().iter_errors(data))
     # A mapping that misses a required key also has too few keys: say only the first.
     missing = {tuple(e.absolute_path) for e in errors if e.validator == "required"}
+    # A value outside a list of choices that is not even text (YAML reads an unquoted `off`
+    # or `no` as false) breaks both `type` and `enum`: one problem, the one with the choices.
+    chosen = {tuple(e.absolute_path) for e in errors if e.validator == "enum"}
     paths: list[tuple[str | int, ...]] = []
     for error in errors:
         path = tuple(error.absolute_path)
         if error.validator == "minProperties" and path in missing:
+            continue
+        if error.validator == "type" and path in chosen:
             continue
         if error.validator == "required":
             name = error.message.split("'")[1] if "'" in error.message else ""
@@ -177,7 +182,10 @@ def _describe(error: ValidationError, document: Document, fallback: str = "") ->
         close = difflib.get_close_matches(str(value), options, n=1, cutoff=0.5)
         tip = (f"did you mean `{close[0]}`? " if close else "") + "choose one of: " + ", ".join(
             f"`{o}`" for o in options)
-        return [Problem(where, f"{name}: `{value}` is not one of the choices", tip, "schema")]
+        if isinstance(value, bool):
+            tip = ("YAML reads an unquoted yes, no, on or off as true or false; " + tip)
+        shown = str(value).lower() if isinstance(value, bool) else value
+        return [Problem(where, f"{name}: `{shown}` is not one of the choices", tip, "schema")]
     if kind == "const":
         return [Problem(where, f"{name} must be `{error.validator_value}`", hint, "schema")]
     if kind in ("minimum", "exclusiveMinimum", "maximum", "exclusiveMaximum"):

@@ -10,6 +10,7 @@ from typing import Any
 import pytest
 from jsonschema import Draft202012Validator
 
+from compiler.errors import SchemaError
 from compiler.spec import load_spec
 from compiler.spec.validate import SPEC_SCHEMA, read_schema
 
@@ -65,3 +66,18 @@ def test_examples_are_valid_and_carry_the_modeline(path: Path) -> None:
     text = path.read_text()
     assert text.startswith("# yaml-language-server: $schema=../schemas/" + SPEC_SCHEMA)
     load_spec(text, str(path))
+
+
+def test_a_yaml_boolean_among_choices_is_one_problem_with_the_choices() -> None:
+    # YAML 1.1 (yaml.org/type/bool) reads an unquoted `off` as false: the value breaks both the
+    # type (text) and the list of choices; the maker gets one problem, which lists them.
+    text = ("boresmith: 1\ninstrument: Switched off\ntuning: {temperament: off}\n"
+            "stock:\n  t: {material: brass, tube: {inside_diameter: 20 mm, wall: 1 mm}}\n"
+            "tube_sets:\n  - {id: s, family: open-tube, stock: t, notes: [A4], losses: no}\n")
+    with pytest.raises(SchemaError) as err:
+        load_spec(text, "off.yaml")
+    problems = [(p.position.line, p.message, p.hint) for p in err.value.problems]
+    assert [(line, message) for line, message, _ in problems] == [
+        (3, "tuning.temperament: `false` is not one of the choices"),
+        (7, "tube_sets[0].losses: `false` is not one of the choices")]
+    assert all("`equal`" in hint or "`keefe`" in hint for _, _, hint in problems)
