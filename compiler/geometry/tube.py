@@ -201,6 +201,11 @@ def _plate(group: Group, row: list[tuple[Pipe, float]], name: str, kind: str,
     width = x - spacing + margin
     height = biggest + 2.0 * margin + band
     outline: Polyline = rect("cut-outer", 0.0, 0.0, width, height)
+    # The plate's own name in the margin above its openings (as every part carries one):
+    # the tube set's id, else just `holder`, so that it is known on a shared sheet.
+    texts += labels(label(f"{group.id} {name}", (width / 2.0, height - margin / 2.0),
+                          width - 2.0 * spacing, margin, max_height=HOLDER_LABEL_MM,
+                          avoid=(outline, *openings, *texts), short=(name,)))
     return Draft(id=f"{group.id}-{name}", pipe_id=None, group=group.id, name=name,
                  material=group.holder.material, stock=group.holder.stock,
                  thickness_mm=mm(group.holder.thickness_m), kind=kind, width_mm=width,

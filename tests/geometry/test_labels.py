@@ -16,6 +16,7 @@ from compiler.options import Overrides
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "specs_examples"
 SPECS = ["house-organ-principal.yaml", "stopped-wood-gedackt.yaml", "duct-flute-d.yaml",
+         "blown-stopped-tubes.yaml",
          "side-blown-flute-c.yaml"]
 
 

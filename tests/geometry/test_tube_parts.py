@@ -136,10 +136,15 @@ def test_holder_plate() -> None:
         [d + 12.0] * 2)
     assert holder.width_mm == pytest.approx(3 * d + 2 * 12.0 + 2 * 15.0)
     labels = [e for e in holder.entities if isinstance(e, Text)]
-    assert [t.text for t in labels] == ["C5", "E5", "G5"]
-    for text, x in zip(labels, centres, strict=True):
+    assert [t.text for t in labels] == ["C5", "E5", "G5", "tubes holder"]
+    for text, x in zip(labels, centres, strict=False):
         assert text.operation == "engrave"
         assert text.insert[0] < x < text.insert[0] + 3 * text.height
+    # The plate's own name, upright in the 15 mm margin above the openings (kerf aside).
+    name = labels[-1]
+    top = max(c.center[1] + c.radius for c in openings)  # type: ignore[union-attr]
+    assert name.rotation_deg == 0.0 and top < name.insert[1]
+    assert name.insert[1] + name.height < holder.height_mm
 
 
 def test_holder_row_splits_to_fit_a_small_sheet() -> None:
