@@ -184,3 +184,23 @@ def test_resolve_reports_the_problems_of_every_group(tmp_path: Path,
     err = capsys.readouterr().err
     assert "tube set `a`: no listed stock can make C2" in err
     assert "tube set `b`: no listed stock can make C9" in err
+
+
+def test_resolve_table_gives_the_cut_up_sensitivity_per_sixteenth_inch(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # A flue rank in inches: 1 mm more cut-up moves the pitch by x cents, so 1/16 in
+    # (1.5875 mm: 1 in = 25.4 mm exactly, international yard and pound agreement, 1959) by
+    # 1.5875·x; the column stands beside the other inch columns.
+    spec = tmp_path / "inch.yaml"
+    spec.write_text((ROOT / "specs_examples" / "house-organ-principal.yaml").read_text()
+                    .replace("units: mm", "units: in").replace("precision: 0.1 mm", "")
+                    .replace("notes: C3..C6", "notes: C3..E3"))
+    assert main(["resolve", str(spec)]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    header = next(ln for ln in lines if ln.startswith("note ")).split("  ")
+    header = [h.strip() for h in header if h.strip()]
+    assert header[-1] == "cents/1/16 in cut-up"
+    for row in (ln for ln in lines if ln[:3] in ("C3 ", "D3 ", "E3 ")):
+        cells = row.split()
+        per_mm = float(cells[header.index("cents/mm cut-up")])
+        assert float(cells[-1]) == pytest.approx(per_mm * 1.5875, abs=0.011)

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from compiler.display import Inches, fitted, in_inches, inches_for
+from compiler.display import SENSITIVITY_STEP_IN, Inches, fitted, in_inches, inches_for
 from compiler.ir import Group, Pipe, Resolved
 
 
@@ -76,6 +76,8 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
         rows.append(row)
     if inches:
         header += ["speaking in", "cut in", "section in", "mouth in", "cut-up in", "toe in"]
+        if banded:
+            header += [f"cents/{SENSITIVITY_STEP_IN} in cut-up"]
         for row, p in zip(rows[1:], pipes, strict=True):
             section = (f"ø{_in(p.inside_diameter_m, inches)}" if p.section == "round" else
                        f"{_in(p.inside_width_m, inches)}×{_in(p.inside_depth_m, inches)}")
@@ -83,9 +85,13 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
                     _in(p.mouth.width_m if p.mouth else None, inches),
                     _in(p.mouth.cutup_m if p.mouth else None, inches),
                     _in(p.foot.toe_hole_m if p.foot else None, inches)]
+            if banded:
+                m = p.mouth
+                row.append(f"{inches.per_step(m.cutup_cents_per_mm):+.2f}"
+                           if m and m.band_percent else "")
     extra = 3 if banded else 0  # the band's columns sit before the stock's (column 10)
     right = {1, 2, 3, 4, 5, 7, 8, 9} | set(range(10, 10 + extra)) | set(
-        range(11 + extra, 17 + extra))
+        range(11 + extra, 18 + extra))
     lines += _align(rows, right=right)
     for p in pipes:
         if p.holes:

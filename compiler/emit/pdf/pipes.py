@@ -159,6 +159,9 @@ def pipe_blocks(pipe: Pipe, inches: Inches | None) -> list[Block]:
     rows.append(("cents per °C warmer", sensitivity(pipe.cents_per_c)))
     if pipe.mouth is not None and pipe.mouth.band_percent:
         rows.append(("cents per mm more cut-up", sensitivity(pipe.mouth.cutup_cents_per_mm)))
+        if inches:
+            rows.append((f"cents per {per_step_words()} more cut-up",
+                         sensitivity(inches.per_step(pipe.mouth.cutup_cents_per_mm))))
     blocks += [Spacer(2 * MM), Table((Column("sensitivity", 2.4), Column("", 1.0, "right")),
                                      tuple(rows), min_rows=1)]
     return blocks
@@ -321,9 +324,9 @@ class GroupTablePage:
         table.draw(c, frame.left, top - KEY_BAND, frame.content_width)
 
 
-def _band_legend(mouths: Sequence[Mouth]) -> str:
+def _band_legend(mouths: Sequence[Mouth], inches: Inches | None) -> str:
     """The mouth correction's uncertainty over a rank, in one sentence (the per-pipe figures
-    are in resolved.json)."""
+    are in resolved.json); the cut-up's sensitivity per 1/16 in too for a spec in inches."""
     def span(values: list[float], show: Callable[[float], str]) -> str:
         lo, hi = min(values), max(values)
         return show(lo) if show(lo) == show(hi) else f"{show(lo)} to {show(hi)}"
@@ -334,7 +337,9 @@ def _band_legend(mouths: Sequence[Mouth]) -> str:
             f"{span([m.band_sharp_cents for m in mouths], cents)} cents at the speaking "
             "length; the cut lengths leave room for a pipe that sounds that sharp. 1 mm "
             f"more cut-up: {span([m.cutup_cents_per_mm for m in mouths], sensitivity)} "
-            "cents. Each pipe's figures are in resolved.json.")
+            "cents" + (f"; {per_step_words()} more: " + span(
+                [inches.per_step(m.cutup_cents_per_mm) for m in mouths], sensitivity)
+                + " cents" if inches else "") + ". Each pipe's figures are in resolved.json.")
 
 
 def common(pipes: Sequence[Pipe]) -> list[D.Dim]:
@@ -369,7 +374,7 @@ def _legend(c: Canvas, x: float, y: float, width: float, group: Group,
              "speaking length, and for 1 °C warmer air."]
     banded = [p.mouth for p in pipes if p.mouth is not None and p.mouth.band_percent]
     if len(banded) == len(pipes):
-        lines.append(_band_legend(banded))
+        lines.append(_band_legend(banded, inches))
     same = [f"{d.name} {length(d.value_m, inches)}" for d in common(pipes)]
     mouths = [p.mouth for p in pipes if p.mouth is not None]
     if len(mouths) == len(pipes) and mouths:

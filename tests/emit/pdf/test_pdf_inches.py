@@ -210,3 +210,15 @@ def test_duct_block_page_of_a_spec_in_inches(tmp_path: Path) -> None:
         # within half a 1/64 in step of the millimetres shown (which round to 0.05 mm)
         assert found and abs(_rule(found[1]) - value) <= 25.4 / 128 + 0.05, words
     assert re.search(rf"ø {bore:.1f} \({INCH}\)", page)
+
+
+def test_a_pipe_page_gives_the_cut_up_sensitivity_per_sixteenth_inch(
+        organ_pages: list[str]) -> None:
+    # Each flue pipe's page: cents per 1/16 in more cut-up beside cents per mm, 1.5875 times
+    # it (1 in = 25.4 mm exactly, international yard and pound agreement, 1959).
+    found = [(float(a), float(b)) for page in organ_pages for a, b in re.findall(
+        r"cents per mm more cut-up ([+-]\d+\.\d+) cents per 1/16 in more cut-up "
+        r"([+-]\d+\.\d+)", page)]
+    assert found
+    for per_mm, per_step in found:
+        assert per_step == pytest.approx(per_mm * 1.5875, abs=0.0011)
