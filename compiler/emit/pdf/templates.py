@@ -24,6 +24,8 @@ from dataclasses import dataclass
 from reportlab.pdfbase.pdfmetrics import stringWidth
 from reportlab.pdfgen.canvas import Canvas
 from reportlab.pdfgen.pathobject import PDFPathObject
+from shapely.geometry import LinearRing, LineString, Polygon, box
+from shapely.geometry.base import BaseGeometry
 
 from compiler.display import Inches, in_inches
 from compiler.emit.pdf.document import (
@@ -50,7 +52,7 @@ from compiler.emit.pdf.style import (
     safe,
 )
 from compiler.geometry.model import Circle, Part, Parts, Polyline, Text
-from compiler.geometry.paths import text_centre, text_width
+from compiler.geometry.paths import flatten, text_centre, text_width, to_polygon
 
 SECTION = "Templates"
 OVERLAP_MM = 10.0
@@ -646,6 +648,7 @@ class MapPage:
         c.scale(s, s)
         _entities(c, part)
         c.restoreState()
+        obstacles = _lines_of(part)
         for r in range(t.rows):
             for k in range(t.cols):
                 a, b, cc, d = t.window(r, k)
@@ -656,8 +659,47 @@ class MapPage:
                 c.setDash([], 0)
                 c.setFont(FONT_BOLD, 14)
                 c.setFillColor(GREY)
-                c.drawCentredString(ox + (a + cc) / 2 * s, oy + (b + d) / 2 * s - 5,
-                                    f"{r + 1}/{k + 1}")
+                words = f"{r + 1}/{k + 1}"
+                spot = _clear_spot((a, b, cc, d), stringWidth(words, FONT_BOLD, 14) / s,
+                                   10.0 / s, 4.0 / s, obstacles)
+                obstacles.append(spot)
+                x, y = spot.centroid.x, spot.centroid.y
+                c.drawCentredString(ox + x * s, oy + y * s - 5, words)
         c.setFillColor(INK)
         calibration_bars(c, frame)
+
+
+def _lines_of(part: Part) -> list[BaseGeometry]:
+    """The part's lines and labels as shapes, in its millimetres, for keeping clear of."""
+    shapes: list[BaseGeometry] = []
+    for e in part.entities:
+        if isinstance(e, Circle):
+            shapes.append(to_polygon(e).exterior)
+        elif isinstance(e, Polyline):
+            points = flatten(e)
+            shapes.append(LinearRing(points) if e.closed and len(points) >= 3
+                          else LineString(points))
+        else:
+            (cx, cy), w = text_centre(e), text_width(e.text, e.height)
+            bw, bh = (w, e.height) if e.rotation_deg != 90.0 else (e.height, w)
+            shapes.append(box(cx - bw / 2, cy - bh / 2, cx + bw / 2, cy + bh / 2))
+    return shapes
+
+
+def _clear_spot(window: tuple[float, float, float, float], w: float, h: float, gap: float,
+                obstacles: list[BaseGeometry]) -> Polygon:
+    """Where a tile's number goes on the assembly map (a w × h box, in the part's mm): the
+    tile's centre, else the first of its corners (then the middles of its edges) where it
+    touches none of the part's lines and labels nor another tile's number; the centre if
+    none is clear."""
+    a, b, cc, d = window
+    xs = (a + gap + w / 2, cc - gap - w / 2, (a + cc) / 2)
+    ys = (d - gap - h / 2, b + gap + h / 2, (b + d) / 2)
+    spots = [((a + cc) / 2, (b + d) / 2)] + [(x, y) for y in ys[:2] for x in xs[:2]] + [
+        (xs[2], ys[0]), (xs[2], ys[1]), (xs[0], ys[2]), (xs[1], ys[2])]
+    found = [box(x - w / 2, y - h / 2, x + w / 2, y + h / 2) for x, y in spots]
+    for candidate in found:
+        if not any(candidate.intersects(o) for o in obstacles):
+            return candidate
+    return found[0]
 

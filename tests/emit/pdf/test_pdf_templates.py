@@ -251,3 +251,34 @@ def test_small_templates_fill_the_last_page_before_parts_are_left_out() -> None:
             extra = templates.Choice(part, tiles, (part.id,))
             assert len(templates.share_pages([*singles, extra], frame)) > \
                 templates.OUTLINE_PAGES, part.id
+
+
+def test_tile_numbers_on_an_assembly_map_keep_clear_of_the_part() -> None:
+    """The holder plate of the tube-set example spans three tiles; its row of openings runs
+    through every tile's centre, where the numbers used to be printed over the openings.
+    Each number (as large as the map prints it) now sits clear of every line and label of
+    the part and of the other numbers, inside its own tile."""
+    from shapely.geometry import box
+
+    from compiler.build import compile_text
+    from compiler.options import Overrides
+
+    spec = Path(__file__).resolve().parents[3] / "specs_examples" / "blown-stopped-tubes.yaml"
+    parts = compile_text(spec.read_bytes(), str(spec), Overrides()).parts
+    chosen, _ = templates.choose(parts, frame_for("a4"))
+    (holder,) = [ch for ch in chosen if ch.part.name == "holder"]
+    t = holder.tiles
+    assert t.rows * t.cols == 3
+    lines = templates._lines_of(holder.part)
+    scale = 1.0  # one point per mm: numbers 10 mm tall, as on an A4 map of this plate
+    placed = []
+    for r in range(t.rows):
+        for k in range(t.cols):
+            a, b, c, d = t.window(r, k)
+            centre = box((a + c) / 2 - 10, (b + d) / 2 - 5, (a + c) / 2 + 10, (b + d) / 2 + 5)
+            assert any(centre.intersects(line) for line in lines)  # the old place
+            spot = templates._clear_spot((a, b, c, d), 20.0 / scale, 10.0 / scale,
+                                         4.0 / scale, lines + placed)
+            assert not any(spot.intersects(o) for o in lines + placed)
+            assert box(a, b, c, d).contains(spot)
+            placed.append(spot)
