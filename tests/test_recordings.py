@@ -174,6 +174,7 @@ def test_measure_note_length_json_and_file(tmp_path: Path,
                  "--length", "612.5 mm", "-o", str(target)]) == 0
     entry = _entries(target.read_text(encoding="utf-8"))[0]
     assert entry["length"] == "612.5 mm" and entry["note"] == "A4"
+    assert f"wrote {target} (1 measured entry)" in capsys.readouterr().err
     assert main(["measure", str(tmp_path / "take-1.wav"), "-t", "19 C", "-o", str(target)]) == 2
     assert "already exists" in capsys.readouterr().err
 
