@@ -203,8 +203,8 @@ def cmd_measure(args: argparse.Namespace) -> int:
                          "files") from None
     except OSError as exc:
         raise UsageError(f"{args.out}: cannot write ({exc.strerror})") from None
-    entries = "1 measured entry" if len(takes) == 1 else f"{len(takes)} measured entries"
-    print(f"boresmith: wrote {args.out} ({entries})", file=sys.stderr)
+    written = "1 measured entry" if len(takes) == 1 else f"{len(takes)} measured entries"
+    print(f"boresmith: wrote {args.out} ({written})", file=sys.stderr)
     return EXIT_OK
 
 
