@@ -155,6 +155,13 @@ class Hole:
     undercut_m: float = 0.0
 
 
+LIP_COVERAGE = 0.25
+"""Fraction of the embouchure hole the lip covers when nobody says: players cover about a
+quarter to a third (common practice, from memory). A quarter, the lower end: the starter and
+the examples use it, and a flute designed there is lipped down to pitch by covering more (the
+easier direction for most players); a fit to measured pitches finds the player's own."""
+
+
 @dataclass(frozen=True)
 class Head:
     """The blowing end.
@@ -179,7 +186,7 @@ class Head:
     embouchure_radius_m: float = 0.0
     embouchure_chimney_m: float = 0.0
     cavity_length_m: float = 0.0
-    lip_coverage: float = 0.25
+    lip_coverage: float = LIP_COVERAGE
     extra_length_m: float = 0.0
 
     def __post_init__(self) -> None:

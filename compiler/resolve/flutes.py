@@ -16,7 +16,7 @@ import numpy as np
 
 from compiler.acoustics import playing, solve
 from compiler.acoustics.air import Air
-from compiler.acoustics.impedance import Bore, Instrument
+from compiler.acoustics.impedance import LIP_COVERAGE, Bore, Instrument
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.tuning import cents
 from compiler.errors import PhysicsError, Position
@@ -36,11 +36,6 @@ choice)."""
 CORK_RIM_M = 0.001
 """A free cork keeps at least this much wall between the embouchure hole's upper edge and its
 face (our choice): a cork face inside the hole would close part of it."""
-LIP_COVER = 0.25
-"""Fraction of the embouchure hole the lip covers when the spec does not say: players cover
-about a quarter to a third (common practice, from memory). A quarter, the lower end: the
-starter and the examples use it, and a flute designed there is lipped down to pitch by
-covering more (the easier direction for most players); `measured:` fits the player's own."""
 DEFAULT_JIG_STOCK = "jig-sheet"
 DEFAULT_JIG_MATERIAL = "plywood"
 DEFAULT_JIG_THICKNESS_M = 0.003
@@ -139,7 +134,7 @@ def _head(flute: spec_model.Flute, bore_d: float,
     engine = EngineHead("embouchure", mouth_position_m=mouth,
                         embouchure_radius_m=h.embouchure_diameter_m / 2,
                         embouchure_chimney_m=wall, cavity_length_m=cork.start_m,
-                        lip_coverage=h.lip_cover if h.lip_cover is not None else LIP_COVER)
+                        lip_coverage=h.lip_cover if h.lip_cover is not None else LIP_COVERAGE)
     report = Head("embouchure", None, None, None, None, h.embouchure_diameter_m, mouth,
                   cork.start_m)
     return engine, report, cork

@@ -25,7 +25,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from compiler.acoustics import playing, solve
-from compiler.acoustics.impedance import Bore, Instrument, Segment
+from compiler.acoustics.impedance import LIP_COVERAGE, Bore, Instrument, Segment
 from compiler.acoustics.impedance import Head as EngineHead
 from compiler.acoustics.impedance import Hole as EngineHole
 from compiler.acoustics.tuning import cents
@@ -148,7 +148,7 @@ def _head(survey: spec_model.Survey, bore: Bore) -> tuple[EngineHead, Head]:
                                   f"embouchure hole would sit above the top end (the hole is "
                                   f"{_mm(mouth)} from the top)",
                                   "measure `cork` from the hole's centre up to the cork's face")
-        cover = h.lip_cover if h.lip_cover is not None else EngineHead.lip_coverage
+        cover = h.lip_cover if h.lip_cover is not None else LIP_COVERAGE
         engine = EngineHead("embouchure", mouth_position_m=mouth,
                             embouchure_radius_m=diameter / 2, embouchure_chimney_m=survey.wall_m,
                             cavity_length_m=cork, lip_coverage=cover)

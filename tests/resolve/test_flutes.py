@@ -283,3 +283,32 @@ def test_a_fixed_cork_that_flattens_the_octaves_is_named(tmp_path: Path) -> None
                                        "fixed 18.0 mm above the embouchure hole (`cork`"), note
     # the first register is the holes' and the length's to tune: no cork advice there
     assert not any("cork" in misses[note] for note in misses if not note.endswith(" 2"))
+
+
+def test_lip_cover_default_is_the_one_the_schema_states(tmp_path: Path) -> None:
+    # The schema tells the user the default lip cover; a spec that leaves it out must resolve
+    # exactly as one that writes that default (issue: schema and code once disagreed, 1/3
+    # against 1/4).
+    schema = json.loads((Path(__file__).parents[2] / "schemas"
+                         / "boresmith-spec.schema.json").read_text())
+    found = []
+
+    def walk(node: object) -> None:
+        if isinstance(node, dict):
+            if "lip_cover" in node.get("properties", {}):
+                found.append(node["properties"]["lip_cover"]["description"])
+            for v in node.values():
+                walk(v)
+        elif isinstance(node, list):
+            for v in node:
+                walk(v)
+    walk(schema)
+    assert found and all("(default 1/4)" in d for d in found)
+    text = (EXAMPLES / "side-blown-flute-c.yaml").read_text()
+    assert "lip_cover: 1/4}" in text
+    spec = tmp_path / "side-blown-flute-c.yaml"  # same name: the positions name the file
+    spec.write_text(text.replace(", lip_cover: 1/4}", "}"))
+    # Everything but the spec's own hash (its text differs) must be equal.
+    left, right = (json.loads(dumps(_resolve(p))) for p in (spec, EXAMPLES / spec.name))
+    assert left.pop("spec_sha256") != right.pop("spec_sha256")
+    assert left == right
