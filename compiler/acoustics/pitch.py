@@ -18,8 +18,9 @@ file formats are read in ``compiler.recordings``. The steps:
    held longest is the pipe's; frames more than a semitone from it sounded another pitch
    (the pipe overblowing for a while, louder or softer than its tone) and are counted and
    left out, whatever their level. The steady part is the longest run of frames at the held
-   pitch within 3 dB of that pitch's own loud level (a slow attack and the release are left
-   out), less 50 ms at each end.
+   pitch no more than 3 dB below the level held longest at that pitch (the 3 dB band of
+   level holding the most of its frames: a slow attack and the release are left out, and a
+   loud accent or chiff at the start does not set the level), less 50 ms at each end.
 4. *The settled tone*: a pipe often speaks sharp or flat and settles. In blocks of 0.1 s
    (at least 8 periods) the pitch must have stopped moving at the end of the steady part
    (less than 2 cents over its last third or last second, a trend beyond the blocks'
@@ -267,18 +268,29 @@ def _held_pitch(pitches: Samples) -> tuple[float, float, float]:
     return held, share, ratio
 
 
+def held_level(levels: Samples) -> float:
+    """The floor of the level held longest: of the ``STEADY_DB`` wide bands of level, the
+    one holding the most frames (the louder of equals), as the pitch held longest is the
+    pipe's. A loud accent or chiff at the start, however long, does not set it, nor does a
+    slow attack or the release."""
+    db = np.sort(20 * np.log10(np.maximum(levels, 1e-300)))
+    held = np.searchsorted(db, db + STEADY_DB, side="right") - np.arange(len(db))
+    floor = float(db[len(db) - 1 - int(np.argmax(held[::-1]))])
+    return 10 ** (floor / 20)
+
+
 def steady_part(track: Track, held: float, length: int, rate: float) -> tuple[int, int]:
-    """First and last+1 sample of the steady tone (see the module's step 2): the longest
+    """First and last+1 sample of the steady tone (see the module's step 3): the longest
     run of frames at the held pitch (or with none clear: a frame lost in noise does not cut
-    the tone) within ``STEADY_DB`` of that pitch's loud level, less ``EDGE_S`` each end."""
+    the tone) at or above the floor of its level held longest (:func:`held_level`), less
+    ``EDGE_S`` each end."""
     off = _off(track.pitch, held)
     near = track.sounding & ((track.pitch == 0) | (off <= SAME_PITCH_CENTS))
     # a lone frame at another pitch between two at the held one: YIN's octave slip in noise
     lone = np.zeros(len(near), dtype=bool)
     lone[1:-1] = near[:-2] & near[2:]
     near |= lone & track.sounding
-    loud = float(np.percentile(track.level[off <= SAME_PITCH_CENTS], 95))
-    steady = near & (track.level >= loud * 10 ** (-STEADY_DB / 20))
+    steady = near & (track.level >= held_level(track.level[off <= SAME_PITCH_CENTS]))
     padded = np.concatenate(([False], steady, [False])).astype(np.int8)
     edges = np.flatnonzero(np.diff(padded))
     runs = list(zip(edges[::2], edges[1::2], strict=True))
