@@ -430,7 +430,9 @@ def _hole_words(c: Change) -> str:
         how = "enlarge" if c.delta > 0 else "smaller: a new tube"
         return f"hole {hole} ø {_value(c.old, 2)} mm -> {_value(c.new, 2)} mm ({how})"
     if name.startswith("position_from_top") and c.delta is not None:
-        return f"hole {hole} moves {c.delta:+.2f} mm from the top"
+        # in words, not a sign: 'moves -0.60 mm from the top' reads as a position
+        where = "nearer the top" if c.delta < 0 else "further from the top"
+        return f"hole {hole} moves {_mm(c.delta)} {where}"
     if name == "angle_deg" and c.delta is not None:
         return f"hole {hole} turns {c.delta:+.2f}°"
     return ""
