@@ -20,7 +20,7 @@ import os
 import shutil
 import tempfile
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from types import ModuleType
 from typing import Any
@@ -108,6 +108,9 @@ def compile_spec(spec: Spec, overrides: Overrides, progress: Progress | None = N
     count = sum(len(r.notes) for r in spec.ranks) + sum(len(t.notes) for t in spec.tube_sets)
     say(f"resolving {count + len(spec.flutes) + len(spec.surveys)} pipes")
     resolved = resolve(spec, memo(cache, "group"))
+    lost = _unprintable_names(spec)
+    if lost:  # the build sheet's warning, kept with the model's (cover, manifest, --strict)
+        resolved = replace(resolved, warnings=in_order([*resolved.warnings, *lost]))
     options = overrides.settle(resolved.fabrication)
     refuse_if_strict(resolved.warnings, options.strict)
     say("laying out parts")
@@ -291,6 +294,32 @@ def _replacing_another_spec(target: Path, spec: Spec, resolved: Resolved,
                  f"replacing {target}, the output of {other}: both specs name the instrument "
                  f"`{resolved.instrument}`; give one of them another `instrument:` name to "
                  "keep both outputs")]
+
+
+def _unprintable_names(spec: Spec) -> list[Note]:
+    """A warning at each name the build sheet cannot print whole (the instrument, a
+    material, a hole's label): its embedded font has no glyph for some of its characters
+    (Chinese, Japanese, Korean...), which it prints as ``?``."""
+    from compiler.emit.pdf.style import unprintable
+
+    named: list[tuple[str, str, Position]] = [
+        ("the instrument's name", spec.instrument,
+         spec.where.get("instrument", Position(spec.file, 1, 1)))]
+    named += [(f"the material of stock `{s.name}`", s.material, s.position) for s in spec.stock]
+    holes = [(f.id, f.holes) for f in spec.flutes] + [(v.id, v.holes) for v in spec.surveys]
+    named += [(f"the label of a hole of `{owner}`", h.label, h.position)
+              for owner, owned in holes for h in owned if h.label]
+    named += [(f"the material of survey `{v.id}`", v.material,
+               v.where.get("material", v.position)) for v in spec.surveys if v.material]
+    notes = []
+    for what, text, where in named:
+        lost = unprintable(text)
+        if lost:
+            notes.append(Note(where, f"{what}, `{text}`, has characters the build sheet's "
+                                     f"font cannot print ({' '.join(lost)}): they are printed "
+                                     "as `?`; write it in Latin, Greek or Cyrillic letters to "
+                                     "see it whole"))
+    return notes
 
 
 def _quiet_note(_note: Note) -> None:

@@ -204,3 +204,28 @@ def test_resolve_table_gives_the_cut_up_sensitivity_per_sixteenth_inch(
         cells = row.split()
         per_mm = float(cells[header.index("cents/mm cut-up")])
         assert float(cells[-1]) == pytest.approx(per_mm * 1.5875, abs=0.011)
+
+
+def test_build_warns_of_a_name_the_build_sheet_cannot_print(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # The build sheet's font (DejaVu Sans) covers Latin, Greek and Cyrillic but no Chinese
+    # characters (its coverage as published with the font, from memory): a Chinese name
+    # would print as '???' unseen. Names in Polish, Czech and German with the foot mark
+    # print whole and draw no warning.
+    text = (ROOT / "specs_examples" / "blown-stopped-tubes.yaml").read_text(encoding="utf-8")
+    spec = tmp_path / "tubes.yaml"
+    spec.write_text(text.replace("instrument: Riverside workshop stopped tubes",
+                                 "instrument: Łódź Dvořák Große Орган 8′"), encoding="utf-8")
+    assert main(["build", str(spec), "-o", str(tmp_path / "out")]) == 0
+    assert "warning" not in capsys.readouterr().err
+    spec.write_text(text.replace("instrument: Riverside workshop stopped tubes",
+                                 "instrument: 竹管 Riverside"), encoding="utf-8")
+    assert main(["build", str(spec), "-o", str(tmp_path / "out")]) == 0
+    err = capsys.readouterr().err
+    assert (f"{spec}:12:13: warning: the instrument's name, `竹管 Riverside`, has characters "
+            "the build sheet's font cannot print (竹 管)") in err
+    # kept with the spec's warnings: an up-to-date rebuild says it again, --strict refuses
+    assert main(["build", str(spec), "-o", str(tmp_path / "out")]) == 0
+    assert "cannot print (竹 管)" in capsys.readouterr().err
+    assert main(["build", str(spec), "-o", str(tmp_path / "strict"), "--strict"]) == 1
+    assert f"{spec}:12:13: error: the instrument's name" in capsys.readouterr().err

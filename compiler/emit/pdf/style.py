@@ -185,6 +185,13 @@ def safe(text: str) -> str:
     return "".join(ch if ord(ch) in glyphs or ch in "\n\t" else "?" for ch in text)
 
 
+def unprintable(text: str) -> str:
+    """The characters of ``text`` the embedded font has no glyph for (each once, in order of
+    appearance): :func:`safe` prints them as ``?``."""
+    glyphs = _glyphs()
+    return "".join(dict.fromkeys(ch for ch in text if ord(ch) not in glyphs and ch not in "\n\t"))
+
+
 @lru_cache(maxsize=1)
 def _glyphs() -> frozenset[int]:
     regular, bold = register_fonts()
