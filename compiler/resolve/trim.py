@@ -38,7 +38,8 @@ def _mm(metres: float, precision_m: float) -> str:
 
 
 def _words(pipe: Pipe, change_m: float, precision_m: float) -> tuple[str, str]:
-    """(action, advice) for a change of the speaking length."""
+    """(action, advice) for a change of the speaking length: moves of a plug, cap or stopper
+    to the nearest step of the precision, cuts rounded down to a whole step."""
     amount = _mm(abs(change_m), precision_m)
     if abs(change_m) < precision_m / 2:
         return "none", f"in tune within the {_mm(precision_m, precision_m)} precision: leave it"
@@ -63,7 +64,14 @@ def _words(pipe: Pipe, change_m: float, precision_m: float) -> tuple[str, str]:
         return f"{part} out", advice
     end = "off the top" if pipe.family == "open-flue" else "off one end"
     if shorter:
-        return "cut", f"cut {amount} {end}"
+        # A cut cannot be undone: whole steps of the precision, rounded down (cut less,
+        # measure again), never up past the target.
+        steps = math.floor(abs(change_m) / precision_m + 1e-9)
+        if steps == 0:
+            return "none", (f"{abs(change_m) * 1000:.2f} mm long, less than one "
+                            f"{_mm(precision_m, precision_m)} step: leave it, or shave a "
+                            "little and measure again")
+        return "cut", f"cut {_mm(steps * precision_m, precision_m)} {end}"
     return "lengthen", (f"{amount} too short: fit a tuning slide or sleeve, or cut a new one "
                         f"{amount} longer")
 

@@ -105,7 +105,34 @@ def test_without_a_length_the_open_pipe_is_taken_as_cut_with_its_allowance() -> 
     assert r.groups[0].calibration.value == pytest.approx(1.0, abs=1e-6)
     assert trim.built_length_m == pytest.approx(as_cut, abs=1e-9)
     assert trim.change_m == pytest.approx(speaking - as_cut, abs=1e-7)
-    assert trim.advice == f"cut {(as_cut - speaking) * 1000:.2f} mm off one end"
+    # Whole 0.01 mm steps, rounded down: a cut cannot be undone.
+    assert trim.advice == f"cut {math.floor((as_cut - speaking) * 1e5) / 100:.2f} mm off one end"
+
+
+@pytest.mark.parametrize(("long_mm", "advice"), [
+    (0.9, "cut 0.5 mm off one end"),     # nearest would say 1.0 mm: 0.1 mm past the target
+    (1.2, "cut 1.0 mm off one end"),
+    (1.49, "cut 1.0 mm off one end"),
+    (0.4, "0.40 mm long, less than one 0.5 mm step: leave it, or shave a little and "
+          "measure again"),
+])
+def test_a_cut_is_rounded_down_never_past_the_target(long_mm: float, advice: str) -> None:
+    # Common practice: a cut cannot be undone, so cut less and measure again. An open tube
+    # measured at the spec's temperature sounding as if long_mm longer than its target length
+    # (half-wave resonance with the measured end correction, Fletcher & Rossing 1998 §8.2),
+    # at a precision of 0.5 mm.
+    built, delta = 0.360, 2 * 0.3 * 0.020
+    f_measured = speed(20) / (2 * (built + delta))
+    target_length = built - long_mm / 1000
+    a4 = speed(20) / (2 * (target_length + delta))
+    text = tube_spec("open-tube", f"{{note: A4, frequency: {f_measured:.9f} Hz, "
+                     "temperature: 20 C, length: 360 mm}")
+    text = text.replace("precision: 0.01 mm", "precision: 0.5 mm").replace(
+        "instrument: Trim bench\n", f"instrument: Trim bench\ntuning: {{a4: {a4:.9f} Hz}}\n")
+    [trim] = resolve(load_spec(text, "bench.yaml")).groups[0].trims
+    assert trim.change_m == pytest.approx(-long_mm / 1000, abs=1e-7)
+    assert trim.advice == advice
+    assert trim.action == ("none" if long_mm < 0.5 else "cut")
 
 
 def test_gedackt_example_in_every_output(tmp_path: Path,
