@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import dataclasses
+import hashlib
 import re
 import unicodedata
 from collections.abc import Callable
@@ -29,18 +30,36 @@ TRANSLITERATION = str.maketrans({
     "ß": "ss", "ẞ": "ss", "Ł": "L", "ł": "l", "Đ": "D", "đ": "d", "Ø": "O", "ø": "o",
     "Æ": "AE", "æ": "ae", "Œ": "OE", "œ": "oe", "Þ": "TH", "þ": "th", "Ð": "D", "ð": "d",
     "ı": "i", "Ħ": "H", "ħ": "h", "Ŧ": "T", "ŧ": "t", "Ŋ": "NG", "ŋ": "ng",
+    # Cyrillic after ICAO Doc 9303 (machine-readable travel documents), Part 3, from memory;
+    # Й and Ё reach this table as И and Е, their marks split off by NFKD.
+    **{c: t for pair in (
+        "аa бb вv гg дd еe жzh зz иi кk лl мm нn оo пp рr сs тt уu фf хkh цts чch шsh "
+        "щshch ъie ыy ь эe юiu яia єie іi ґg ђd ѓg ѕdz јj љlj њnj ћc ќk џdz").split()
+        for c, t in ((pair[0], pair[1:]), (pair[0].upper(), pair[1:].capitalize()))},
+    # Greek after ELOT 743 (ISO 843) in its simple form, from memory; tonos and dialytika
+    # are split off by NFKD.
+    **{c: t for pair in (
+        "αa βv γg δd εe ζz ηi θth ιi κk λl μm νn ξx οo πp ρr σs ςs τt υy φf χch ψps ωo"
+        ).split() for c, t in ((pair[0], pair[1:]), (pair[0].upper(), pair[1:].capitalize()))},
 })
-"""Latin letters that Unicode does not decompose into a base letter and an accent; every
-other accented letter loses its accent by NFKD decomposition (Dvořák → dvorak)."""
+"""Letters that NFKD does not turn into a plain Latin letter and accents: Latin letters without
+a decomposition, Cyrillic and Greek; every other accented Latin letter loses its accent by
+NFKD decomposition (Dvořák → dvorak)."""
 
 
 def slug(name: str) -> str:
     """A folder name from the instrument's name: lower case ASCII words joined by ``-``;
-    letters are transliterated (Große → grosse, Łódź → lodz), other characters dropped."""
-    text = unicodedata.normalize("NFKD", name.translate(TRANSLITERATION))
+    letters are transliterated (Große → grosse, Łódź → lodz, Орган → organ), other characters
+    dropped. Where a letter has no transliteration here (Chinese, Arabic, ...), eight hex
+    digits of the name's SHA-256 follow, so two such names never share a folder."""
+    text = unicodedata.normalize("NFKD", name).translate(TRANSLITERATION)
+    lost = any(c.isalpha() and not c.isascii() for c in text)
     text = text.encode("ascii", "ignore").decode("ascii")
-    text = re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")
-    return text[:80].strip("-") or "instrument"
+    text = re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")[:80].strip("-")
+    if lost:
+        digest = hashlib.sha256(name.encode("utf-8")).hexdigest()[:8]
+        return f"{text}-{digest}" if text else f"instrument-{digest}"
+    return text or "instrument"
 
 
 Memo = Callable[[Any, Callable[[], Any]], Any]

@@ -107,6 +107,20 @@ def test_slug_transliterates() -> None:
     assert slug("Große Orgel, Łódź") == "grosse-orgel-lodz"
     assert slug("Dvořák, Kraków, Ústí nad Labem") == "dvorak-krakow-usti-nad-labem"
     assert slug("Ærø Œuvre") == "aero-oeuvre"
+    # Cyrillic after ICAO Doc 9303 Part 3 (from memory: Щ SHCH, Й I, Ё E, Х KH, Ґ G) and
+    # Greek after ELOT 743 (from memory: Ψ PS, Η I, Θ TH, Χ CH).
+    assert slug("Орган Щука, Йошкар-Ола") == "organ-shchuka-ioshkar-ola"
+    assert slug("Ёлка Хор Ґанок") == "elka-khor-ganok"
+    assert slug("Ψάλτης Θεσσαλονίκη Χορός") == "psaltis-thessaloniki-choros"
+
+
+def test_slug_of_a_script_it_cannot_spell_is_still_unique() -> None:
+    # Two names in a script the table has no letters for must not share a folder (a build
+    # into the other's folder would replace its files); the same name always gives the same.
+    first, second = slug("竹笛"), slug("洞簫")
+    assert first != second and first == slug("竹笛")
+    assert first.startswith("instrument-") and len(first) == len("instrument-") + 8
+    assert slug("竹笛 8′").startswith("8-")
 
 
 def test_flute_cover_shows_no_sheet_or_seam_settings(tmp_path: Path) -> None:
