@@ -77,6 +77,9 @@ MAX_ANALYSED_S = 8.0
 YIN_THRESHOLD = 0.15
 YIN_APERIODIC = 0.5
 """A frame whose deepest normalised dip stays above this holds no clear period."""
+DIP_REACH = 1.2
+"""How far past a dip's first local minimum its bottom is looked for, as a multiple of the
+period there (our choice: the next period's dip lies at twice it)."""
 SAME_PITCH_CENTS = 50.0
 ANOTHER_PITCH_CENTS = 100.0
 """Sounding frames more than a semitone from the pitch held longest sounded another pitch:
@@ -192,6 +195,13 @@ def yin_period(frame: Samples, shortest: int, longest: int) -> tuple[float, floa
         return 0.0, deepest
     limit = max(YIN_THRESHOLD, deepest + 0.1)
     chosen = int(minima[np.argmax(window[minima] <= limit)])
+    # In noise the dip's falling flank is rippled, and its first local minimum lies short of
+    # the bottom (a low pipe in 5 dB of noise read 60 cents sharp): the period is the
+    # bottom of the dip, searched up to 1.2 times the first minimum, short of the next
+    # period's dip at twice it.
+    reach = min(len(window) - 1, int((shortest + chosen) * DIP_REACH) - shortest)
+    chosen += int(np.argmin(window[chosen: reach + 1]))
+    chosen = min(max(chosen, 1), len(window) - 2)
     tau = shortest + chosen
     before, at, after = normalised[tau - 1], normalised[tau], normalised[tau + 1]
     bend = before - 2.0 * at + after
