@@ -110,6 +110,16 @@ def fitted(value: float, unit: str) -> str:
     return f"{value:.2f} {unit}" if unit else f"{value:.4f}"
 
 
+def model_band(band: tuple[float, float] | None) -> str:
+    """A fingering's band under the open holes' radiation model (``ir.Fingering.
+    model_band_cents``) as a maker reads it: whole cents, ``-9/+4`` (a side that rounds to
+    nothing is ``0``), empty for none. An uncertainty, so no finer than a cent."""
+    if band is None:
+        return ""
+    low, high = (round(v) for v in band)
+    return f"{low:+d}/{high:+d}".replace("+0", "0").replace("-0", "0")
+
+
 _LENGTHS = re.compile(r"(?<![\w./])(-?\d+(?:\.\d+)?)(?: × (-?\d+(?:\.\d+)?))? mm\b")
 """A length (or a ``W × H`` pair) in millimetres written in a message: ``12.5 mm``."""
 

@@ -249,6 +249,11 @@ class Fingering:
     cutoff_hz: float | None = None
     """The tone-hole lattice cutoff of this fingering's open holes (None: fewer than two open
     holes below the first open one)."""
+    model_band_cents: tuple[float, float] | None = None
+    """How far the prediction could move with the open tone holes' radiation length anywhere
+    between the unflanged and the infinite-flange limits (``playing.hole_model_band``), and
+    the design's own model: (low, high) in cents from ``predicted_hz``, low ≤ 0 ≤ high. None
+    where no tone hole is open (their model cannot matter) or the resonance is not ``clear``."""
     source: Position | None = spec_position()
     """Where the spec lists the fingering (a survey without a table: its `holes`)."""
 

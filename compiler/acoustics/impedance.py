@@ -224,6 +224,8 @@ class Instrument:
     length (``holes.HOLE_RADIATION_MODELS``); losses: ``bore.LOSS_MODELS``. wall_m: the tube's
     wall at its open ends (the foot, and the top of an ``"open"`` head), which moves their end
     correction toward the flanged value (``radiation.radiation_impedance``); 0 is a thin wall.
+    mouth_radiation: the mouth opening's radiation length alone (None: ``hole_radiation``), so
+    the tone holes' model can be varied with the mouth held (``playing.hole_model_band``).
     """
 
     bore: Bore
@@ -234,12 +236,14 @@ class Instrument:
     hole_radiation: str = "unflanged"
     losses: str = "keefe"
     wall_m: float = 0.0
+    mouth_radiation: str | None = None
 
     def __post_init__(self) -> None:
         if self.radiation not in RADIATION_MODELS:
             raise ValueError(f"unknown radiation model {self.radiation!r}")
-        if self.hole_radiation not in HOLE_RADIATION_MODELS:
-            raise ValueError(f"unknown hole radiation model {self.hole_radiation!r}")
+        for model in (self.hole_radiation, self.mouth_radiation or self.hole_radiation):
+            if model not in HOLE_RADIATION_MODELS:
+                raise ValueError(f"unknown hole radiation model {model!r}")
         if self.losses not in LOSS_MODELS:
             raise ValueError(f"unknown loss model {self.losses!r}")
         xs = [self.head.mouth_position_m] + [h.position_m for h in self.holes] + [self.length_m]
@@ -469,7 +473,7 @@ def _mouth(instrument: Instrument, air: Air, omega: Float, a_m: float, z_j: Comp
     height = head.opening_chimney_m + float(matching_length(b, a_m))
     A, B, C, D = frustum_matrix(air, height, b, b, omega, instrument.losses)
     z = (A * z + B) / (C * z + D)
-    model = instrument.hole_radiation
+    model = instrument.mouth_radiation or instrument.hole_radiation
     t_r = radiation_length(model, b, a_m + head.opening_chimney_m, k)
     resistance = UNFLANGED_RESISTANCE if model == "unflanged" else FLANGED_RESISTANCE
     z = z + lumped_radiation_impedance(k, b, t_r, resistance, rho * c / area)

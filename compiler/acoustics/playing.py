@@ -19,7 +19,7 @@ bisection when a step leaves its bracket) to a relative 1e-10 (far below 0.01 ce
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -281,6 +281,65 @@ def predictions(
     found = np.isfinite(chosen)
     resid = np.where(found, cents(np.where(found, chosen, 1.0), targets), np.nan)
     return res.frequencies_hz, np.asarray(resid, dtype=np.float64), res.octave_cents
+
+
+HOLE_MODEL_LIMITS = ("unflanged", "flanged")
+"""The physical limits of an open tone hole's radiation length (``holes.radiation_length``):
+0.6133b, a hole with no flange (Levine & Schwinger 1948), and 0.8216b, a hole in an infinite
+flat flange (Norris & Sheng 1989; both quoted by Dalmont, Nederveen & Joly 2001). A hole in a
+tube's surface has a flange that is flat along the tube and curves away round it, so its
+length lies between the two."""
+
+BAND_TRACK_WIDTHS = (0.03, 0.1)
+"""Relative half-widths of the brackets in which ``hole_model_band`` follows a resonance: the
+narrow one first (a band is tens of cents), the wider one for the rows it missed."""
+
+
+def hole_model_band(
+    instrument: Instrument, air: Air, fingerings: ArrayLike, frequencies_hz: ArrayLike
+) -> tuple[tuple[float, float] | None, ...]:
+    """How far each row's predicted pitch could move with its open holes' radiation length
+    anywhere between ``HOLE_MODEL_LIMITS``: (low, high) in cents from the prediction.
+
+    The geometry is held as it is; only the open tone holes' radiation length is set to each
+    limit in turn (the mouth opening keeps the instrument's model), and the resonance at
+    ``frequencies_hz`` (one per row, the row's register; NaN: skip it) is followed to its new
+    frequency (``track``). A longer radiation length lowers the pitch, so ``"flanged"`` gives
+    the low end. The band also holds 0, the instrument's own model: the on-cylinder fit
+    (``holes.radiation_length``, from memory) falls below the unflanged limit for holes wide
+    against the tube (b/(a+t) above about 0.36), and nothing verified rules it out, so the
+    prediction itself stays inside the band. None where no hole is open (the model of the holes
+    cannot matter), where the row has no frequency, or where the resonance cannot be followed.
+    """
+    closed = _fingerings(instrument, fingerings)
+    f = np.asarray(frequencies_hz, dtype=np.float64)
+    rows = np.flatnonzero(np.isfinite(f) & ~closed.all(axis=1))
+    out: list[tuple[float, float] | None] = [None] * f.size
+    if rows.size == 0:
+        return tuple(out)
+    guess = f[rows]
+    shifts = []
+    for model in HOLE_MODEL_LIMITS:
+        variant = replace(instrument, hole_radiation=model,
+                          mouth_radiation=instrument.mouth_radiation or instrument.hole_radiation)
+
+        def evaluate(freqs: Float, variant: Instrument = variant) -> NDArray[np.complex128]:
+            return played(variant, impedance_batch(variant, air, freqs, closed[rows]))
+
+        moved = np.full(rows.size, np.nan)
+        for width in BAND_TRACK_WIDTHS:
+            todo = ~np.isfinite(moved)
+            if not todo.any():
+                break
+            found, _, _ = track(evaluate, guess[None, :, None].copy(), width)
+            moved = np.where(todo, found[0, :, 0], moved)
+        shifts.append(cents(np.where(np.isfinite(moved), moved, 1.0), guess)
+                      + np.where(np.isfinite(moved), 0.0, np.nan))
+    for j, i in enumerate(rows):
+        pair = (float(shifts[0][j]), float(shifts[1][j]))
+        if np.isfinite(pair).all():
+            out[i] = (min(*pair, 0.0), max(*pair, 0.0))
+    return tuple(out)
 
 
 WEAK_RATIO = 0.1

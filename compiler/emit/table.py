@@ -2,7 +2,14 @@
 
 from __future__ import annotations
 
-from compiler.display import SENSITIVITY_STEP_IN, Inches, fitted, in_inches, inches_for
+from compiler.display import (
+    SENSITIVITY_STEP_IN,
+    Inches,
+    fitted,
+    in_inches,
+    inches_for,
+    model_band,
+)
 from compiler.ir import Group, Pipe, Resolved
 
 
@@ -116,11 +123,12 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
         if p.fingerings:
             lines.append("")
             f_rows = [["note", "reg", "fingering", "target Hz", "predicted Hz", "cents",
-                       "cutoff Hz"]]
+                       "hole model ± cents", "cutoff Hz"]]
             f_rows += [[f.note, str(f.register),
                         "".join("x" if c else "o" for c in f.closed),
                         f"{f.target_hz:.2f}", f"{f.predicted_hz:.2f}",
                         f"{f.error_cents:+.2f}" if f.resonance == "clear" else f.resonance,
+                        model_band(f.model_band_cents),
                         f"{f.cutoff_hz:.0f}" if f.cutoff_hz is not None else ""]
                        for f in p.fingerings]
             if any(f.nearest_note is not None for f in p.fingerings):
@@ -129,7 +137,7 @@ def _group_table(group: Group, pipes: list[Pipe], inches: Inches | None = None) 
                 for row, f in zip(f_rows[1:], p.fingerings, strict=True):
                     row += [f.nearest_note or "", _signed(f.nearest_cents),
                             _signed(f.cents_per_c)]
-            lines += _align(f_rows, right={3, 4, 5, 6, 8, 9})
+            lines += _align(f_rows, right={3, 4, 5, 6, 7, 9, 10})
     return lines
 
 

@@ -73,6 +73,9 @@ def report(flute: spec_model.Flute, instrument: Instrument, air: Air, rows: Rows
             "check this fingering, the tube's length and the head's dimensions")
     quality = playing.second_register_quality(instrument, air, table, predicted)
     cutoffs = playing.lattice_cutoffs(instrument, air, table)
+    chosen = predicted[np.arange(len(regs)), regs - 1]
+    clear = np.array([r == 1 or q == "clear" for r, q in zip(regs, quality, strict=True)])
+    bands = playing.hole_model_band(instrument, air, table, np.where(clear, chosen, np.nan))
     fingerings: list[Fingering] = []
     warnings: list[Note] = []
     for i, closed in enumerate(rows.closed):
@@ -87,7 +90,8 @@ def report(flute: spec_model.Flute, instrument: Instrument, air: Air, rows: Rows
         fingerings.append(Fingering(
             note=name, closed=closed, register=register, target_hz=rows.targets_hz[i],
             predicted_hz=float(predicted[i][register - 1]), error_cents=float(residual[i]),
-            resonance=resonance, cutoff_hz=cutoffs[i], source=where))
+            resonance=resonance, cutoff_hz=cutoffs[i], model_band_cents=bands[i],
+            source=where))
         note = _judge(label, fingerings[-1], predicted[i], advice[i] if advice else "")
         if note:
             warnings.append(Note(where, note))

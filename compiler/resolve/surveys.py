@@ -296,12 +296,14 @@ def _resonances(instrument: Instrument, air: GroupAir, closed: NDArray[np.bool_]
 @dataclass(frozen=True)
 class _Predicted:
     """Per row: the frequency (NaN: none found), cents per °C (NaN: not found), how its
-    resonance looks (``playing.second_register_quality``) and its lattice cutoff."""
+    resonance looks (``playing.second_register_quality``), its lattice cutoff and its band
+    under the open holes' radiation model (``playing.hole_model_band``)."""
 
     frequency_hz: tuple[float, ...]
     per_c: tuple[float, ...]
     resonance: tuple[str, ...]
     cutoff_hz: tuple[float | None, ...]
+    model_band_cents: tuple[tuple[float, float] | None, ...]
 
 
 def _predict(instrument: Instrument, air: GroupAir, rows: list[_Row]) -> _Predicted:
@@ -316,9 +318,13 @@ def _predict(instrument: Instrument, air: GroupAir, rows: list[_Row]) -> _Predic
     with np.errstate(invalid="ignore"):
         per_c = tuple(1200 * math.log2(warm[i, k] / cool[i, k]) / (2 * SENSITIVITY_STEP_K)
                       if np.isfinite(warm[i, k] * cool[i, k]) else math.nan for i, k in pick)
-    return _Predicted(tuple(float(base[i, k]) for i, k in pick), per_c,
-                      tuple(quality[i] if k == 1 else "clear" for i, k in pick),
-                      tuple(cutoffs[i] for i, _ in pick))
+    resonance = tuple(quality[i] if k == 1 else "clear" for i, k in pick)
+    chosen = np.array([base[i, k] if q == "clear" else np.nan
+                       for (i, k), q in zip(pick, resonance, strict=True)])
+    rows_closed = np.array([r.closed for r in rows], dtype=bool).reshape(len(rows), closed.shape[1])
+    bands = playing.hole_model_band(instrument, air.state, rows_closed, chosen)
+    return _Predicted(tuple(float(base[i, k]) for i, k in pick), per_c, resonance,
+                      tuple(cutoffs[i] for i, _ in pick), bands)
 
 
 def _report(rows: list[_Row], predicted: _Predicted,
@@ -338,7 +344,9 @@ def _report(rows: list[_Row], predicted: _Predicted,
                               nearest_note=note_name(near), nearest_cents=cents(f, near_hz),
                               cents_per_c=slope if math.isfinite(slope) else None,
                               resonance=predicted.resonance[i],
-                              cutoff_hz=predicted.cutoff_hz[i], source=row.position))
+                              cutoff_hz=predicted.cutoff_hz[i],
+                              model_band_cents=predicted.model_band_cents[i],
+                              source=row.position))
     return done, missing
 
 

@@ -2,7 +2,8 @@
 
 The chart is a table with a row per fingering, grouped by register: the holes drawn as a
 row of circles (hole 1, nearest the head, on the left; filled = closed; a dashed ring is a
-hole on the back), then the target and predicted pitch and the error in cents.
+hole on the back), then the target and predicted pitch, the error in cents and how far the
+open holes' radiation model could move the note (``ir.Fingering.model_band_cents``).
 """
 
 from __future__ import annotations
@@ -11,7 +12,7 @@ from dataclasses import dataclass, replace
 
 from reportlab.pdfgen.canvas import Canvas
 
-from compiler.display import Inches, in_inches
+from compiler.display import Inches, in_inches, model_band
 from compiler.emit.pdf.document import (
     Block,
     Heading,
@@ -82,11 +83,20 @@ class Chart(Block):
             return None
         return replace(self, rows=self.rows[:n]), replace(self, rows=self.rows[n:])
 
+    def _banded(self) -> bool:
+        return any(r.fingering is not None and r.fingering.model_band_cents is not None
+                   for r in self.rows)
+
+    def _surveyed(self) -> bool:
+        return any(r.fingering is not None and r.fingering.nearest_note is not None
+                   for r in self.rows)
+
     def _columns(self) -> tuple[tuple[str, str], ...]:
         titles: tuple[tuple[str, str], ...] = (("target", "Hz"), ("predicted", "Hz"),
                                                ("error", "cents"))
-        if any(r.fingering is not None and r.fingering.nearest_note is not None
-               for r in self.rows):
+        if self._banded():
+            titles += (("hole model", "± cents"),)
+        if self._surveyed():
             titles += (("nearest", "note"), ("from it", "cents"), ("per °C", "cents"))
         return titles
 
@@ -110,9 +120,11 @@ class Chart(Block):
         for k, (word, unit) in enumerate(titles):
             if len(titles) == 3:
                 c.drawRightString(cols[k + 1] - 1.5 * MM, base, f"{word} {unit}")
-            else:  # six columns: the unit under the word, in a smaller type
-                c.setFont(FONT_BOLD, 8)
+            else:  # more columns: the unit under the word, in a smaller type
+                room = num_w - 2.5 * MM  # a gap to the column on the left
+                c.setFont(FONT_BOLD, fit_size(word, FONT_BOLD, 8, room, 5))
                 c.drawRightString(cols[k + 1] - 1.5 * MM, y_top - 3.6 * MM, safe(word))
+                c.setFont(FONT_BOLD, fit_size(unit, FONT_BOLD, 8, room, 5))
                 c.drawRightString(cols[k + 1] - 1.5 * MM, y_top - 6.8 * MM, unit)
         y = y_top - 8 * MM
         for row in self.rows:
@@ -137,19 +149,23 @@ class Chart(Block):
                       90.0 < abs(hole.angle_deg) % 360.0 < 270.0, pitch)
             c.setFont(FONT, self.size)
             c.setFillColor(INK)
-            for k, text in enumerate(_cells(f)[:len(titles)]):
+            for k, text in enumerate(_cells(f, self._banded(), self._surveyed())):
                 c.drawRightString(cols[k + 1] - 1.5 * MM, y - ROW + 2 * MM, text)
             y -= ROW
         c.setStrokeColor(GREY)
         c.line(x, y, x + width, y)
 
 
-def _cells(f: Fingering) -> tuple[str, ...]:
+def _cells(f: Fingering, banded: bool, surveyed: bool) -> tuple[str, ...]:
     # A weak or split resonance is no pitch to tune to: say so instead of a number.
     error = cents(f.error_cents) if f.resonance == "clear" else f.resonance
-    cells = (hz(f.target_hz), hz(f.predicted_hz), error)
-    if f.nearest_note is None:
+    cells: tuple[str, ...] = (hz(f.target_hz), hz(f.predicted_hz), error)
+    if banded:
+        cells += (model_band(f.model_band_cents),)
+    if not surveyed:
         return cells
+    if f.nearest_note is None:
+        return cells + ("", "", "")
     return cells + (safe(f.nearest_note),
                     cents(f.nearest_cents) if f.nearest_cents is not None else "",
                     sensitivity(f.cents_per_c) if f.cents_per_c is not None else "")
@@ -184,7 +200,7 @@ def blocks(pipe: Pipe, inches: Inches | None = None) -> list[Block]:
                       " Nearest: the note of the tuning nearest the prediction, and the "
                       "prediction's distance from it; cents/°C: its change in 1 °C warmer air."
                       if any(f.nearest_note is not None for f in pipe.fingerings) else "")
-                  + _head_words(pipe, inches),
+                  + _head_words(pipe, inches) + _band_words(pipe),
                   8.5, colour=GREY),
         Chart(tuple(sorted(pipe.holes, key=lambda h: h.number)), chart_rows(pipe)),
         Spacer(4 * MM),
@@ -206,6 +222,18 @@ def blocks(pipe: Pipe, inches: Inches | None = None) -> list[Block]:
         out.append(CurvePlot(f"Input {quantity} magnitude: {pipe.id}", pipe.curves[:4],
                              axis, marks))
     return out
+
+
+def _band_words(pipe: Pipe) -> str:
+    """The legend of the 'hole model' column (``ir.Fingering.model_band_cents``)."""
+    if not any(f.model_band_cents is not None for f in pipe.fingerings):
+        return ""
+    return (" Hole model ± cents: how far the note could move, in whole cents, if the open "
+            "holes radiate as a hole with no flange (0.6133 b) or as one in a flat wall "
+            "(0.8216 b) rather than by the design's fit for a hole in a tube (from memory, "
+            "not verified), which lies between the two or, for holes wide against the tube, "
+            "below both. Make a prototype first: drill the finger holes small and open them "
+            "up to pitch (common practice).")
 
 
 def _head_words(pipe: Pipe, inches: Inches | None) -> str:
