@@ -25,6 +25,12 @@ from compiler.ir import Pipe
 
 LABEL_MAX_MM = 5.0
 LABEL_MIN_MM = 1.5
+READABLE_MM = 2.05
+"""The least height (mm, of the capitals) of a label a maker reads a cut or a drill off:
+the build sheet prints a label of height h in type h/0.72 mm tall (DejaVu Sans's capitals
+are 0.73 of its size, ``emit/pdf/templates.py``), so 2.05 mm prints at 8.07 pt, the least
+size of text a cut depends on. Where a label cannot stand this tall, the template page
+repeats it in a key at 8 pt."""
 
 Contour = Polyline | Circle
 

@@ -12,7 +12,9 @@ the tube, y runs from the foot up, top end up, as on the wrap-around template.
   hole itself if smaller) at every hole's centre, to punch or pilot-drill through before the
   hole is opened to its drill; each hole's full circle, label and drill; the tube's outline
   (both sides and both ends) and the centre line. The front strip also carries the
-  embouchure hole (a pilot and its circle) or the window's outline.
+  embouchure hole (a pilot, its circle, ``emb.`` and its drill) or the window's outline.
+  Labels stand ``READABLE_MM`` tall (8 pt printed) where they fit: across the margin,
+  else along it.
 - **Duct block profile** (duct flutes with a duct height): the block's cross-section, the
   bore's circle less the duct's flat, as a gauge for turning the block and planing the flat.
 - **Window template** (duct flutes): a plate as wide as the strip, from the tube's top end to
@@ -27,8 +29,8 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
-from compiler.geometry.drafts import Draft, label, labels, pipe_error
-from compiler.geometry.model import Circle, Entity
+from compiler.geometry.drafts import READABLE_MM, Draft, label, labels, pipe_error
+from compiler.geometry.model import Circle, Entity, Text
 from compiler.geometry.paths import bulge_for, closed, line, rect
 from compiler.geometry.units import mm
 from compiler.ir import Hole, Jig, Pipe
@@ -108,7 +110,7 @@ def _strip(pipe: Pipe, jig: Jig, angle: float, holes: list[Hole]) -> Draft:
             y = top - mm(head.embouchure_from_top_m)
             openings.append(_pilot(cx, y, d))
             marks.append(Circle("mark", (cx, y), d / 2.0))
-            spots.append(("emb.", y))
+            spots.append((f"emb. {d:.1f}", y))
         if head.kind == "duct" and head.labium_from_top_m is not None:
             ww, wl = mm(head.window_width_m or 0.0), mm(head.window_length_m or 0.0)
             y = top - mm(head.labium_from_top_m)
@@ -117,9 +119,7 @@ def _strip(pipe: Pipe, jig: Jig, angle: float, holes: list[Hole]) -> Draft:
     # Labels in the margins beside the tube's outline, clear of every line: each hole's
     # label and drill on the right, the strip's name on the left, TOP above the tube's end.
     avoid = (*openings, *marks, rect("cut-outer", 0.0, 0.0, width, height))
-    right = MARGIN_MM + od + MARGIN_MM / 2.0
-    texts = [label(text, (right, y), MARGIN_MM - 0.6, 8.0, 2.0, avoid=avoid, smallest=1.2,
-                   clear=0.2) for text, y in spots]
+    texts = _hole_labels(spots, MARGIN_MM + od + MARGIN_MM / 2.0, avoid)
     texts.append(label("TOP", (width / 2.0, top + END_MM / 2.0), width - 1.0, END_MM - 1.0,
                        2.5, avoid=avoid, clear=0.3))
     texts.append(label(f"{pipe.id} {side}", (MARGIN_MM / 2.0, END_MM + length / 2.0),
@@ -129,6 +129,22 @@ def _strip(pipe: Pipe, jig: Jig, angle: float, holes: list[Hole]) -> Draft:
                   f"drilling strip, {side}: lay it on the tube along the line of its holes, "
                   "TOP line on the tube's top end; punch or pilot-drill through each opening, "
                   "then open each hole to its drill")
+
+
+def _hole_labels(spots: list[tuple[str, float]], x: float,
+                 avoid: tuple[Entity, ...]) -> list[Text | None]:
+    """Each hole's label and drill in the margin at ``x``, level with the hole, at least
+    ``READABLE_MM`` tall where it fits: across the margin if it is short enough, else
+    along it (its box reaches towards the nearest other hole, 8 to 16 mm long), clear of
+    the labels already placed; smaller only where neither fits (the build sheet then
+    repeats it in a key)."""
+    out: list[Text | None] = []
+    for text, y in spots:
+        nearest = min((abs(y - other) for _, other in spots if other != y), default=16.0)
+        tag = label(text, (x, y), MARGIN_MM - 0.6, max(8.0, min(16.0, nearest)),
+                    READABLE_MM, avoid=(*avoid, *labels(*out)), smallest=1.2, clear=0.2)
+        out.append(tag)
+    return out
 
 
 def _block_profile(pipe: Pipe, jig: Jig) -> Draft | None:
@@ -146,7 +162,7 @@ def _block_profile(pipe: Pipe, jig: Jig) -> Draft | None:
     # Clockwise from the flat's right end, round the bottom, to its left end.
     sweep = -(360.0 - 2.0 * math.degrees(math.asin(half / r)))
     outline = closed("cut-outer", [(r + half, yf), (r - half, yf)], [bulge_for(sweep), 0.0])
-    tag = label("duct", (r, yf - 2.0), 2.0 * half, 3.0, 2.0)
+    tag = label("duct", (r, yf - 2.0), 2.0 * half, 3.0, READABLE_MM)
     name = label(pipe.id, (r, r - 2.0), 1.4 * r, r, 2.5, short=(pipe.note,), smallest=1.2)
     return Draft(id=f"{pipe.id}-duct-block-profile", pipe_id=pipe.id, group=pipe.group,
                  name="duct-block-profile", material=jig.material, stock=jig.stock,
@@ -175,7 +191,7 @@ def _window_template(pipe: Pipe, jig: Jig) -> Draft | None:
         line("mark", (MARGIN_MM + od, 0.0), (MARGIN_MM + od, top)),
     ]
     avoid = (window, *marks)
-    texts = labels(label("labium", (cx, top - labium - 2.5), width - 2.0, 3.5, 2.0,
+    texts = labels(label("labium", (cx, top - labium - 2.5), width - 2.0, 3.5, READABLE_MM,
                          avoid=avoid, clear=0.2),
                    label("TOP", (cx, top - 2.5), width - 2.0, 3.5, 2.5, avoid=avoid,
                          clear=0.2),

@@ -7,8 +7,9 @@ front line as you look at the front with the top end up) is drawn at
 ``x = C/2 + a/360·C`` and ``y = cut length − its distance from the top``. A hole that
 crosses the template's side edges (a thumb hole at 180°) is drawn on both edges, so it
 closes up when wrapped. Ticks every 10 mm (longer every 50 mm) run down both side edges so
-the edges meet square; the window and labium (duct flutes), the embouchure hole and the
-cork line (side-blown flutes) or the mouth (tube flue pipes) are outlined.
+the edges meet square; the window and labium (duct flutes), the embouchure hole (labelled
+with its drill, as the finger holes are) and the cork line (side-blown flutes) or the mouth
+(tube flue pipes) are outlined.
 
 A flute's cutter parts (drilling strips, the duct block's profile, the window template)
 are in ``flute_jig``; its duct block is drawn at full size on the build sheet.
@@ -24,7 +25,7 @@ from __future__ import annotations
 import math
 
 from compiler.errors import Position
-from compiler.geometry.drafts import Draft, label, labels, pipe_error
+from compiler.geometry.drafts import LABEL_MIN_MM, READABLE_MM, Draft, label, labels, pipe_error
 from compiler.geometry.model import Circle, Entity, Polyline, Text, TubeCut
 from compiler.geometry.paths import line, rect, text_width
 from compiler.geometry.units import mm
@@ -100,7 +101,26 @@ def _check_overlaps(pipe: Pipe, circ: float) -> None:
                             "move the holes apart or make them smaller", at=b.source)
 
 
-def _head(pipe: Pipe, circ: float, length: float) -> list[Entity]:
+def _embouchure_label(d: float, x: float, y: float, circ: float,
+                      avoid: tuple[Entity, ...]) -> Text | None:
+    """The embouchure hole's label and drill, as the finger holes have theirs: beside the
+    hole on the right (else the left), level with it, clear of every mark and label; in the
+    room short of the edges' ticks, else reaching to the edge, at 8 pt if at all possible."""
+    gap = d / 2.0 + CROSS_MM + 1.0
+    text = f"emb.: {d:.1f}"
+    for smallest in (READABLE_MM, LABEL_MIN_MM):
+        for room in (circ / 2.0 - gap - TICK_LONG_MM - 1.0, circ / 2.0 - gap - 0.5):
+            for side in (1.0, -1.0):
+                found = label(text, (x + side * (gap + room / 2.0), y), room,
+                              4.0 * TEMPLATE_TEXT_MM, TEMPLATE_TEXT_MM, avoid=avoid,
+                              smallest=smallest)
+                if found is not None:
+                    return found
+    return None
+
+
+def _head(pipe: Pipe, circ: float, length: float,
+          avoid: tuple[Entity, ...] = ()) -> list[Entity]:
     out: list[Entity] = []
     front = circ / 2.0
     head = pipe.head
@@ -111,13 +131,15 @@ def _head(pipe: Pipe, circ: float, length: float) -> list[Entity]:
         out.append(Text("engrave", (front + ww / 2 + 1.0, y - TEMPLATE_TEXT_MM / 2),
                         TEMPLATE_TEXT_MM, "labium"))
     if head is not None and head.kind == "embouchure" and head.embouchure_from_top_m is not None:
-        r = mm(head.embouchure_diameter_m or 0.0) / 2.0
-        y = length - mm(head.embouchure_from_top_m)
-        out += [Circle("mark", (front, y), r), *_cross(front, y, r)]
+        d = mm(head.embouchure_diameter_m or 0.0)
+        r, y = d / 2.0, length - mm(head.embouchure_from_top_m)
+        hole = [Circle("mark", (front, y), r), *_cross(front, y, r)]
+        out += hole
         if head.cork_m is not None:
             yc = y + mm(head.cork_m)
             out += [line("mark", (0.0, yc), (circ, yc)),
                     Text("engrave", (1.0, yc + 1.0), TEMPLATE_TEXT_MM, "cork")]
+        out += labels(_embouchure_label(d, front, y, circ, (*avoid, *out)))
     if pipe.mouth is not None:
         mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
         y0 = mm(pipe.block.length_m) if pipe.block is not None else 0.0
@@ -143,7 +165,8 @@ def template(pipe: Pipe) -> Draft:
     circ, length = math.pi * od, mm(pipe.cut_length_m)
     front = circ / 2.0
     marks: list[Entity] = [line("mark", (front, 0.0), (front, length))]
-    marks += _ticks(circ, length) + _holes(pipe, circ, length) + _head(pipe, circ, length)
+    marks += _ticks(circ, length) + _holes(pipe, circ, length)
+    marks += _head(pipe, circ, length, tuple(marks))
     top = Text("engrave", (front + 1.0, length - TEMPLATE_TEXT_MM - 1.0), TEMPLATE_TEXT_MM,
                "TOP")
     lab = label(f"{pipe.id} {pipe.note} cut {length:.1f} mm, tube {od:.1f} mm; front line, "

@@ -14,6 +14,12 @@ Each template is split into tiles (windows of the part) that overlap their neigh
 line up. Each tile page carries its label "Tile r/c of R×C — part", and every page of the
 section a 100 mm bar and a 4 in bar with the note to print at actual size. A template of
 more than one tile gets an assembly map first.
+
+Labels are printed at the height the geometry stage gave them (``Text.height`` is the
+capitals' height, the type ``CAP_HEIGHT`` times taller), which is at least 8 pt for hole
+labels and drills wherever they fit (``drafts.READABLE_MM``). A label that had to be
+smaller is repeated at 8 pt on its page, so the drill is never read from tiny type: in a
+key beside the part on a tile (``small_labels``), in the caption on a shared page.
 """
 
 from __future__ import annotations
@@ -29,6 +35,7 @@ from shapely.geometry.base import BaseGeometry
 
 from compiler.display import Inches, in_inches
 from compiler.emit.pdf.document import (
+    NO_BREAK,
     Block,
     Column,
     Heading,
@@ -51,8 +58,9 @@ from compiler.emit.pdf.style import (
     mm_of,
     safe,
 )
+from compiler.geometry.drafts import READABLE_MM
 from compiler.geometry.model import Circle, Part, Parts, Polyline, Text
-from compiler.geometry.paths import flatten, text_centre, text_width, to_polygon
+from compiler.geometry.paths import bounds, flatten, text_centre, text_width, to_polygon
 
 SECTION = "Templates"
 OVERLAP_MM = 10.0
@@ -69,6 +77,33 @@ CAPTION_PT = 8.0
 CAPTION_MIN_MM = 50.0
 """Small templates share a page; each has a caption under it at least this wide."""
 GAP_MM = 4.0
+CAP_HEIGHT = 0.72
+"""A label's capitals are this fraction of its type size (DejaVu Sans: 0.729 em)."""
+KEY_PT = 8.0
+KEY_MIN_MM = 30.0
+"""The key of small labels goes beside the part where this much paper is free."""
+
+
+def small_labels(part: Part, window: tuple[float, float, float, float] | None = None
+                 ) -> list[str]:
+    """The part's labels printed under 8 pt (lower than ``READABLE_MM``), those reaching
+    into ``window`` (x0, y0, x1, y1 mm) if given, in the part's order: the page repeats
+    them."""
+    out: list[str] = []
+    for e in part.entities:
+        if isinstance(e, Text) and e.height < READABLE_MM - 1e-9 and e.text not in out:
+            x0, y0, x1, y1 = bounds(e)
+            if window is None or (x0 <= window[2] and window[0] <= x1 and y0 <= window[3]
+                                  and window[1] <= y1):
+                out.append(e.text)
+    return out
+
+
+def key_lines(texts: list[str], width: float) -> list[str]:
+    """The key repeating small labels, in lines of ``KEY_PT`` no wider than ``width``
+    points; a label is never split between lines."""
+    words = " · ".join(t.replace(" ", NO_BREAK) for t in texts)
+    return wrap(f"Small labels on this page, at 8 pt: {words}", FONT, KEY_PT, width)
 
 
 def size_text(part: Part) -> str:
@@ -238,6 +273,9 @@ def _caption(part: Part, alike: int, width_mm: float, inches: Inches | None
     if part.note:
         out += [(FONT, line) for line in wrap(in_inches(part.note, inches), FONT, CAPTION_PT,
                                               width_mm * MM)]
+    small = small_labels(part)
+    if small:
+        out += [(FONT, line) for line in key_lines(small, width_mm * MM)]
     return out
 
 
@@ -470,7 +508,7 @@ def _entities(c: Canvas, part: Part) -> None:
             c.saveState()
             c.translate(*text_centre(e))
             c.rotate(e.rotation_deg)
-            size = e.height / 0.72
+            size = e.height / CAP_HEIGHT
             text = safe(e.text)
             wide = stringWidth(text, FONT, size)
             room = text_width(e.text, e.height)
@@ -584,7 +622,35 @@ class TilePage:
         c.setLineWidth(0.5)
         c.rect(wx, wy, t.window_w * MM, t.window_h * MM, stroke=1, fill=0)
         _neighbours(c, frame, t, row, col, wx, wy)
+        small = small_labels(part, (x0, y0, x1, y1))
+        if small:
+            _key(c, frame, part, t, (x0, y0, x1, y1), small)
         calibration_bars(c, frame)
+
+
+def _key(c: Canvas, frame: Frame, part: Part, t: Tiling,
+         window: tuple[float, float, float, float], small: list[str]) -> None:
+    """The small labels of a tile repeated at 8 pt: beside the part, in the wider band of
+    free paper between it and the overlap strips (at least ``KEY_MIN_MM``), at its top;
+    else beside the calibration bars."""
+    x0, y0, x1, y1 = window
+    ov, leading = t.overlap, KEY_PT * 1.2
+    inner = (x0 + ov + 2.0, y0 + ov + 2.0, x1 - ov - 2.0, y1 - ov - 2.0)
+    bands = [(inner[0], min(inner[2], -2.0)),
+             (max(inner[0], part.width_mm + 2.0), inner[2])]
+    a, b = max(bands, key=lambda band: band[1] - band[0])
+    wx, wy = frame.left, frame.bottom + BAR_BAND
+    lines = key_lines(small, (b - a) * MM)
+    if b - a >= KEY_MIN_MM and len(lines) * leading <= (inner[3] - inner[1]) * MM:
+        x, top = wx + (a - x0) * MM, wy + (inner[3] - y0) * MM
+    else:
+        x = frame.left + (BAR_IN_MM + 25.0) * MM
+        lines = key_lines(small, frame.right - x)
+        top = wy - 5.0 * MM
+    c.setFont(FONT, KEY_PT)
+    c.setFillColor(INK)
+    for k, line in enumerate(lines):
+        c.drawString(x, top - KEY_PT - k * leading, line)
 
 
 def _crosshair(c: Canvas, x: float, y: float) -> None:
