@@ -140,6 +140,30 @@ def _obstacles(avoid: tuple[Entity, ...]) -> list[BaseGeometry]:
     return shapes
 
 
+class Room:
+    """The room a part leaves for its labels: clear of every line and label in ``avoid``
+    (marks, the outline, openings) by ``clear`` mm, and of each label placed since
+    (:meth:`take`). The one collision test of :func:`label` and of the labels set beside a
+    mark (``tube.hole_label``)."""
+
+    def __init__(self, avoid: tuple[Entity, ...], clear: float = LABEL_CLEAR_MM) -> None:
+        self.clear = clear
+        self._shapes = _obstacles(avoid)
+
+    def fits(self, t: Text) -> bool:
+        """Whether the label ``t`` keeps clear of everything in the room."""
+        return not shapely.intersects(self._shapes, _box(t, self.clear)).any()
+
+    def take(self, t: Text) -> None:
+        """Place ``t``: labels placed after it keep clear of it."""
+        self._shapes.append(_box(t))
+
+
+def text_box(t: Text) -> Polygon:
+    """A label's box (the width ``paths.text_width`` allows it, horizontal or turned 90°)."""
+    return _box(t)
+
+
 def label(text: str, center: Point, box_w: float, box_h: float,
           max_height: float = LABEL_MAX_MM, avoid: tuple[Entity, ...] = (),
           short: tuple[str, ...] = (), smallest: float = LABEL_MIN_MM,
@@ -150,7 +174,7 @@ def label(text: str, center: Point, box_w: float, box_h: float,
     moving away from the centre if need be. ``short`` are shorter texts to fall back on
     (the note of the pipe, say): the long text only where it can stand ``LABEL_LONG_MIN_MM``
     tall; ``clear`` mm from every line. None if nothing fits at ``smallest`` (mm)."""
-    obstacles = _obstacles(avoid)
+    room = Room(avoid, clear)
     fx0, fy0 = center[0] - box_w / 2.0 - 1e-9, center[1] - box_h / 2.0 - 1e-9
     fx1, fy1 = center[0] + box_w / 2.0 + 1e-9, center[1] + box_h / 2.0 + 1e-9
     texts = [text, *short]
@@ -168,7 +192,7 @@ def label(text: str, center: Point, box_w: float, box_h: float,
                     x0, y0, x1, y1 = _extent(found)
                     if not (fx0 <= x0 and fy0 <= y0 and x1 <= fx1 and y1 <= fy1):
                         continue  # outside the free box
-                    if not shapely.intersects(obstacles, _box(found, clear)).any():
+                    if room.fits(found):
                         return found
                 size *= 0.8
     return None

@@ -7,9 +7,10 @@ front line as you look at the front with the top end up) is drawn at
 ``x = C/2 + a/360·C`` and ``y = cut length − its distance from the top``. A hole that
 crosses the template's side edges (a thumb hole at 180°) is drawn on both edges, so it
 closes up when wrapped. Ticks every 10 mm (longer every 50 mm) run down both side edges so
-the edges meet square; the window and labium (duct flutes), the embouchure hole (labelled
-with its drill, as the finger holes are) and the cork line (side-blown flutes) or the mouth
-(tube flue pipes) are outlined.
+the edges meet square. Each hole's label and drill (``T: 6.0``) stands beside it, clear of
+every mark and label, nearer it than any other hole (``_hole_labels``). The window and
+labium (duct flutes), the embouchure hole (labelled with its drill, as the finger holes
+are) and the cork line (side-blown flutes) or the mouth (tube flue pipes) are outlined.
 
 A flute's cutter parts (drilling strips, the duct block's profile, the window template)
 are in ``flute_jig``; its duct block is drawn at full size on the build sheet.
@@ -24,8 +25,20 @@ from __future__ import annotations
 
 import math
 
+from shapely.geometry import Point
+from shapely.geometry.base import BaseGeometry
+
 from compiler.errors import Position
-from compiler.geometry.drafts import LABEL_MIN_MM, READABLE_MM, Draft, label, labels, pipe_error
+from compiler.geometry.drafts import (
+    LABEL_MIN_MM,
+    READABLE_MM,
+    Draft,
+    Room,
+    label,
+    labels,
+    pipe_error,
+    text_box,
+)
 from compiler.geometry.model import Circle, Entity, Polyline, Text, TubeCut
 from compiler.geometry.paths import line, rect, text_width
 from compiler.geometry.units import mm
@@ -57,9 +70,11 @@ def hole_x(angle_deg: float, circumference: float) -> float:
     return circumference / 2.0 + a / 360.0 * circumference
 
 
-def _holes(pipe: Pipe, circ: float, length: float) -> list[Entity]:
-    out: list[Entity] = []
+def _hole_marks(pipe: Pipe, circ: float, length: float) -> list[tuple[Hole, list[Circle]]]:
+    """Each hole with its circles on the template: one, or two where it crosses a side edge
+    (the second on the other edge, so it closes up when wrapped)."""
     _check_overlaps(pipe, circ)
+    out: list[tuple[Hole, list[Circle]]] = []
     for hole in sorted(pipe.holes, key=lambda h: h.number):
         _check_hole(pipe, hole, length)
         r = mm(hole.diameter_m) / 2.0
@@ -69,14 +84,74 @@ def _holes(pipe: Pipe, circ: float, length: float) -> list[Entity]:
             copies.append(x + circ)
         if x + r > circ:
             copies.append(x - circ)
-        for cx in copies:
-            out += [Circle("mark", (cx, y), r), *_cross(cx, y, r)]
-        text = f"{hole.label}: {mm(hole.diameter_m):.1f}"
-        tx = x + r + CROSS_MM + 1.0
-        if tx + text_width(text, TEMPLATE_TEXT_MM) > circ:
-            tx = x - r - CROSS_MM - 1.0 - text_width(text, TEMPLATE_TEXT_MM)
-        out.append(Text("engrave", (tx, y + 1.0), TEMPLATE_TEXT_MM, text))
+        out.append((hole, [Circle("mark", (cx, y), r) for cx in copies]))
     return out
+
+
+HOLE_LABEL_SIZES = (TEMPLATE_TEXT_MM, 3.0, 2.5, READABLE_MM, 1.75, LABEL_MIN_MM)
+"""Heights (mm) a hole's label is tried at, largest first: down to ``READABLE_MM`` (8 pt
+printed) wherever it fits, smaller only where nothing else does (the page's key repeats
+those at 8 pt)."""
+
+
+def _spots(text: str, hole: Circle, size: float) -> list[Text]:
+    """Where a hole's label may stand, best first: right of the hole above its cross's arm
+    (where the template has always put it), left of it, level with the centre, below the
+    arm, off the hole's upper and lower corners, then turned 90° beside it. Each keeps clear
+    of the hole's own cross and lies within ``CROSS_MM + 1`` (3 mm) of its circle, so it
+    reads as that hole's."""
+    (x, y), r = hole.center, hole.radius
+    w = text_width(text, size)
+    right, left = x + r + CROSS_MM + 1.0, x - r - CROSS_MM - 1.0 - w
+    flat = [(right, y + 1.0), (left, y + 1.0), (right, y - size / 2.0), (left, y - size / 2.0),
+            (right, y - 1.0 - size), (left, y - 1.0 - size),
+            (x + 1.0, y + r + 1.0), (x - 1.0 - w, y + r + 1.0),
+            (x + 1.0, y - r - 1.0 - size), (x - 1.0 - w, y - r - 1.0 - size)]
+    spots = [Text("engrave", at, size, text) for at in flat]
+    return [*spots, Text("engrave", (right + size, y - w / 2.0), size, text, 90.0),
+            Text("engrave", (x - r - CROSS_MM - 1.0, y - w / 2.0), size, text, 90.0)]
+
+
+def _hole_labels(holes: list[tuple[Hole, list[Circle]]], others: list[Circle], room: Room,
+                 circ: float, length: float) -> list[Text]:
+    """Each hole's label and drill (``T: 6.0``), through the label-collision search
+    (``drafts.Room``): the first spot of ``_spots``, at the largest of
+    ``HOLE_LABEL_SIZES``, that lies on the template, keeps clear of every mark, the edges
+    and the labels placed before it, and is nearer its own hole than any other (``others``:
+    the embouchure hole, say), so it is not read as a neighbour's. If none is anywhere (a
+    pathological crowd), the label stands small at its usual place and the key repeats it."""
+    rings = [(k, c) for k, (_, copies) in enumerate(holes) for c in copies]
+    rings += [(-1, c) for c in others]
+    disks = [(k, Point(c.center).buffer(c.radius)) for k, c in rings]
+    out: list[Text] = []
+    for k, (hole, copies) in enumerate(holes):
+        text = f"{hole.label}: {mm(hole.diameter_m):.1f}"
+        found = None
+        for size in HOLE_LABEL_SIZES:
+            for spot in (s for c in copies for s in _spots(text, c, size)):
+                if _on_template(spot, circ, length) and room.fits(spot) and _nearest(
+                        spot, k, disks):
+                    found = spot
+                    break
+            if found is not None:
+                break
+        if found is None:
+            found = _spots(text, copies[0], LABEL_MIN_MM)[0]
+        room.take(found)
+        out.append(found)
+    return out
+
+
+def _on_template(t: Text, circ: float, length: float) -> bool:
+    x0, y0, x1, y1 = (float(v) for v in text_box(t).bounds)
+    return x0 >= 0.0 and y0 >= 0.0 and x1 <= circ and y1 <= length
+
+
+def _nearest(t: Text, own: int, disks: list[tuple[int, BaseGeometry]]) -> bool:
+    """Whether hole ``own`` is strictly the nearest to the label ``t``."""
+    box = text_box(t)
+    mine = min(d.distance(box) for k, d in disks if k == own)
+    return all(d.distance(box) > mine for k, d in disks if k != own)
 
 
 def _check_hole(pipe: Pipe, hole: Hole, length: float) -> None:
@@ -119,32 +194,43 @@ def _embouchure_label(d: float, x: float, y: float, circ: float,
     return None
 
 
-def _head(pipe: Pipe, circ: float, length: float,
-          avoid: tuple[Entity, ...] = ()) -> list[Entity]:
-    out: list[Entity] = []
-    front = circ / 2.0
+def _window(pipe: Pipe, circ: float, length: float) -> list[Entity]:
+    """A duct flute's window, outlined, with the labium named."""
     head = pipe.head
-    if head is not None and head.kind == "duct" and head.labium_from_top_m is not None:
-        ww, wl = mm(head.window_width_m or 0.0), mm(head.window_length_m or 0.0)
-        y = length - mm(head.labium_from_top_m)
-        out.append(rect("mark", front - ww / 2, y, front + ww / 2, y + wl))
-        out.append(Text("engrave", (front + ww / 2 + 1.0, y - TEMPLATE_TEXT_MM / 2),
-                        TEMPLATE_TEXT_MM, "labium"))
-    if head is not None and head.kind == "embouchure" and head.embouchure_from_top_m is not None:
-        d = mm(head.embouchure_diameter_m or 0.0)
-        r, y = d / 2.0, length - mm(head.embouchure_from_top_m)
-        hole = [Circle("mark", (front, y), r), *_cross(front, y, r)]
-        out += hole
-        if head.cork_m is not None:
-            yc = y + mm(head.cork_m)
-            out += [line("mark", (0.0, yc), (circ, yc)),
-                    Text("engrave", (1.0, yc + 1.0), TEMPLATE_TEXT_MM, "cork")]
-        out += labels(_embouchure_label(d, front, y, circ, (*avoid, *out)))
-    if pipe.mouth is not None:
-        mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
-        y0 = mm(pipe.block.length_m) if pipe.block is not None else 0.0
-        out.append(rect("mark", front - mw / 2, y0, front + mw / 2, y0 + cu))
-    return out
+    if head is None or head.kind != "duct" or head.labium_from_top_m is None:
+        return []
+    front = circ / 2.0
+    ww, wl = mm(head.window_width_m or 0.0), mm(head.window_length_m or 0.0)
+    y = length - mm(head.labium_from_top_m)
+    return [rect("mark", front - ww / 2, y, front + ww / 2, y + wl),
+            Text("engrave", (front + ww / 2 + 1.0, y - TEMPLATE_TEXT_MM / 2),
+                 TEMPLATE_TEXT_MM, "labium")]
+
+
+def _embouchure(pipe: Pipe, circ: float, length: float) -> tuple[list[Entity], Circle | None]:
+    """A side-blown flute's embouchure hole with its cross, and the cork line; the hole."""
+    head = pipe.head
+    if head is None or head.kind != "embouchure" or head.embouchure_from_top_m is None:
+        return [], None
+    front = circ / 2.0
+    r, y = mm(head.embouchure_diameter_m or 0.0) / 2.0, length - mm(head.embouchure_from_top_m)
+    hole = Circle("mark", (front, y), r)
+    out: list[Entity] = [hole, *_cross(front, y, r)]
+    if head.cork_m is not None:
+        yc = y + mm(head.cork_m)
+        out += [line("mark", (0.0, yc), (circ, yc)),
+                Text("engrave", (1.0, yc + 1.0), TEMPLATE_TEXT_MM, "cork")]
+    return out, hole
+
+
+def _mouth(pipe: Pipe, circ: float) -> list[Entity]:
+    """A tube flue pipe's mouth, outlined."""
+    if pipe.mouth is None:
+        return []
+    front = circ / 2.0
+    mw, cu = mm(pipe.mouth.width_m), mm(pipe.mouth.cutup_m)
+    y0 = mm(pipe.block.length_m) if pipe.block is not None else 0.0
+    return [rect("mark", front - mw / 2, y0, front + mw / 2, y0 + cu)]
 
 
 def _ticks(circ: float, length: float) -> list[Entity]:
@@ -164,18 +250,31 @@ def template(pipe: Pipe) -> Draft:
         raise pipe_error(pipe, "a stock tube needs an outside diameter", "check the tube stock")
     circ, length = math.pi * od, mm(pipe.cut_length_m)
     front = circ / 2.0
-    marks: list[Entity] = [line("mark", (front, 0.0), (front, length))]
-    marks += _ticks(circ, length) + _holes(pipe, circ, length)
-    marks += _head(pipe, circ, length, tuple(marks))
+    outline = rect("cut-outer", 0, 0, circ, length)
+    ruled: list[Entity] = [line("mark", (front, 0.0), (front, length)), *_ticks(circ, length)]
+    holes = _hole_marks(pipe, circ, length)
+    drawn = [[m for c in copies for m in (c, *_cross(*c.center, c.radius))]
+             for _, copies in holes]
+    window, (emb, emb_hole), mouth = (_window(pipe, circ, length),
+                                      _embouchure(pipe, circ, length), _mouth(pipe, circ))
     top = Text("engrave", (front + 1.0, length - TEMPLATE_TEXT_MM - 1.0), TEMPLATE_TEXT_MM,
                "TOP")
+    # every mark first, then the labels, each clear of the marks and of those before it
+    room = Room((outline, *ruled, *(m for d in drawn for m in d), *window, *emb, *mouth, top))
+    texts = _hole_labels(holes, [emb_hole] if emb_hole else [], room, circ, length)
+    marks = [*ruled, *(m for d, t in zip(drawn, texts, strict=True) for m in (*d, t)), *window]
+    if emb_hole is not None:
+        marks += emb
+        marks += labels(_embouchure_label(2.0 * emb_hole.radius, *emb_hole.center, circ,
+                                          (*marks, top)))
+    marks += mouth
     lab = label(f"{pipe.id} {pipe.note} cut {length:.1f} mm, tube {od:.1f} mm; front line, "
                 "top end up", (circ * 0.25, length / 2.0), circ * 0.3, length * 0.9,
                 TEMPLATE_TEXT_MM, avoid=(*marks, top),
                 short=(f"{pipe.note} cut {length:.1f} mm", pipe.note))
     return Draft(id=f"{pipe.id}-template", pipe_id=pipe.id, group=pipe.group, name="template",
                  material="paper", stock=pipe.stock, thickness_mm=0.0, kind="template",
-                 width_mm=circ, height_mm=length, outline=rect("cut-outer", 0, 0, circ, length),
+                 width_mm=circ, height_mm=length, outline=outline,
                  openings=(), marks=(*marks, *labels(lab), top), source=pipe.source,
                  note=f"wrap round the {od:.1f} mm tube, front line to the front, top end up",
                  length_along_x=False)

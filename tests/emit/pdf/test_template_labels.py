@@ -19,7 +19,7 @@ from typing import Any
 
 import ezdxf
 from pypdf import PdfReader
-from shapely.geometry import Point, box
+from shapely.geometry import LineString, Point, box
 
 from compiler.build import build
 from compiler.emit.pdf import templates
@@ -80,6 +80,88 @@ def _text_box(e: Any) -> Any:
     if abs(e.dxf.rotation - 90.0) < 1e-6:
         w, h = h, w
     return box(x - w / 2, y - h / 2, x + w / 2, y + h / 2)
+
+
+def _crowded() -> str:
+    """The side-blown example made crowded: a 14 mm tube (circumference 44 mm), the holes
+    fixed 6 to 10 mm apart (no `min_span`, a 1 mm web), two turned off the front line, a thumb
+    hole drawn on both side edges, and long labels ('ring-finger-low: 5.0' is as wide as the
+    template at the finger labels' usual 3.5 mm)."""
+    text = (EXAMPLES / "side-blown-flute-c.yaml").read_text(encoding="utf-8")
+    holes = "\n".join(f"      - {{{h}}}" for h in (
+        "label: thumb-left, angle: 180 deg, position: 200 mm, diameter: 4 mm",
+        "position: 206 mm, diameter: 5 mm",
+        "position: 216 mm, diameter: 5 mm, angle: 15 deg",
+        "position: 226 mm, diameter: 5 mm",
+        "label: ring-finger-low, position: 236 mm, diameter: 5 mm, angle: -10 deg",
+        "position: 246 mm, diameter: 5 mm",
+        "position: 256 mm, diameter: 6 mm",
+        "position: 265 mm, diameter: 6 mm"))
+    start = text.index("    holes:\n") + len("    holes:\n")
+    text = text[:start] + holes + "\n" + text[text.index("    fingerings:"):]
+    for old, new in (("outside_diameter: 22 mm, wall: 0.8 mm",
+                      "outside_diameter: 14 mm, wall: 1 mm"),
+                     ("diameter: 10 mm, from_top: 40 mm", "diameter: 8 mm, from_top: 30 mm"),
+                     ("min_span: 17 mm", "min_span: 0 mm"), ("min_web: 4 mm", "min_web: 1 mm"),
+                     ("min_diameter: 4 mm", "min_diameter: 3 mm")):
+        assert old in text
+        text = text.replace(old, new)
+    return text
+
+
+READ_AS_ITS_MM = 6.0
+"""A hole's label on the wrap-around template is read as that hole's if its box comes within
+this of the hole's circle (under three 8 pt label heights, 2.05 mm; common practice for a
+callout without a leader, from memory) and nearer to it than to any other hole."""
+
+
+def test_hole_labels_on_the_wrap_keep_clear_of_every_mark_and_by_their_holes(
+        tmp_path: Path) -> None:
+    # Each template is read back from its DXF file; where each hole is comes from
+    # resolved.json (from the top end, and round the tube: x = C/2 + angle/360 * C, the
+    # arc length from the front line, drawn on both side edges where it crosses one).
+    for name, text in (("side-blown-flute-c.yaml", None), ("duct-flute-d.yaml", None),
+                       ("crowded-flute.yaml", _crowded())):
+        out = _build(tmp_path / name, name, text)
+        pipe = json.loads((out / "resolved.json").read_text())["pipes"][0]
+        circ, length = math.pi * pipe["outside_diameter_mm"], pipe["cut_length_mm"]
+        ents = list(ezdxf.readfile(out / "parts" / f"{pipe['id']}-template.dxf").modelspace())
+        holes: dict[str, list[Any]] = {}  # label text -> its hole's circles (copies)
+        for h in pipe["holes"]:
+            x = circ / 2 + ((h["angle_deg"] + 180) % 360 - 180) / 360 * circ
+            y, r = length - h["position_from_top_mm"], h["diameter_mm"] / 2
+            at = [Point(cx, y).buffer(r) for cx in (x, x + circ, x - circ)
+                  if -r < cx < circ + r]
+            holes[f"{h['label']}: {h['diameter_mm']:.1f}"] = at
+        head = pipe["head"]
+        if head["embouchure_diameter_mm"] is not None:
+            d = head["embouchure_diameter_mm"]
+            holes[f"emb.: {d:.1f}"] = [Point(circ / 2, length - head["embouchure_from_top_mm"])
+                                      .buffer(d / 2)]
+        circles = [Point(e.dxf.center.x, e.dxf.center.y).buffer(e.dxf.radius)
+                   for e in ents if e.dxftype() == "CIRCLE"]
+        assert len(circles) >= len(holes)
+        lines = [LineString([p[:2] for p in e.get_points()]) for e in ents
+                 if e.dxftype() == "LWPOLYLINE" and e.dxf.layer == "mark"]
+        # the centre line, the ticks down both edges, the crosses (and the cork line)
+        assert any(abs(ln.length - length) < 1e-6 for ln in lines)
+        assert sum(ln.length in (3.0, 6.0) for ln in lines) >= 2 * int(length // 10)
+        texts = {e.dxf.text: _text_box(e) for e in ents if e.dxftype() == "TEXT"}
+        heights = {e.dxf.text: e.dxf.height for e in ents if e.dxftype() == "TEXT"}
+        assert set(holes) <= set(texts), sorted(set(holes) - set(texts))
+        sheet = box(0, 0, circ, length)
+        for label, own in holes.items():
+            t = texts[label]
+            where = (name, label)
+            assert sheet.contains(t), where
+            assert not any(t.intersects(c) for c in circles), where
+            assert not any(t.intersects(ln) for ln in lines), where
+            assert not any(t.intersects(o) for k, o in texts.items() if k != label), where
+            mine = min(c.distance(t) for c in own)
+            assert mine <= READ_AS_ITS_MM, where
+            others = [c for k, cs in holes.items() if k != label for c in cs]
+            assert all(c.distance(t) > mine for c in others), where
+            assert heights[label] >= 2.05 - 1e-9, where  # 8 pt printed: all fit here
 
 
 def test_the_embouchure_hole_is_labelled_beside_it_on_the_wrap_and_the_strip(
