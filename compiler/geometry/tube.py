@@ -119,24 +119,22 @@ def _hole_labels(holes: list[tuple[Hole, list[Circle]]], others: list[Circle], r
     ``HOLE_LABEL_SIZES``, that lies on the template, keeps clear of every mark, the edges
     and the labels placed before it, and is nearer its own hole than any other (``others``:
     the embouchure hole, say), so it is not read as a neighbour's. If none is anywhere (a
-    pathological crowd), the label stands small at its usual place and the key repeats it."""
+    pathological crowd), the label stands small (the page's key repeats it at 8 pt) where
+    it is clear of the marks, else where it is on the template at least."""
     rings = [(k, c) for k, (_, copies) in enumerate(holes) for c in copies]
     rings += [(-1, c) for c in others]
     disks = [(k, Point(c.center).buffer(c.radius)) for k, c in rings]
     out: list[Text] = []
     for k, (hole, copies) in enumerate(holes):
         text = f"{hole.label}: {mm(hole.diameter_m):.1f}"
-        found = None
-        for size in HOLE_LABEL_SIZES:
-            for spot in (s for c in copies for s in _spots(text, c, size)):
-                if _on_template(spot, circ, length) and room.fits(spot) and _nearest(
-                        spot, k, disks):
-                    found = spot
-                    break
-            if found is not None:
-                break
-        if found is None:
-            found = _spots(text, copies[0], LABEL_MIN_MM)[0]
+        smallest = [s for c in copies for s in _spots(text, c, LABEL_MIN_MM)]
+        found = next(
+            (s for size in HOLE_LABEL_SIZES for c in copies for s in _spots(text, c, size)
+             if _on_template(s, circ, length) and room.fits(s) and _nearest(s, k, disks)),
+            # a pathological crowd: clear of the marks if nearer another hole, else at least
+            # on the paper, else where it always stood
+            next((s for s in smallest if _on_template(s, circ, length) and room.fits(s)),
+                 next((s for s in smallest if _on_template(s, circ, length)), smallest[0])))
         room.take(found)
         out.append(found)
     return out
