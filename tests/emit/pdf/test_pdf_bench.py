@@ -17,7 +17,7 @@ from pypdf import PdfReader
 from compiler.build import build
 from compiler.cache import Cache
 from compiler.emit.pdf import render
-from compiler.emit.pdf.templates import choose
+from compiler.emit.pdf.template_plan import choose
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved
 from compiler.options import BuildOptions, Overrides

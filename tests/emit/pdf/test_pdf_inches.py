@@ -25,7 +25,8 @@ from compiler.build import build
 from compiler.emit.pdf.document import NO_BREAK, wrap
 from compiler.emit.pdf.pipes import VIEW_WIDTH
 from compiler.emit.pdf.style import FONT, frame_for, register_fonts
-from compiler.emit.pdf.templates import INFO_LINES, Choice, tile_info, tiling
+from compiler.emit.pdf.template_plan import Choice, tiling
+from compiler.emit.pdf.templates import INFO_LINES, tile_info
 from compiler.geometry.model import Part
 from compiler.options import Overrides
 

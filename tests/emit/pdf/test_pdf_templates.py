@@ -17,7 +17,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from compiler.emit.pdf import templates
+from compiler.emit.pdf import template_plan, templates
 from compiler.emit.pdf.style import frame_for
 from compiler.geometry.model import Parts
 from compiler.ir import Resolved
@@ -84,14 +84,14 @@ def test_neighbouring_tiles_show_the_same_overlap_strip(small_pdf: bytes,
     dpi, px = 254, 10  # pixels per millimetre
     frame = frame_for("a4")
     left_mm = frame.left / (72 / 25.4)
-    top_mm = 297.0 - (frame.top / (72 / 25.4)) + templates.TITLE_BAND / (72 / 25.4)
-    window_w, window_h = templates.window_size(frame)
+    top_mm = 297.0 - (frame.top / (72 / 25.4)) + template_plan.TITLE_BAND / (72 / 25.4)
+    window_w, window_h = template_plan.window_size(frame)
     first = render_page(small_pdf, page_of(small_pages, "Tile 1/1 of 1×2 — principal-4-C3-foot"),
                         dpi)
     second = render_page(small_pdf, page_of(small_pages,
                                             "Tile 1/2 of 1×2 — principal-4-C3-foot"), dpi)
     y0, y1 = round((top_mm + 1.5) * px), round((top_mm + window_h - 1.5) * px)
-    ov = templates.OVERLAP_MM
+    ov = template_plan.OVERLAP_MM
     a0 = round((left_mm + window_w - ov + 1.5) * px)
     b0 = round((left_mm + 1.5) * px)
     width = round((ov - 3.0) * px)
@@ -108,9 +108,9 @@ def test_neighbouring_tiles_show_the_same_overlap_strip(small_pdf: bytes,
 @given(st.floats(1.0, 1500.0), st.floats(1.0, 1500.0), st.sampled_from(["a4", "letter"]))
 def test_tiles_overlap_by_the_stated_margin_and_cover_the_part(w: float, h: float,
                                                                paper: str) -> None:
-    ww, wh = templates.window_size(frame_for(paper))
-    t = templates.tiling(w, h, ww, wh)
-    ov = templates.OVERLAP_MM
+    ww, wh = template_plan.window_size(frame_for(paper))
+    t = template_plan.tiling(w, h, ww, wh)
+    ov = template_plan.OVERLAP_MM
     for r in range(t.rows):
         for c in range(t.cols):
             x0, y0, x1, y1 = t.window(r, c)
@@ -121,7 +121,7 @@ def test_tiles_overlap_by_the_stated_margin_and_cover_the_part(w: float, h: floa
                 assert abs(t.window(r + 1, c)[3] - y0 - ov) < 1e-9
     x0, _, _, y1 = t.window(0, 0)
     _, y0, x1, _ = t.window(t.rows - 1, t.cols - 1)
-    inset = templates.INSET_MM
+    inset = template_plan.INSET_MM
     assert x0 <= -inset + 1e-9 and x1 >= w + inset - 1e-9
     assert y0 <= -inset + 1e-9 and y1 >= h + inset - 1e-9
     # Fewest tiles: one column (or row) fewer would not reach across.
@@ -137,7 +137,7 @@ def test_every_template_page_has_label_bars_and_note(small: tuple[Resolved, Part
     for text in pages:
         assert "100 mm" in text and "4 in" in text
         assert "Print at 100 % (actual size); check this bar before cutting" in text
-    chosen, _ = templates.choose(parts, frame_for("a4"))
+    chosen, _ = template_plan.choose(parts, frame_for("a4"))
     drilling = next(c for c in chosen if c.part.kind == "template")
     for r in range(drilling.tiles.rows):
         for c in range(drilling.tiles.cols):
@@ -152,7 +152,7 @@ def test_template_choice(small: tuple[Resolved, Parts]) -> None:
     """Every drilling template; shaped outlines (not plain rectangles) up to the tile
     limit; the long body patterns left to the DXF files."""
     _, parts = small
-    chosen, left_out = templates.choose(parts, frame_for("a4"))
+    chosen, left_out = template_plan.choose(parts, frame_for("a4"))
     ids = {c.part.id for c in chosen}
     assert "duct-flute-d5-drilling" in ids
     assert {"principal-4-C3-languid", "principal-4-C3-foot", "tubes-holder"} <= ids
@@ -230,27 +230,27 @@ def test_small_templates_fill_the_last_page_before_parts_are_left_out() -> None:
     spec = Path(__file__).resolve().parents[3] / "specs_examples" / name
     parts = compile_text(spec.read_bytes(), name, Overrides()).parts
     frame = frame_for("a4")
-    chosen, left_out = templates.choose(parts, frame)
+    chosen, left_out = template_plan.choose(parts, frame)
     printed = [i for ch in chosen for i in ch.used_by]
     high = ("F5", "Fs5", "G5", "Gs5", "A5", "Bb5", "B5", "C6")
     assert {f"principal-4-{n}-languid" for n in high} <= set(printed)
     singles = [ch for ch in chosen if ch.tiles.rows * ch.tiles.cols == 1]
-    shared = templates.share_pages(singles, frame)
-    assert len(shared) <= templates.OUTLINE_PAGES
+    shared = template_plan.share_pages(singles, frame)
+    assert len(shared) <= template_plan.OUTLINE_PAGES
     # every shaped (not plain rectangular) sheet part is printed or listed, once
     shaped = [p.id for p in parts.parts if p.kind in ("sheet", "board")
-              and not templates._plain_rectangle(p)]
+              and not template_plan.plain_rectangle(p)]
     assert sorted(printed + left_out) == sorted(shaped)
     # nothing left out would have fitted: each one-page outline not printed needs a page
     # more than the budget
-    window_w, window_h = templates.window_size(frame)
+    window_w, window_h = template_plan.window_size(frame)
     left = set(left_out)
     for part in parts.parts:
-        tiles = templates.tiling(part.width_mm, part.height_mm, window_w, window_h)
+        tiles = template_plan.tiling(part.width_mm, part.height_mm, window_w, window_h)
         if part.id in left and tiles.rows * tiles.cols == 1:
-            extra = templates.Choice(part, tiles, (part.id,))
-            assert len(templates.share_pages([*singles, extra], frame)) > \
-                templates.OUTLINE_PAGES, part.id
+            extra = template_plan.Choice(part, tiles, (part.id,))
+            assert len(template_plan.share_pages([*singles, extra], frame)) > \
+                template_plan.OUTLINE_PAGES, part.id
 
 
 def test_tile_numbers_on_an_assembly_map_keep_clear_of_the_part() -> None:
@@ -265,7 +265,7 @@ def test_tile_numbers_on_an_assembly_map_keep_clear_of_the_part() -> None:
 
     spec = Path(__file__).resolve().parents[3] / "specs_examples" / "blown-stopped-tubes.yaml"
     parts = compile_text(spec.read_bytes(), str(spec), Overrides()).parts
-    chosen, _ = templates.choose(parts, frame_for("a4"))
+    chosen, _ = template_plan.choose(parts, frame_for("a4"))
     (holder,) = [ch for ch in chosen if ch.part.name == "holder"]
     t = holder.tiles
     assert t.rows * t.cols == 3

@@ -22,7 +22,7 @@ from pypdf import PdfReader
 from shapely.geometry import LineString, Point, box
 
 from compiler.build import build
-from compiler.emit.pdf import templates
+from compiler.emit.pdf import template_plan
 from compiler.emit.pdf.style import MM, frame_for
 from compiler.options import Overrides
 
@@ -40,8 +40,8 @@ def _sizes(page: Any) -> list[tuple[str, float]]:
     start outside a tile's drawing window (clipped away: a label of the part beyond it)."""
     found: list[tuple[str, float]] = []
     frame = frame_for("a4")
-    window_w, window_h = templates.window_size(frame)
-    left, bottom = frame.left, frame.bottom + templates.BAR_BAND
+    window_w, window_h = template_plan.window_size(frame)
+    left, bottom = frame.left, frame.bottom + template_plan.BAR_BAND
     right, top = left + window_w * MM, bottom + window_h * MM
 
     def seen(text: str, cm: Any, tm: Any, _font: Any, size: float) -> None:
