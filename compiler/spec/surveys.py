@@ -11,15 +11,9 @@ end, holes that overlap, a hole wider than the bore) is checked when the survey 
 from __future__ import annotations
 
 from compiler.spec import model, units
+from compiler.spec.flutes import read_closed, read_head, read_second_register
 from compiler.spec.loader import Path
-from compiler.spec.normalize import (
-    _environment,
-    _name,
-    _Reader,
-    read_closed,
-    read_head,
-    read_second_register,
-)
+from compiler.spec.normalize import _environment, _name, _Reader
 
 
 def read_survey(r: _Reader, i: int) -> model.Survey:
