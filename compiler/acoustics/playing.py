@@ -333,8 +333,10 @@ def hole_model_band(
                 break
             found, _, _ = track(evaluate, guess[None, :, None].copy(), width)
             moved = np.where(todo, found[0, :, 0], moved)
-        shifts.append(cents(np.where(np.isfinite(moved), moved, 1.0), guess)
-                      + np.where(np.isfinite(moved), 0.0, np.nan))
+        followed = np.isfinite(moved)
+        shift = np.full(rows.size, np.nan)
+        shift[followed] = cents(moved[followed], guess[followed])
+        shifts.append(shift)
     for j, i in enumerate(rows):
         pair = (float(shifts[0][j]), float(shifts[1][j]))
         if np.isfinite(pair).all():

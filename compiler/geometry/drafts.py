@@ -115,7 +115,9 @@ def _extent(t: Text) -> tuple[float, float, float, float]:
     return x, y, x + w, y + t.height
 
 
-def _box(t: Text, grow: float = 0.0) -> Polygon:
+def text_box(t: Text, grow: float = 0.0) -> Polygon:
+    """A label's box (the width ``paths.text_width`` allows it, horizontal or turned 90°),
+    grown by ``grow`` mm on every side."""
     x0, y0, x1, y1 = _extent(t)
     return shapely_box(x0 - grow, y0 - grow, x1 + grow, y1 + grow)
 
@@ -129,7 +131,7 @@ def _obstacles(avoid: tuple[Entity, ...]) -> list[BaseGeometry]:
     shapes: list[BaseGeometry] = []
     for e in avoid:
         if isinstance(e, Text):
-            shapes.append(_box(e))
+            shapes.append(text_box(e))
         elif isinstance(e, Circle):
             # finer on a small disk: its chords would eat into the room for the label
             shapes.append(to_polygon(e, min(OBSTACLE_SAG_MM, 0.02 * e.radius)).exterior)
@@ -152,16 +154,11 @@ class Room:
 
     def fits(self, t: Text) -> bool:
         """Whether the label ``t`` keeps clear of everything in the room."""
-        return not shapely.intersects(self._shapes, _box(t, self.clear)).any()
+        return not shapely.intersects(self._shapes, text_box(t, self.clear)).any()
 
     def take(self, t: Text) -> None:
         """Place ``t``: labels placed after it keep clear of it."""
-        self._shapes.append(_box(t))
-
-
-def text_box(t: Text) -> Polygon:
-    """A label's box (the width ``paths.text_width`` allows it, horizontal or turned 90°)."""
-    return _box(t)
+        self._shapes.append(text_box(t))
 
 
 def label(text: str, center: Point, box_w: float, box_h: float,

@@ -321,8 +321,7 @@ def _predict(instrument: Instrument, air: GroupAir, rows: list[_Row]) -> _Predic
     resonance = tuple(quality[i] if k == 1 else "clear" for i, k in pick)
     chosen = np.array([base[i, k] if q == "clear" else np.nan
                        for (i, k), q in zip(pick, resonance, strict=True)])
-    rows_closed = np.array([r.closed for r in rows], dtype=bool).reshape(len(rows), closed.shape[1])
-    bands = playing.hole_model_band(instrument, air.state, rows_closed, chosen)
+    bands = playing.hole_model_band(instrument, air.state, closed[[i for i, _ in pick]], chosen)
     return _Predicted(tuple(float(base[i, k]) for i, k in pick), per_c, resonance,
                       tuple(cutoffs[i] for i, _ in pick), bands)
 

@@ -105,6 +105,7 @@ class Chart(Block):
         dw = max(len(self.holes), 1) * pitch + 4 * MM
         note_w = NOTE_COLUMN
         titles = self._columns()
+        banded, surveyed = self._banded(), self._surveyed()
         num_w = (width - note_w - dw) / len(titles)
         cols = [x + note_w + dw + k * num_w for k in range(len(titles) + 1)]
         c.setFillColor(LIGHT)
@@ -149,7 +150,7 @@ class Chart(Block):
                       90.0 < abs(hole.angle_deg) % 360.0 < 270.0, pitch)
             c.setFont(FONT, self.size)
             c.setFillColor(INK)
-            for k, text in enumerate(_cells(f, self._banded(), self._surveyed())):
+            for k, text in enumerate(_cells(f, banded, surveyed)):
                 c.drawRightString(cols[k + 1] - 1.5 * MM, y - ROW + 2 * MM, text)
             y -= ROW
         c.setStrokeColor(GREY)
